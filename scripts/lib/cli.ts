@@ -1,0 +1,34 @@
+import fs from 'node:fs';
+import path from 'node:path';
+import { parseArgs, type ParseArgsConfig } from 'node:util';
+import { migrateToLatest, openDatabase, type DB } from '../../src/lib/server/db/connect';
+
+/** Exit code for bad command-line arguments. */
+export const BAD_ARGUMENTS = 2;
+
+export function fail(message: string, usage?: string): never {
+	console.error(`Error: ${message}`);
+	if (usage) console.error(`Usage: ${usage}`);
+	process.exit(BAD_ARGUMENTS);
+}
+
+export function parseCli<T extends ParseArgsConfig['options']>(options: T, usage: string) {
+	try {
+		return parseArgs({ options, allowPositionals: true, strict: true });
+	} catch (err) {
+		fail((err as Error).message, usage);
+	}
+}
+
+export function databasePath(): string {
+	return process.env.DATABASE_PATH || './data/castellan.db';
+}
+
+/** Opens DATABASE_PATH (making the default ./data folder if needed) and migrates it. */
+export async function openMigratedDatabase(): Promise<DB> {
+	const file = databasePath();
+	if (!process.env.DATABASE_PATH) fs.mkdirSync(path.dirname(file), { recursive: true });
+	const db = openDatabase(file);
+	await migrateToLatest(db);
+	return db;
+}

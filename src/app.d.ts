@@ -1,0 +1,15 @@
+import type { Session, User } from 'lucia';
+
+declare global {
+	namespace App {
+		interface Error {
+			message: string;
+		}
+		interface Locals {
+			user: (User & { id: string }) | null;
+			session: Session | null;
+		}
+	}
+}
+
+export {};

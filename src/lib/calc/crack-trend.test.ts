@@ -1,0 +1,110 @@
+import { describe, expect, test } from 'vitest';
+import { SURFACE_GRADES, crackTrend } from './crack-trend';
+
+// Ordinary least squares (any statistics text); lines chosen so the answer checks by hand.
+describe('crackTrend', () => {
+	test('an exact line grade = shots / 10 000 reaches grade 3 at 30 000 shots', () => {
+		const trend = crackTrend([
+			{ shots: 0, grade: 0 },
+			{ shots: 10_000, grade: 1 },
+			{ shots: 20_000, grade: 2 }
+		]);
+		expect(trend.slopePerShot).toBeCloseTo(1e-4, 15);
+		expect(trend.intercept).toBeCloseTo(0, 12);
+		expect(trend.projectedShotsAtRepair).toBe(30_000);
+	});
+
+	test('a scattered set: (0,0) (10 000,2) (20 000,2) → slope 1e-4, intercept 1/3, 26 667 shots', () => {
+		// By hand: mean x 10 000, mean y 4/3; Sxy = 20 000, Sxx = 2e8 → slope 1e-4;
+		// intercept 4/3 − 1 = 1/3; (3 − 1/3) / 1e-4 = 26 666.7 → 26 667.
+		const trend = crackTrend([
+			{ shots: 0, grade: 0 },
+			{ shots: 10_000, grade: 2 },
+			{ shots: 20_000, grade: 2 }
+		]);
+		expect(trend.slopePerShot).toBeCloseTo(1e-4, 15);
+		expect(trend.intercept).toBeCloseTo(1 / 3, 12);
+		expect(trend.projectedShotsAtRepair).toBe(26_667);
+	});
+
+	test('input order does not matter, and a lower repair grade comes sooner', () => {
+		const points = [
+			{ shots: 20_000, grade: 2 },
+			{ shots: 0, grade: 0 },
+			{ shots: 10_000, grade: 1 }
+		];
+		expect(crackTrend(points).projectedShotsAtRepair).toBe(30_000);
+		expect(crackTrend(points, 4).projectedShotsAtRepair).toBe(40_000);
+		expect(crackTrend(points, 2.5).projectedShotsAtRepair).toBe(25_000);
+	});
+
+	test('fewer than 3 distinct shot counts → no trend', () => {
+		const trend = crackTrend([
+			{ shots: 0, grade: 0 },
+			{ shots: 10_000, grade: 1 },
+			{ shots: 10_000, grade: 1 }
+		]);
+		expect(trend).toEqual({ slopePerShot: null, intercept: null, projectedShotsAtRepair: null });
+		expect(crackTrend([])).toEqual({
+			slopePerShot: null,
+			intercept: null,
+			projectedShotsAtRepair: null
+		});
+	});
+
+	test('a flat or falling trend gives no projection', () => {
+		const flat = crackTrend([
+			{ shots: 0, grade: 1 },
+			{ shots: 10_000, grade: 1 },
+			{ shots: 20_000, grade: 1 }
+		]);
+		expect(flat.slopePerShot).toBe(0);
+		expect(flat.projectedShotsAtRepair).toBeNull();
+		const falling = crackTrend([
+			{ shots: 0, grade: 2 },
+			{ shots: 10_000, grade: 1 },
+			{ shots: 20_000, grade: 1 }
+		]);
+		expect(falling.projectedShotsAtRepair).toBeNull();
+	});
+
+	test('already at the repair grade → the latest inspection’s shots, even without a trend', () => {
+		expect(
+			crackTrend([
+				{ shots: 5_000, grade: 1 },
+				{ shots: 40_000, grade: 3 }
+			]).projectedShotsAtRepair
+		).toBe(40_000);
+	});
+
+	test('a line that crossed the repair grade before the latest inspection says "now"', () => {
+		// By hand: (0,0) (10 000,3) (10 000,3) (20 000,2): mean x 10 000, mean y 2, Sxy = 20 000,
+		// Sxx = 2e8 → slope 1e-4, intercept 1; grade 2.5 at 15 000 shots, before the latest 20 000.
+		const trend = crackTrend(
+			[
+				{ shots: 0, grade: 0 },
+				{ shots: 10_000, grade: 3 },
+				{ shots: 10_000, grade: 3 },
+				{ shots: 20_000, grade: 2 }
+			],
+			2.5
+		);
+		expect(trend.slopePerShot).toBeCloseTo(1e-4, 15);
+		expect(trend.intercept).toBeCloseTo(1, 12);
+		expect(trend.projectedShotsAtRepair).toBe(20_000);
+	});
+
+	test('rejects grades outside 0–4 and a bad repair grade', () => {
+		expect(() => crackTrend([{ shots: 0, grade: 5 }])).toThrow(RangeError);
+		expect(() => crackTrend([{ shots: -1, grade: 1 }])).toThrow(RangeError);
+		expect(() => crackTrend([], 0)).toThrow(RangeError);
+	});
+});
+
+describe('SURFACE_GRADES (Castellan grading scale)', () => {
+	test('five grades 0–4, the last calling for repair', () => {
+		expect(SURFACE_GRADES.map((g) => g.grade)).toEqual([0, 1, 2, 3, 4]);
+		expect(SURFACE_GRADES[0].description).toBe('No visible checking');
+		expect(SURFACE_GRADES[4].description).toMatch(/repair before further production/);
+	});
+});

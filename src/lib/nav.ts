@@ -1,0 +1,37 @@
+import type { RoleName } from './roles';
+
+export interface NavItem {
+	href: string;
+	label: string;
+}
+
+// The links each role sees. Hiding a link protects nothing: every route checks the role itself.
+export const NAV: Record<RoleName, NavItem[]> = {
+	admin: [
+		{ href: '/plant', label: 'Plant' },
+		{ href: '/dies', label: 'Die register' },
+		{ href: '/shots', label: 'Shot ledger' },
+		{ href: '/fleet', label: 'Fleet life' },
+		{ href: '/admin/users', label: 'Users' },
+		{ href: '/admin/tokens', label: 'API tokens' },
+		{ href: '/settings', label: 'Settings' }
+	],
+	toolroom_lead: [
+		{ href: '/toolroom', label: 'Toolroom' },
+		{ href: '/dies', label: 'Die register' },
+		{ href: '/shots', label: 'Shot ledger' },
+		{ href: '/fleet', label: 'Fleet life' }
+	],
+	toolmaker: [
+		{ href: '/toolroom', label: 'Toolroom' },
+		{ href: '/dies', label: 'Die register' }
+	],
+	scheduler: [
+		{ href: '/planner', label: 'Planner' },
+		{ href: '/dies', label: 'Die register' },
+		{ href: '/shots', label: 'Shot ledger' }
+	],
+	customer: [
+		{ href: '/owner', label: 'My tooling' }
+	]
+};

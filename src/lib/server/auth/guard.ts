@@ -1,0 +1,27 @@
+import { error, redirect, type RequestEvent } from '@sveltejs/kit';
+import { ROLE_LABELS, type RoleName } from '$lib/roles';
+
+export type SignedInUser = NonNullable<App.Locals['user']>;
+
+/**
+ * The one role check for pages and form actions. Signed-out visitors go to sign-in (coming back
+ * afterwards); a signed-in user without the role gets a 403 that names the roles allowed.
+ */
+export function requireRole(event: RequestEvent, ...roles: RoleName[]): SignedInUser {
+	const user = event.locals.user;
+	if (!user) {
+		const back = event.url.pathname + event.url.search;
+		redirect(303, `/sign-in?redirectTo=${encodeURIComponent(back)}`);
+	}
+	if (roles.length > 0 && !roles.includes(user.role)) {
+		error(403, {
+			message: `This page needs the role ${roles.map((r) => ROLE_LABELS[r]).join(' or ')}. You are signed in as ${ROLE_LABELS[user.role]}.`
+		});
+	}
+	return user;
+}
+
+/** Any signed-in user. */
+export function requireUser(event: RequestEvent): SignedInUser {
+	return requireRole(event);
+}

@@ -1,0 +1,203 @@
+import type { Generated, Insertable, Selectable, Updateable } from 'kysely';
+
+import type { AlloyFamily, DieProcess, DieStatus, HalfSide, Role, ShotSource } from '../../domain';
+
+export type { AlloyFamily, DieProcess, DieStatus, HalfSide, Role, ShotSource };
+
+/** 0/1 integer as SQLite stores booleans. */
+export type Flag = number;
+
+export interface CustomersTable {
+	id: Generated<number>;
+	code: string;
+	name: string;
+	contact_email: string | null;
+	created_at: Generated<string>;
+}
+
+export interface UsersTable {
+	id: string;
+	email: string;
+	name: string;
+	role: Role;
+	customer_id: number | null;
+	password_hash: string;
+	active: Generated<Flag>;
+	unit_system: Generated<'metric' | 'us'>;
+	notices_enabled: Generated<Flag>;
+	created_at: Generated<string>;
+}
+
+export interface SessionsTable {
+	id: string;
+	user_id: string;
+	/** Unix time in milliseconds. */
+	expires_at: number;
+}
+
+export interface SignInFailuresTable {
+	bucket: string;
+	failures: number;
+	window_started_at: number;
+}
+
+export interface ApiTokensTable {
+	id: Generated<number>;
+	name: string;
+	token_hash: string;
+	token_prefix: string;
+	/** Comma-separated scopes. */
+	scopes: string;
+	customer_id: number | null;
+	created_by: string | null;
+	created_at: Generated<string>;
+	last_used_at: string | null;
+	revoked_at: string | null;
+}
+
+export interface AlloysTable {
+	id: Generated<number>;
+	code: string;
+	name: string;
+	family: AlloyFamily;
+	expected_life_shots: number;
+	density_kg_m3: number | null;
+	specific_heat_j_kgk: number | null;
+	latent_heat_j_kg: number | null;
+	solidus_c: number | null;
+	liquidus_c: number | null;
+	pour_temp_c: number | null;
+	source_note: string | null;
+}
+
+export interface MachinesTable {
+	id: Generated<number>;
+	name: string;
+	chamber: 'hot' | 'cold';
+	clamp_force_kn: number;
+	max_shot_weight_kg: number | null;
+	tie_bar_spacing_mm: number | null;
+	status: Generated<'available' | 'down'>;
+	notes: string | null;
+}
+
+export interface DiesTable {
+	id: Generated<number>;
+	number: string;
+	part_name: string;
+	part_number: string | null;
+	customer_id: number;
+	alloy_id: number;
+	process: DieProcess;
+	cavities: number;
+	projected_area_cm2: number;
+	has_slides: Generated<Flag>;
+	status: Generated<DieStatus>;
+	location: string | null;
+	notes: string | null;
+	expected_life_shots: number | null;
+	total_shots: Generated<number>;
+	last_counted_at: string | null;
+	created_at: Generated<string>;
+	updated_at: Generated<string>;
+	retired_at: string | null;
+}
+
+export interface DieHalvesTable {
+	id: Generated<number>;
+	die_id: number;
+	side: HalfSide;
+	serial: string;
+	steel: string | null;
+	hardness_hrc: number | null;
+	shots: Generated<number>;
+	active: Generated<Flag>;
+	installed_at: string;
+	die_shots_at_install: Generated<number>;
+	removed_at: string | null;
+	removal_reason: string | null;
+}
+
+export interface ShotEntriesTable {
+	id: Generated<number>;
+	die_id: number;
+	machine_id: number | null;
+	counted_at: string;
+	shots: number;
+	counter_start: number | null;
+	counter_end: number | null;
+	source: ShotSource;
+	idem_key: string | null;
+	entered_by: string | null;
+	token_id: number | null;
+	note: string | null;
+	created_at: string;
+}
+
+export interface ShotDailyTable {
+	die_id: number;
+	/** YYYY-MM-DD (UTC). */
+	day: string;
+	shots: number;
+}
+
+export interface ServiceTemplatesTable {
+	id: Generated<number>;
+	family: AlloyFamily;
+	kind: string;
+	interval_shots: number | null;
+	interval_days: number | null;
+}
+
+export interface ServiceTasksTable {
+	id: Generated<number>;
+	die_id: number;
+	kind: string;
+	interval_shots: number | null;
+	interval_days: number | null;
+	last_done_at: string;
+	last_done_shots: Generated<number>;
+	active: Generated<Flag>;
+}
+
+export interface AuditLogTable {
+	id: Generated<number>;
+	at: string;
+	user_id: string | null;
+	token_id: number | null;
+	action: string;
+	die_id: number | null;
+	/** JSON text. */
+	detail: Generated<string>;
+}
+
+export interface Database {
+	customers: CustomersTable;
+	users: UsersTable;
+	sessions: SessionsTable;
+	sign_in_failures: SignInFailuresTable;
+	api_tokens: ApiTokensTable;
+	alloys: AlloysTable;
+	machines: MachinesTable;
+	dies: DiesTable;
+	die_halves: DieHalvesTable;
+	shot_entries: ShotEntriesTable;
+	shot_daily: ShotDailyTable;
+	service_templates: ServiceTemplatesTable;
+	service_tasks: ServiceTasksTable;
+	audit_log: AuditLogTable;
+}
+
+export type Customer = Selectable<CustomersTable>;
+export type User = Selectable<UsersTable>;
+export type NewUser = Insertable<UsersTable>;
+export type Alloy = Selectable<AlloysTable>;
+export type NewAlloy = Insertable<AlloysTable>;
+export type Machine = Selectable<MachinesTable>;
+export type Die = Selectable<DiesTable>;
+export type NewDie = Insertable<DiesTable>;
+export type DieUpdate = Updateable<DiesTable>;
+export type DieHalf = Selectable<DieHalvesTable>;
+export type ShotEntry = Selectable<ShotEntriesTable>;
+export type ServiceTask = Selectable<ServiceTasksTable>;
+export type ApiToken = Selectable<ApiTokensTable>;

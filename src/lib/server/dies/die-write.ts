@@ -1,0 +1,133 @@
+import type { DB } from '../db/connect';
+import type { DieStatus } from '../db/schema';
+import type { DieForm } from '../../schemas/die';
+import { writeAudit } from '../audit';
+import { nowIso } from '../time';
+
+export type WriteResult = { ok: true; number: string } | { ok: false; field: string; message: string };
+
+async function checkReferences(db: DB, form: DieForm, excludeDieId?: number): Promise<WriteResult | null> {
+	const [clash, customer, alloy] = await Promise.all([
+		db
+			.selectFrom('dies')
+			.select('id')
+			.where('number', '=', form.number)
+			.$if(excludeDieId !== undefined, (q) => q.where('id', '!=', excludeDieId!))
+			.executeTakeFirst(),
+		db.selectFrom('customers').select('id').where('id', '=', form.customerId).executeTakeFirst(),
+		db.selectFrom('alloys').select(['id', 'family']).where('id', '=', form.alloyId).executeTakeFirst()
+	]);
+	if (clash) return { ok: false, field: 'number', message: `Die ${form.number} already exists.` };
+	if (!customer) return { ok: false, field: 'customerId', message: 'That owner does not exist.' };
+	if (!alloy) return { ok: false, field: 'alloyId', message: 'That alloy does not exist.' };
+	return null;
+}
+
+/** Registers a new die with both halves and the service plan of its alloy family, in one transaction. */
+export async function createDie(db: DB, form: DieForm, actorId: string, at = nowIso()): Promise<WriteResult> {
+	const problem = await checkReferences(db, form);
+	if (problem) return problem;
+	const alloy = await db.selectFrom('alloys').select('family').where('id', '=', form.alloyId).executeTakeFirstOrThrow();
+	await db.transaction().execute(async (trx) => {
+		const die = await trx
+			.insertInto('dies')
+			.values({
+				number: form.number,
+				part_name: form.partName,
+				part_number: form.partNumber,
+				customer_id: form.customerId,
+				alloy_id: form.alloyId,
+				process: form.process,
+				cavities: form.cavities,
+				projected_area_cm2: form.projectedAreaCm2,
+				has_slides: form.hasSlides ? 1 : 0,
+				location: form.location,
+				notes: form.notes,
+				expected_life_shots: form.expectedLifeShots ?? null,
+				created_at: at,
+				updated_at: at
+			})
+			.returning('id')
+			.executeTakeFirstOrThrow();
+		for (const side of ['cover', 'ejector'] as const) {
+			const serial = (side === 'cover' ? form.coverSerial : form.ejectorSerial) || `${form.number}-${side === 'cover' ? 'C' : 'E'}1`;
+			await trx
+				.insertInto('die_halves')
+				.values({ die_id: die.id, side, serial, steel: form.steel || 'H13', installed_at: at })
+				.execute();
+		}
+		const templates = await trx
+			.selectFrom('service_templates')
+			.selectAll()
+			.where('family', '=', alloy.family)
+			.execute();
+		if (templates.length) {
+			await trx
+				.insertInto('service_tasks')
+				.values(
+					templates.map((t) => ({
+						die_id: die.id,
+						kind: t.kind,
+						interval_shots: t.interval_shots,
+						interval_days: t.interval_days,
+						last_done_at: at
+					}))
+				)
+				.execute();
+		}
+		await writeAudit(trx, { userId: actorId, action: 'die.create', dieId: die.id, detail: { number: form.number } }, at);
+	});
+	return { ok: true, number: form.number };
+}
+
+/** Edits the die's register data; counts, halves and status have their own flows. */
+export async function updateDie(db: DB, dieId: number, form: DieForm, actorId: string): Promise<WriteResult> {
+	const problem = await checkReferences(db, form, dieId);
+	if (problem) return problem;
+	const at = nowIso();
+	await db.transaction().execute(async (trx) => {
+		await trx
+			.updateTable('dies')
+			.set({
+				number: form.number,
+				part_name: form.partName,
+				part_number: form.partNumber,
+				customer_id: form.customerId,
+				alloy_id: form.alloyId,
+				process: form.process,
+				cavities: form.cavities,
+				projected_area_cm2: form.projectedAreaCm2,
+				has_slides: form.hasSlides ? 1 : 0,
+				location: form.location,
+				notes: form.notes,
+				expected_life_shots: form.expectedLifeShots ?? null,
+				updated_at: at
+			})
+			.where('id', '=', dieId)
+			.execute();
+		await writeAudit(trx, { userId: actorId, action: 'die.edit', dieId, detail: { number: form.number } }, at);
+	});
+	return { ok: true, number: form.number };
+}
+
+/** Moves a die to another state with a reason on the audit trail. Retired is final. */
+export async function changeDieStatus(
+	db: DB,
+	die: { id: number; status: DieStatus },
+	to: DieStatus,
+	reason: string,
+	actorId: string
+): Promise<{ ok: true } | { ok: false; message: string }> {
+	if (die.status === 'retired') return { ok: false, message: 'A retired die cannot change state.' };
+	if (die.status === to) return { ok: false, message: 'The die is already in that state.' };
+	const at = nowIso();
+	await db.transaction().execute(async (trx) => {
+		await trx
+			.updateTable('dies')
+			.set({ status: to, updated_at: at, retired_at: to === 'retired' ? at : null })
+			.where('id', '=', die.id)
+			.execute();
+		await writeAudit(trx, { userId: actorId, action: 'die.status', dieId: die.id, detail: { from: die.status, to, reason } }, at);
+	});
+	return { ok: true };
+}

@@ -1,0 +1,397 @@
+// @ts-check
+/**
+ * Photo processing core: content sniffing, header checks, EXIF orientation, decode, resize and
+ * JPEG re-encode.
+ *
+ * Plain JavaScript on purpose, and it imports nothing but Node built-ins: photo-worker.js loads
+ * this file's *source text* from a data: URL inside each worker thread, where no TypeScript
+ * transform exists and bare package names cannot be resolved. The jimp packages are therefore
+ * passed in by the caller (process-image.ts in the main thread, photo-worker.js in a worker),
+ * so both threads run exactly this code. See worker-pool.ts for why.
+ */
+import { createHash } from 'node:crypto';
+
+/** Largest upload accepted, in bytes (20 MiB). */
+export const MAX_PHOTO_BYTES = 20 * 1024 * 1024;
+/** Largest image accepted, in pixels (width × height as declared in the file header). */
+export const MAX_PHOTO_PIXELS = 40_000_000;
+/** Long side of the stored full-size JPEG, in pixels; smaller photos are never enlarged. */
+export const FULL_LONG_SIDE = 2560;
+/** Long side of the thumbnail JPEG, in pixels. */
+export const THUMB_LONG_SIDE = 400;
+
+const JPEG_QUALITY = 85;
+// jpeg-js accounts roughly 13 bytes per pixel while decoding a 4:4:4 JPEG; a 40 MP photo needs
+// about 530 MB, just above its 512 MB default. The pixel cap above is what really bounds this.
+const JPEG_DECODE_MEMORY_MB = 1024;
+
+/**
+ * @typedef {'empty' | 'not_image' | 'too_large' | 'too_many_pixels' | 'corrupt'} PhotoErrorCode
+ */
+
+/** A photo the uploader has to fix (wrong type, too big, damaged); the message can be shown. */
+export class PhotoError extends Error {
+	/**
+	 * @param {PhotoErrorCode} code
+	 * @param {string} message
+	 */
+	constructor(code, message) {
+		super(message);
+		this.name = 'PhotoError';
+		/** @type {PhotoErrorCode} */
+		this.code = code;
+	}
+}
+
+/**
+ * @typedef {object} ProcessedImage
+ * @property {Buffer} full JPEG, long side ≤ FULL_LONG_SIDE, no metadata
+ * @property {Buffer} thumb JPEG, long side ≤ THUMB_LONG_SIDE, no metadata
+ * @property {number} width of `full`, px
+ * @property {number} height of `full`, px
+ * @property {number} originalWidth as uploaded, before EXIF orientation, px
+ * @property {number} originalHeight as uploaded, before EXIF orientation, px
+ * @property {'jpeg' | 'png'} sourceType
+ * @property {string} sha256 hex digest of `full`
+ */
+
+/**
+ * @typedef {object} ImageHeader
+ * @property {'jpeg' | 'png'} type
+ * @property {number} width px
+ * @property {number} height px
+ * @property {number} orientation EXIF orientation 1–8 (1 when absent, always 1 for PNG)
+ */
+
+/**
+ * @typedef {object} ImageDeps
+ * @property {typeof import('@jimp/core').createJimp} createJimp
+ * @property {typeof import('@jimp/js-jpeg').default} jpeg
+ * @property {typeof import('@jimp/js-png').default} png
+ * @property {typeof import('@jimp/plugin-resize').methods} resizeMethods
+ */
+
+const PNG_SIGNATURE = Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]);
+const JPEG_EOI = Buffer.from([0xff, 0xd9]);
+
+/** @param {Buffer | Uint8Array} input */
+function asBuffer(input) {
+	return Buffer.isBuffer(input) ? input : Buffer.from(input.buffer, input.byteOffset, input.length);
+}
+
+/** @param {number} bytes */
+function formatMiB(bytes) {
+	return `${(bytes / 1024 / 1024).toFixed(1)} MB`;
+}
+
+/**
+ * Names a few formats people commonly try, so the refusal says what the file actually is.
+ * @param {Buffer} buf
+ */
+function describeOtherType(buf) {
+	const ascii = (/** @type {number} */ start, /** @type {number} */ end) =>
+		buf.toString('latin1', start, end);
+	if (ascii(0, 4) === 'GIF8') return 'a GIF image';
+	if (ascii(0, 4) === 'RIFF' && ascii(8, 12) === 'WEBP') return 'a WebP image';
+	if (ascii(4, 8) === 'ftyp' && /^(heic|heix|hevc|heim|heis|mif1|msf1)$/.test(ascii(8, 12))) {
+		return 'a HEIC image (iPhone: Settings → Camera → Formats → Most Compatible)';
+	}
+	if (ascii(0, 5) === '%PDF-') return 'a PDF document';
+	return 'not an image';
+}
+
+/**
+ * Reads type, declared size and orientation from the first bytes only, so an oversized image is
+ * refused before any pixel memory is allocated (a "decompression bomb": a few KB of file that
+ * claims 20000 × 20000 px would otherwise make the decoder allocate 1.6 GB).
+ *
+ * Throws PhotoError for anything that is not a complete, plausible JPEG or PNG.
+ * @param {Buffer | Uint8Array} input
+ * @returns {ImageHeader}
+ */
+export function inspectImage(input) {
+	const buf = asBuffer(input);
+	if (buf.length === 0) throw new PhotoError('empty', 'The file is empty.');
+	if (buf.length > MAX_PHOTO_BYTES) {
+		throw new PhotoError(
+			'too_large',
+			`The file is ${formatMiB(buf.length)}; photos may be at most ${formatMiB(MAX_PHOTO_BYTES)}.`
+		);
+	}
+	/** @type {ImageHeader} */
+	let header;
+	if (buf.length >= 3 && buf[0] === 0xff && buf[1] === 0xd8 && buf[2] === 0xff) {
+		header = readJpegHeader(buf);
+	} else if (buf.length >= 8 && buf.subarray(0, 8).equals(PNG_SIGNATURE)) {
+		header = readPngHeader(buf);
+	} else {
+		throw new PhotoError(
+			'not_image',
+			`Only JPEG and PNG photos are accepted; this file is ${describeOtherType(buf)}.`
+		);
+	}
+	if (header.width === 0 || header.height === 0) {
+		throw new PhotoError('corrupt', 'The image header gives a width or height of zero.');
+	}
+	if (header.width * header.height > MAX_PHOTO_PIXELS) {
+		throw new PhotoError(
+			'too_many_pixels',
+			`The image is ${header.width} × ${header.height} px (${(
+				(header.width * header.height) /
+				1e6
+			).toFixed(1)} MP); photos may have at most ${MAX_PHOTO_PIXELS / 1e6} MP.`
+		);
+	}
+	return header;
+}
+
+/**
+ * @param {Buffer} buf starts with the PNG signature
+ * @returns {ImageHeader}
+ */
+function readPngHeader(buf) {
+	// The first chunk must be IHDR (length 13): width and height are big-endian uint32 at 16/20.
+	if (buf.length < 33) throw new PhotoError('corrupt', 'The PNG file ends inside its header.');
+	if (buf.readUInt32BE(8) !== 13 || buf.toString('latin1', 12, 16) !== 'IHDR') {
+		throw new PhotoError('corrupt', 'The PNG file has no valid IHDR header.');
+	}
+	return { type: 'png', width: buf.readUInt32BE(16), height: buf.readUInt32BE(20), orientation: 1 };
+}
+
+/** @param {number} marker */
+function isStartOfFrame(marker) {
+	// SOF0–SOF15 except DHT (C4), JPG (C8) and DAC (CC), which share the range.
+	return marker >= 0xc0 && marker <= 0xcf && marker !== 0xc4 && marker !== 0xc8 && marker !== 0xcc;
+}
+
+/**
+ * Walks the marker segments up to the first scan (SOS): the frame header (SOFn) gives the size,
+ * APP1 "Exif" gives the orientation. Entropy-coded data after SOS is not parsed, except to make
+ * sure an end-of-image marker follows: jpeg-js happily decodes a progressive JPEG cut off
+ * between scans, and the result would be a blurred or grey photo rather than an error.
+ * @param {Buffer} buf starts with FF D8 FF
+ * @returns {ImageHeader}
+ */
+function readJpegHeader(buf) {
+	const truncated = () =>
+		new PhotoError('corrupt', 'The JPEG file is incomplete (cut off before the image data).');
+	let width = -1;
+	let height = -1;
+	let orientation = 0;
+	let offset = 2;
+	for (;;) {
+		if (offset >= buf.length) throw truncated();
+		if (buf[offset] !== 0xff) {
+			throw new PhotoError('corrupt', 'The JPEG file is damaged (marker expected).');
+		}
+		while (offset < buf.length && buf[offset] === 0xff) offset++; // fill bytes before a marker
+		if (offset >= buf.length) throw truncated();
+		const marker = buf[offset++];
+		if (marker === 0x01 || (marker >= 0xd0 && marker <= 0xd8)) continue; // no length field
+		if (marker === 0xd9) throw truncated(); // end of image before any scan
+		if (offset + 2 > buf.length) throw truncated();
+		const length = buf.readUInt16BE(offset);
+		const end = offset + length;
+		if (length < 2 || end > buf.length) throw truncated();
+		if (isStartOfFrame(marker)) {
+			if (length < 8) throw new PhotoError('corrupt', 'The JPEG frame header is damaged.');
+			height = buf.readUInt16BE(offset + 3);
+			width = buf.readUInt16BE(offset + 5);
+		} else if (marker === 0xe1 && orientation === 0) {
+			orientation = readExifOrientation(buf.subarray(offset + 2, end));
+		} else if (marker === 0xda) {
+			if (width < 0) throw new PhotoError('corrupt', 'The JPEG file has no frame header.');
+			if (buf.indexOf(JPEG_EOI, end) === -1) {
+				throw new PhotoError('corrupt', 'The JPEG file is incomplete (cut off in the image data).');
+			}
+			return { type: 'jpeg', width, height, orientation: orientation || 1 };
+		}
+		offset = end;
+	}
+}
+
+/**
+ * Orientation tag (0x0112) from IFD0 of an APP1 payload; 0 when the segment is not Exif (XMP
+ * also lives in APP1) so the caller keeps looking, 1 when Exif has no usable tag.
+ * @param {Buffer} seg APP1 payload after the length field
+ * @returns {number}
+ */
+export function readExifOrientation(seg) {
+	if (seg.length < 14 || seg.toString('latin1', 0, 6) !== 'Exif\0\0') return 0;
+	const tiff = seg.subarray(6);
+	const order = tiff.toString('latin1', 0, 2);
+	if (order !== 'II' && order !== 'MM') return 1;
+	const little = order === 'II';
+	const u16 = (/** @type {number} */ at) => (little ? tiff.readUInt16LE(at) : tiff.readUInt16BE(at));
+	const u32 = (/** @type {number} */ at) => (little ? tiff.readUInt32LE(at) : tiff.readUInt32BE(at));
+	if (u16(2) !== 42) return 1;
+	const ifd = u32(4);
+	if (ifd + 2 > tiff.length) return 1;
+	const count = u16(ifd);
+	for (let i = 0; i < count; i++) {
+		const entry = ifd + 2 + i * 12;
+		if (entry + 12 > tiff.length) return 1;
+		if (u16(entry) !== 0x0112) continue;
+		// Type 3 = SHORT; the value sits left-aligned in the 4-byte value field.
+		const value = u16(entry + 2) === 3 ? u16(entry + 8) : 1;
+		return value >= 1 && value <= 8 ? value : 1;
+	}
+	return 1;
+}
+
+/**
+ * @typedef {object} Bitmap
+ * @property {Buffer} data RGBA, 4 bytes per pixel
+ * @property {number} width
+ * @property {number} height
+ */
+
+/**
+ * Source-pixel step per destination step for each EXIF orientation, as [sx per x, sx per y,
+ * sy per x, sy per y]; a negative step starts from the far edge. From the definition of tag
+ * 0x0112 in TIFF 6.0 / Exif 2.32 (row 0 / column 0 meaning "top, left" … "left, bottom").
+ * @type {Record<number, [number, number, number, number]>}
+ */
+const ORIENTATION_STEPS = {
+	2: [-1, 0, 0, 1], // mirrored left–right
+	3: [-1, 0, 0, -1], // rotated 180°
+	4: [1, 0, 0, -1], // mirrored top–bottom
+	5: [0, 1, 1, 0], // transposed
+	6: [0, 1, -1, 0], // needs 90° clockwise (phone held upright, the usual case)
+	7: [0, -1, -1, 0], // transversed
+	8: [0, -1, 1, 0] // needs 90° counter-clockwise
+};
+
+/**
+ * Turns the stored pixels the way EXIF says the camera was held, so the saved JPEG (which keeps
+ * no EXIF) displays upright everywhere.
+ * @param {Bitmap} bitmap
+ * @param {number} orientation 1–8
+ * @returns {Bitmap}
+ */
+export function applyOrientation(bitmap, orientation) {
+	const steps = ORIENTATION_STEPS[orientation];
+	if (!steps) return bitmap;
+	const [sxPerX, sxPerY, syPerX, syPerY] = steps;
+	const { width: w, height: h } = bitmap;
+	const outW = sxPerX === 0 ? h : w;
+	const outH = sxPerX === 0 ? w : h;
+	const sx0 = sxPerX < 0 || sxPerY < 0 ? w - 1 : 0;
+	const sy0 = syPerX < 0 || syPerY < 0 ? h - 1 : 0;
+	const src = pixelsAsUint32(bitmap.data);
+	const out = Buffer.alloc(outW * outH * 4);
+	const dst = new Uint32Array(out.buffer, out.byteOffset, outW * outH);
+	for (let y = 0; y < outH; y++) {
+		for (let x = 0; x < outW; x++) {
+			const sx = sx0 + sxPerX * x + sxPerY * y;
+			const sy = sy0 + syPerX * x + syPerY * y;
+			dst[y * outW + x] = src[sy * w + sx];
+		}
+	}
+	return { data: out, width: outW, height: outH };
+}
+
+/** @param {Buffer} data */
+function pixelsAsUint32(data) {
+	// Only whole pixels are moved, so byte order does not matter; alignment does.
+	if (data.byteOffset % 4 === 0) return new Uint32Array(data.buffer, data.byteOffset, data.length / 4);
+	return new Uint32Array(Uint8Array.from(data).buffer);
+}
+
+/**
+ * @param {number} width
+ * @param {number} height
+ * @param {number} longSide
+ * @returns {{ w: number, h: number } | null} target size, or null when already small enough
+ */
+function fitWithin(width, height, longSide) {
+	if (width <= longSide && height <= longSide) return null;
+	const scale = longSide / Math.max(width, height);
+	return {
+		w: Math.max(1, Math.min(longSide, Math.round(width * scale))),
+		h: Math.max(1, Math.min(longSide, Math.round(height * scale)))
+	};
+}
+
+/**
+ * @param {ImageDeps} deps
+ * @returns {(input: Buffer | Uint8Array) => Promise<ProcessedImage>}
+ */
+export function createImageProcessor(deps) {
+	const Jimp = deps.createJimp({
+		formats: [deps.jpeg, deps.png],
+		plugins: [deps.resizeMethods]
+	});
+	const jpegCodec = deps.jpeg();
+	const pngCodec = deps.png();
+
+	/**
+	 * Decodes with the format codecs directly rather than Jimp.fromBuffer: fromBuffer sniffs the
+	 * type again, and it applies EXIF orientation itself (via exif-parser) — we apply our own
+	 * parse exactly once below, and need decode limits fromBuffer does not pass through.
+	 * @param {Buffer} buf
+	 * @param {ImageHeader} header
+	 * @returns {Bitmap}
+	 */
+	function decode(buf, header) {
+		let decoded;
+		try {
+			decoded =
+				header.type === 'jpeg'
+					? jpegCodec.decode(buf, {
+							maxResolutionInMP: MAX_PHOTO_PIXELS / 1e6,
+							maxMemoryUsageInMB: JPEG_DECODE_MEMORY_MB
+						})
+					: pngCodec.decode(buf, { checkCRC: true });
+		} catch (error) {
+			const reason = error instanceof Error ? error.message : String(error);
+			throw new PhotoError(
+				'corrupt',
+				`The ${header.type.toUpperCase()} file is damaged and cannot be read (${reason}).`
+			);
+		}
+		if (decoded.width !== header.width || decoded.height !== header.height) {
+			throw new PhotoError('corrupt', 'The image data does not match its header.');
+		}
+		// Only data/width/height: jpeg-js also returns exifBuffer and comments, and its encoder
+		// writes them back out if they ride along on the bitmap — old orientation included.
+		return { data: decoded.data, width: decoded.width, height: decoded.height };
+	}
+
+	/**
+	 * @param {InstanceType<typeof Jimp>} image
+	 * @returns {Promise<Buffer>}
+	 */
+	function encodeJpeg(image) {
+		// JPEG has no alpha; transparent PNG areas become white, not the default black.
+		image.background = 0xffffffff;
+		return image.getBuffer('image/jpeg', { quality: JPEG_QUALITY });
+	}
+
+	return async function processImage(input) {
+		const buf = asBuffer(input);
+		const header = inspectImage(buf);
+		const upright = applyOrientation(decode(buf, header), header.orientation);
+
+		const image = new Jimp(upright);
+		const fullSize = fitWithin(image.width, image.height, FULL_LONG_SIDE);
+		if (fullSize) image.resize(fullSize);
+		const full = await encodeJpeg(image);
+
+		const thumbImage = image.clone();
+		const thumbSize = fitWithin(thumbImage.width, thumbImage.height, THUMB_LONG_SIDE);
+		if (thumbSize) thumbImage.resize(thumbSize);
+		const thumb = await encodeJpeg(thumbImage);
+
+		return {
+			full,
+			thumb,
+			width: image.width,
+			height: image.height,
+			originalWidth: header.width,
+			originalHeight: header.height,
+			sourceType: header.type,
+			sha256: createHash('sha256').update(full).digest('hex')
+		};
+	};
+}

@@ -1,0 +1,132 @@
+import { generateIdFromEntropySize } from 'lucia';
+import type { DB } from '../db/connect';
+import type { Role } from '../db/schema';
+import { hashPassword } from '../auth/password';
+import { writeAudit } from '../audit';
+
+export interface NewUserInput {
+	email: string;
+	name: string;
+	role: Role;
+	customerId: number | null;
+	password: string;
+}
+
+export class UserInputError extends Error {
+	constructor(
+		public field: string,
+		message: string
+	) {
+		super(message);
+	}
+}
+
+export function normaliseEmail(email: string): string {
+	return email.trim().toLowerCase();
+}
+
+/** Creates a user; the customer binding must match the role (customers only, and always). */
+export async function createUser(db: DB, input: NewUserInput, actorId: string | null = null) {
+	const email = normaliseEmail(input.email);
+	if (input.role === 'customer' && input.customerId === null) {
+		throw new UserInputError('customerId', 'A tooling owner account must belong to a customer.');
+	}
+	const existing = await db.selectFrom('users').select('id').where('email', '=', email).executeTakeFirst();
+	if (existing) throw new UserInputError('email', `There is already an account for ${email}.`);
+	const id = generateIdFromEntropySize(10);
+	await db
+		.insertInto('users')
+		.values({
+			id,
+			email,
+			name: input.name.trim(),
+			role: input.role,
+			customer_id: input.role === 'customer' ? input.customerId : null,
+			password_hash: await hashPassword(input.password)
+		})
+		.execute();
+	await writeAudit(db, { userId: actorId, action: 'user.create', detail: { id, email, role: input.role } });
+	return id;
+}
+
+export async function findUserByEmail(db: DB, email: string) {
+	return db
+		.selectFrom('users')
+		.selectAll()
+		.where('email', '=', normaliseEmail(email))
+		.executeTakeFirst();
+}
+
+export async function getUserById(db: DB, id: string) {
+	return db.selectFrom('users').selectAll().where('id', '=', id).executeTakeFirst();
+}
+
+export async function listUsers(db: DB) {
+	return db
+		.selectFrom('users')
+		.leftJoin('customers', 'customers.id', 'users.customer_id')
+		.select([
+			'users.id',
+			'users.email',
+			'users.name',
+			'users.role',
+			'users.active',
+			'users.created_at',
+			'customers.code as customerCode',
+			'customers.name as customerName'
+		])
+		.orderBy('users.active', 'desc')
+		.orderBy('users.name')
+		.execute();
+}
+
+export async function updateUserRole(
+	db: DB,
+	id: string,
+	role: Role,
+	customerId: number | null,
+	actorId: string
+) {
+	if (role === 'customer' && customerId === null) {
+		throw new UserInputError('customerId', 'A tooling owner account must belong to a customer.');
+	}
+	await db.transaction().execute(async (trx) => {
+		await trx
+			.updateTable('users')
+			.set({ role, customer_id: role === 'customer' ? customerId : null })
+			.where('id', '=', id)
+			.execute();
+		// A role change takes effect at once: end the user's sessions.
+		await trx.deleteFrom('sessions').where('user_id', '=', id).execute();
+		await writeAudit(trx, { userId: actorId, action: 'user.role', detail: { id, role } });
+	});
+}
+
+export async function setUserActive(db: DB, id: string, active: boolean, actorId: string) {
+	await db.transaction().execute(async (trx) => {
+		await trx.updateTable('users').set({ active: active ? 1 : 0 }).where('id', '=', id).execute();
+		if (!active) await trx.deleteFrom('sessions').where('user_id', '=', id).execute();
+		await writeAudit(trx, { userId: actorId, action: active ? 'user.enable' : 'user.disable', detail: { id } });
+	});
+}
+
+export async function setUserPassword(db: DB, id: string, password: string, actorId: string) {
+	const passwordHash = await hashPassword(password);
+	await db.transaction().execute(async (trx) => {
+		await trx.updateTable('users').set({ password_hash: passwordHash }).where('id', '=', id).execute();
+		await trx.deleteFrom('sessions').where('user_id', '=', id).execute();
+		await writeAudit(trx, { userId: actorId, action: 'user.password', detail: { id } });
+	});
+}
+
+export async function updateUserPreferences(
+	db: DB,
+	id: string,
+	prefs: { unitSystem: 'metric' | 'us'; noticesEnabled: boolean }
+) {
+	await db
+		.updateTable('users')
+		.set({ unit_system: prefs.unitSystem, notices_enabled: prefs.noticesEnabled ? 1 : 0 })
+		.where('id', '=', id)
+		.execute();
+}

@@ -1,0 +1,16 @@
+import { dieListQuerySchema } from '$lib/schemas/die';
+import { requireRole } from '$lib/server/auth/guard';
+import { getDb } from '$lib/server/db';
+import { listDies, listOwnerOptions } from '$lib/server/dies/register';
+import { scopeOf } from '$lib/server/dies/scope';
+import { DIE_EDITORS, PLANT_ROLES } from '$lib/roles';
+import type { PageServerLoad } from './$types';
+
+export const load: PageServerLoad = async (event) => {
+	const user = requireRole(event, ...PLANT_ROLES);
+	const query = dieListQuerySchema.parse(Object.fromEntries(event.url.searchParams));
+	const db = getDb();
+	const scope = scopeOf(user);
+	const [list, owners] = await Promise.all([listDies(db, query, scope), listOwnerOptions(db, scope)]);
+	return { query, ...list, owners, canCreate: DIE_EDITORS.includes(user.role) };
+};

@@ -1,0 +1,59 @@
+import { error, fail } from '@sveltejs/kit';
+import { message, superValidate } from 'sveltekit-superforms';
+import { zod4 } from 'sveltekit-superforms/adapters';
+import { dieStatusSchema } from '$lib/schemas/die';
+import { requireRole } from '$lib/server/auth/guard';
+import { getDb } from '$lib/server/db';
+import { findDie, getDieStory } from '$lib/server/dies/die-detail';
+import { changeDieStatus } from '$lib/server/dies/die-write';
+import { DIE_EDITORS, PLANT_ROLES } from '$lib/roles';
+import type { DieStatus } from '$lib/domain';
+import type { Actions, PageServerLoad } from './$types';
+
+async function loadDie(number: string) {
+	const die = await findDie(getDb(), number, { customerId: null });
+	if (!die) error(404, { message: `There is no die ${number}.` });
+	return die;
+}
+
+/** Which states this role may move the die to from where it is. */
+function allowedTargets(role: string, from: DieStatus): DieStatus[] {
+	if (from === 'retired') return [];
+	const all: DieStatus[] = ['ready', 'running', 'in_toolroom', 'held', 'retired'];
+	if (DIE_EDITORS.includes(role as never)) return all.filter((s) => s !== from);
+	// A toolmaker moves dies into and out of the toolroom, nothing else.
+	if (role === 'toolmaker') return from === 'in_toolroom' ? ['ready'] : ['in_toolroom'];
+	return [];
+}
+
+export const load: PageServerLoad = async (event) => {
+	const user = requireRole(event, ...PLANT_ROLES);
+	const die = await loadDie(event.params.number);
+	const [story, statusForm] = await Promise.all([
+		getDieStory(getDb(), die),
+		superValidate(zod4(dieStatusSchema))
+	]);
+	return {
+		die,
+		...story,
+		statusForm,
+		statusTargets: allowedTargets(user.role, die.status),
+		canEdit: DIE_EDITORS.includes(user.role)
+	};
+};
+
+export const actions: Actions = {
+	status: async (event) => {
+		const user = requireRole(event, ...PLANT_ROLES);
+		const die = await loadDie(event.params.number);
+		const form = await superValidate(event.request, zod4(dieStatusSchema));
+		if (!form.valid) return fail(400, { statusForm: form });
+		const to = form.data.status as DieStatus;
+		if (!allowedTargets(user.role, die.status).includes(to)) {
+			return message(form, 'Your role may not move this die to that state.', { status: 403 });
+		}
+		const result = await changeDieStatus(getDb(), die, to, form.data.reason, user.id);
+		if (!result.ok) return message(form, result.message, { status: 409 });
+		return message(form, 'State changed.');
+	}
+};

@@ -1,0 +1,55 @@
+import { error, fail, redirect } from '@sveltejs/kit';
+import { setError, superValidate } from 'sveltekit-superforms';
+import { zod4 } from 'sveltekit-superforms/adapters';
+import { dieFormSchema } from '$lib/schemas/die';
+import { requireRole } from '$lib/server/auth/guard';
+import { getDb } from '$lib/server/db';
+import { findDie } from '$lib/server/dies/die-detail';
+import { dieFormChoices } from '$lib/server/dies/die-form-data';
+import { updateDie } from '$lib/server/dies/die-write';
+import { DIE_EDITORS } from '$lib/roles';
+import type { Actions, PageServerLoad } from './$types';
+
+async function loadDie(number: string) {
+	const die = await findDie(getDb(), number, { customerId: null });
+	if (!die) error(404, { message: `There is no die ${number}.` });
+	return die;
+}
+
+export const load: PageServerLoad = async (event) => {
+	requireRole(event, ...DIE_EDITORS);
+	const die = await loadDie(event.params.number);
+	const [form, choices] = await Promise.all([
+		superValidate(
+			{
+				number: die.number,
+				partName: die.part_name,
+				partNumber: die.part_number ?? undefined,
+				customerId: die.customer_id,
+				alloyId: die.alloy_id,
+				process: die.process,
+				cavities: die.cavities,
+				projectedAreaCm2: die.projected_area_cm2,
+				hasSlides: die.has_slides === 1,
+				location: die.location ?? undefined,
+				notes: die.notes ?? undefined,
+				expectedLifeShots: die.expected_life_shots ?? undefined
+			},
+			zod4(dieFormSchema)
+		),
+		dieFormChoices(getDb())
+	]);
+	return { form, number: die.number, ...choices };
+};
+
+export const actions: Actions = {
+	default: async (event) => {
+		const user = requireRole(event, ...DIE_EDITORS);
+		const die = await loadDie(event.params.number);
+		const form = await superValidate(event.request, zod4(dieFormSchema));
+		if (!form.valid) return fail(400, { form });
+		const result = await updateDie(getDb(), die.id, form.data, user.id);
+		if (!result.ok) return setError(form, result.field as 'number', result.message);
+		redirect(303, `/dies/${result.number}`);
+	}
+};
