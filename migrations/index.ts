@@ -1,10 +1,16 @@
 import type { Migration } from 'kysely';
 import * as createFoundation from './2026_12_01_2200_create_foundation';
 import * as insertReferenceAlloys from './2026_12_01_2210_insert_reference_alloys';
+import * as createToolroom from './2026_12_01_2300_create_toolroom';
+import * as createSchedule from './2026_12_01_2310_create_schedule';
+import * as createNotices from './2026_12_01_2320_create_notices';
 
 // Every migration is listed here by name so the same list works in the built app, in Vitest and
 // in tsx scripts (none of which share a way to glob the folder). Add new ones at the end.
 export const migrations: Record<string, Migration> = {
 	'2026_12_01_2200_create_foundation': createFoundation,
-	'2026_12_01_2210_insert_reference_alloys': insertReferenceAlloys
+	'2026_12_01_2210_insert_reference_alloys': insertReferenceAlloys,
+	'2026_12_01_2300_create_toolroom': createToolroom,
+	'2026_12_01_2310_create_schedule': createSchedule,
+	'2026_12_01_2320_create_notices': createNotices
 };

@@ -2,6 +2,10 @@ import type { Generated, Insertable, Selectable, Updateable } from 'kysely';
 
 import type { AlloyFamily, DieProcess, DieStatus, HalfSide, Role, ShotSource } from '../../domain';
 
+import type { ToolroomTables } from './schema-toolroom';
+import type { ScheduleTables } from './schema-schedule';
+import type { NoticesTables } from './schema-notices';
+
 export type { AlloyFamily, DieProcess, DieStatus, HalfSide, Role, ShotSource };
 
 /** 0/1 integer as SQLite stores booleans. */
@@ -171,7 +175,7 @@ export interface AuditLogTable {
 	detail: Generated<string>;
 }
 
-export interface Database {
+export interface Database extends ToolroomTables, ScheduleTables, NoticesTables {
 	customers: CustomersTable;
 	users: UsersTable;
 	sessions: SessionsTable;

@@ -70,7 +70,7 @@ export async function cumulativeShotSeries(db: DB, dieId: number, totalShots: nu
 
 /** Everything the die page shows, queried together. */
 export async function getDieStory(db: DB, die: FoundDie, asOf = nowIso()) {
-	const [halves, tasks, entries, history, life] = await Promise.all([
+	const [halves, tasks, entries, history] = await Promise.all([
 		db
 			.selectFrom('die_halves')
 			.selectAll()
@@ -112,14 +112,12 @@ export async function getDieStory(db: DB, die: FoundDie, asOf = nowIso()) {
 			.where('audit_log.die_id', '=', die.id)
 			.orderBy('audit_log.id', 'desc')
 			.limit(30)
-			.execute(),
-		dieLife(db, die, asOf)
+			.execute()
 	]);
 	return {
 		halves,
 		tasks: sortWorstFirst(tasks.map((t) => viewServiceTask(t, die.total_shots, asOf))),
 		entries,
-		history: history.map((h) => ({ ...h, detail: JSON.parse(h.detail) as Record<string, unknown> })),
-		life
+		history: history.map((h) => ({ ...h, detail: JSON.parse(h.detail) as Record<string, unknown> }))
 	};
 }

@@ -222,8 +222,10 @@ export function readExifOrientation(seg) {
 	const order = tiff.toString('latin1', 0, 2);
 	if (order !== 'II' && order !== 'MM') return 1;
 	const little = order === 'II';
-	const u16 = (/** @type {number} */ at) => (little ? tiff.readUInt16LE(at) : tiff.readUInt16BE(at));
-	const u32 = (/** @type {number} */ at) => (little ? tiff.readUInt32LE(at) : tiff.readUInt32BE(at));
+	const u16 = (/** @type {number} */ at) =>
+		little ? tiff.readUInt16LE(at) : tiff.readUInt16BE(at);
+	const u32 = (/** @type {number} */ at) =>
+		little ? tiff.readUInt32LE(at) : tiff.readUInt32BE(at);
 	if (u16(2) !== 42) return 1;
 	const ifd = u32(4);
 	if (ifd + 2 > tiff.length) return 1;
@@ -294,7 +296,8 @@ export function applyOrientation(bitmap, orientation) {
 /** @param {Buffer} data */
 function pixelsAsUint32(data) {
 	// Only whole pixels are moved, so byte order does not matter; alignment does.
-	if (data.byteOffset % 4 === 0) return new Uint32Array(data.buffer, data.byteOffset, data.length / 4);
+	if (data.byteOffset % 4 === 0)
+		return new Uint32Array(data.buffer, data.byteOffset, data.length / 4);
 	return new Uint32Array(Uint8Array.from(data).buffer);
 }
 

@@ -1,20 +1,16 @@
-import { error, fail } from '@sveltejs/kit';
+import { fail } from '@sveltejs/kit';
 import { message, superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
 import { dieStatusSchema } from '$lib/schemas/die';
 import { requireRole } from '$lib/server/auth/guard';
 import { getDb } from '$lib/server/db';
-import { findDie, getDieStory } from '$lib/server/dies/die-detail';
+import { getDieStory } from '$lib/server/dies/die-detail';
+import { loadPlantDie } from '$lib/server/dies/load-die';
 import { changeDieStatus } from '$lib/server/dies/die-write';
 import { DIE_EDITORS, PLANT_ROLES } from '$lib/roles';
 import type { DieStatus } from '$lib/domain';
 import type { Actions, PageServerLoad } from './$types';
 
-async function loadDie(number: string) {
-	const die = await findDie(getDb(), number, { customerId: null });
-	if (!die) error(404, { message: `There is no die ${number}.` });
-	return die;
-}
 
 /** Which states this role may move the die to from where it is. */
 function allowedTargets(role: string, from: DieStatus): DieStatus[] {
@@ -28,13 +24,12 @@ function allowedTargets(role: string, from: DieStatus): DieStatus[] {
 
 export const load: PageServerLoad = async (event) => {
 	const user = requireRole(event, ...PLANT_ROLES);
-	const die = await loadDie(event.params.number);
+	const die = await loadPlantDie(event.params.number);
 	const [story, statusForm] = await Promise.all([
 		getDieStory(getDb(), die),
 		superValidate(zod4(dieStatusSchema))
 	]);
 	return {
-		die,
 		...story,
 		statusForm,
 		statusTargets: allowedTargets(user.role, die.status),
@@ -45,7 +40,7 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	status: async (event) => {
 		const user = requireRole(event, ...PLANT_ROLES);
-		const die = await loadDie(event.params.number);
+		const die = await loadPlantDie(event.params.number);
 		const form = await superValidate(event.request, zod4(dieStatusSchema));
 		if (!form.valid) return fail(400, { statusForm: form });
 		const to = form.data.status as DieStatus;

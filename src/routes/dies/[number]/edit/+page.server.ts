@@ -1,24 +1,19 @@
-import { error, fail, redirect } from '@sveltejs/kit';
+import { fail, redirect } from '@sveltejs/kit';
 import { setError, superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
 import { dieFormSchema } from '$lib/schemas/die';
 import { requireRole } from '$lib/server/auth/guard';
 import { getDb } from '$lib/server/db';
-import { findDie } from '$lib/server/dies/die-detail';
+import { loadPlantDie } from '$lib/server/dies/load-die';
 import { dieFormChoices } from '$lib/server/dies/die-form-data';
 import { updateDie } from '$lib/server/dies/die-write';
 import { DIE_EDITORS } from '$lib/roles';
 import type { Actions, PageServerLoad } from './$types';
 
-async function loadDie(number: string) {
-	const die = await findDie(getDb(), number, { customerId: null });
-	if (!die) error(404, { message: `There is no die ${number}.` });
-	return die;
-}
 
 export const load: PageServerLoad = async (event) => {
 	requireRole(event, ...DIE_EDITORS);
-	const die = await loadDie(event.params.number);
+	const die = await loadPlantDie(event.params.number);
 	const [form, choices] = await Promise.all([
 		superValidate(
 			{
@@ -45,7 +40,7 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	default: async (event) => {
 		const user = requireRole(event, ...DIE_EDITORS);
-		const die = await loadDie(event.params.number);
+		const die = await loadPlantDie(event.params.number);
 		const form = await superValidate(event.request, zod4(dieFormSchema));
 		if (!form.valid) return fail(400, { form });
 		const result = await updateDie(getDb(), die.id, form.data, user.id);

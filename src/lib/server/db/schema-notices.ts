@@ -1,0 +1,3 @@
+// Tables of the notices area; added to the Database interface in schema.ts.
+// eslint-disable-next-line @typescript-eslint/no-empty-object-type
+export interface NoticesTables {}
