@@ -4,6 +4,7 @@ import * as insertReferenceAlloys from './2026_12_01_2210_insert_reference_alloy
 import * as createToolroom from './2026_12_01_2300_create_toolroom';
 import * as createSchedule from './2026_12_01_2310_create_schedule';
 import * as createNotices from './2026_12_01_2320_create_notices';
+import * as addShotIndexes from './2026_12_01_2330_add_shot_indexes';
 
 // Every migration is listed here by name so the same list works in the built app, in Vitest and
 // in tsx scripts (none of which share a way to glob the folder). Add new ones at the end.
@@ -12,5 +13,6 @@ export const migrations: Record<string, Migration> = {
 	'2026_12_01_2210_insert_reference_alloys': insertReferenceAlloys,
 	'2026_12_01_2300_create_toolroom': createToolroom,
 	'2026_12_01_2310_create_schedule': createSchedule,
-	'2026_12_01_2320_create_notices': createNotices
+	'2026_12_01_2320_create_notices': createNotices,
+	'2026_12_01_2330_add_shot_indexes': addShotIndexes
 };

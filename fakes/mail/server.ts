@@ -237,6 +237,10 @@ export async function startFakeMail({
 			send(res, 405, 'Method not allowed');
 		};
 
+		if (pathname === '/favicon.ico') {
+			res.writeHead(204).end(); // keeps the browser console free of a 404 on every page
+			return;
+		}
 		if (pathname === '/') {
 			return method === 'GET' ? html(res, 200, inboxPage(stored)) : allow('GET');
 		}

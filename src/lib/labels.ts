@@ -48,3 +48,36 @@ export const PROCESS_LABELS: Record<DieProcess, string> = {
 };
 
 export const HALF_LABELS = { cover: 'Cover half', ejector: 'Ejector half' } as const;
+
+// Toolroom: jobs, surface inspections, cooling.
+export const JOB_STATUS_LABELS = {
+	open: 'Open',
+	in_progress: 'In progress',
+	waiting_parts: 'Waiting for parts',
+	done: 'Done',
+	cancelled: 'Cancelled'
+} as const;
+export type JobStatusName = keyof typeof JOB_STATUS_LABELS;
+export const JOB_KIND_LABELS: Record<string, string> = {
+	repair: 'Repair',
+	modification: 'Modification',
+	...SERVICE_KIND_LABELS
+};
+export const jobKindLabel = (kind: string) => JOB_KIND_LABELS[kind] ?? kind;
+export const JOB_HALF_LABELS = {
+	cover: 'Cover half',
+	ejector: 'Ejector half',
+	both: 'Both halves'
+} as const;
+export const COOLANT_LABELS = { water: 'Water', oil: 'Oil' } as const;
+export const LEAK_TEST_LABELS = { pass: 'Pass — no leak', fail: 'Fail — leaks' } as const;
+export const FLOW_REGIME_LABELS = {
+	laminar: 'Laminar',
+	transitional: 'Transitional',
+	turbulent: 'Turbulent'
+} as const;
+export const HEAT_BALANCE_LABELS = {
+	cooling_short: 'Cooling short',
+	balanced: 'Balanced',
+	ample: 'Cooling to spare'
+} as const;

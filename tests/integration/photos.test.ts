@@ -129,7 +129,7 @@ async function photoError(promise: Promise<unknown>): Promise<PhotoError> {
 	return error as PhotoError;
 }
 
-function rgbAt(image: InstanceType<typeof Jimp>, x: number, y: number) {
+function rgbAt(image: { getPixelColor(x: number, y: number): number }, x: number, y: number) {
 	const color = image.getPixelColor(x, y);
 	return { r: color >>> 24, g: (color >>> 16) & 0xff, b: (color >>> 8) & 0xff };
 }

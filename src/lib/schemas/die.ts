@@ -1,12 +1,9 @@
 import { z } from 'zod';
 
+// Optional text stays a string ('' when empty) so the form can round-trip it; the server stores
+// empty text as null.
 const optionalText = (max: number) =>
-	z
-		.string()
-		.trim()
-		.max(max, `Keep it under ${max} characters.`)
-		.optional()
-		.transform((v) => (v ? v : null));
+	z.string().trim().max(max, `Keep it under ${max} characters.`).default('');
 
 export const dieNumberPattern = /^[A-Z0-9][A-Z0-9-]{1,19}$/;
 

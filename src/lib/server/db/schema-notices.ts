@@ -1,3 +1,72 @@
 // Tables of the notices area; added to the Database interface in schema.ts.
-// eslint-disable-next-line @typescript-eslint/no-empty-object-type
-export interface NoticesTables {}
+//
+// The outbox has two levels so that one item ("D-0107 stress relief is due") is written once,
+// whatever the number of runs or processes, while each recipient's delivery of it keeps its own
+// state: `notices` holds the item under a unique key per (die, task, cycle, state), and
+// `notice_deliveries` holds one row per (item, recipient) that the digest sender claims, sends and
+// marks sent. `notice_digests` records each e-mail that the relay accepted.
+import type { Generated, Selectable } from 'kysely';
+
+/** What a notice is about. */
+export type NoticeKind = 'service' | 'life' | 'job_completed';
+
+/**
+ * How bad it is, the digest's grouping, worst first: service task states, die life thresholds,
+ * and "ready again" after a toolroom job was closed.
+ */
+export type NoticeLevel = 'overdue' | 'due' | 'coming_up' | 'life_100' | 'life_90' | 'ready_again';
+
+/** Delivery state of one item to one recipient. */
+export type DeliveryState = 'pending' | 'sent' | 'failed';
+
+export interface NoticesTable {
+	id: Generated<number>;
+	/** e.g. `svc:{taskId}:{lastDoneAt}:{state}`, `life:{dieId}:{expectedLife}:{90|100}`. */
+	notice_key: string;
+	kind: NoticeKind;
+	level: NoticeLevel;
+	die_id: number;
+	/** One line for lists and subjects, e.g. "D-0107 · Stress relief · Due". */
+	subject: string;
+	/** JSON text: what the e-mail shows, frozen when the item was written. */
+	payload: string;
+	created_at: string;
+}
+
+export interface NoticeDeliveriesTable {
+	id: Generated<number>;
+	notice_id: number;
+	/** E-mail address the item goes to. */
+	recipient: string;
+	/** The user behind the address; null for a plain address (e.g. a customer contact). */
+	user_id: string | null;
+	state: Generated<DeliveryState>;
+	attempts: Generated<number>;
+	last_error: string | null;
+	/** Not claimed before this instant: back-off after a failure, or a sender's lease. */
+	next_attempt_at: string;
+	/** The digest that claimed the row (while sending) or carried it (once sent). */
+	digest_id: string | null;
+	created_at: string;
+	sent_at: string | null;
+}
+
+export interface NoticeDigestsTable {
+	/** Random id, also the claim on the rows while the e-mail is on its way. */
+	id: string;
+	recipient: string;
+	subject: string;
+	item_count: number;
+	message_id: string | null;
+	sent_at: string;
+}
+
+export interface NoticesTables {
+	notices: NoticesTable;
+	notice_deliveries: NoticeDeliveriesTable;
+	notice_digests: NoticeDigestsTable;
+}
+
+export type Notice = Selectable<NoticesTable>;
+export type NoticeDelivery = Selectable<NoticeDeliveriesTable>;
+export type NoticeDigest = Selectable<NoticeDigestsTable>;

@@ -1,3 +1,35 @@
+import type { Generated, Insertable, Selectable } from 'kysely';
+
+/**
+ * A press booking: one die on one press for a time window, for one order. A booking plans; it
+ * writes nothing to the shot ledger when it ends (shots come from the ledger alone).
+ */
+export interface PressBookingsTable {
+	id: Generated<number>;
+	die_id: number;
+	machine_id: number;
+	/** ISO-8601 UTC; the booking covers [starts_at, ends_at). */
+	starts_at: string;
+	ends_at: string;
+	order_ref: string;
+	/** Good parts ordered. */
+	parts: number;
+	/** Expected scrap, percent of parts cast. */
+	scrap_pct: Generated<number>;
+	/** Planned press rate, shots per hour. */
+	shots_per_hour: number;
+	created_by: string | null;
+	created_at: string;
+	cancelled_at: string | null;
+	cancelled_by: string | null;
+	cancel_reason: string | null;
+	notes: string | null;
+}
+
 // Tables of the schedule area; added to the Database interface in schema.ts.
-// eslint-disable-next-line @typescript-eslint/no-empty-object-type
-export interface ScheduleTables {}
+export interface ScheduleTables {
+	press_bookings: PressBookingsTable;
+}
+
+export type PressBooking = Selectable<PressBookingsTable>;
+export type NewPressBooking = Insertable<PressBookingsTable>;

@@ -1,3 +1,148 @@
 // Tables of the toolroom area; added to the Database interface in schema.ts.
-// eslint-disable-next-line @typescript-eslint/no-empty-object-type
-export interface ToolroomTables {}
+// Dates are ISO-8601 text in UTC; flags are 0/1 integers (see schema.ts).
+import type { Generated, Insertable, Selectable } from 'kysely';
+
+/** Where a toolroom job stands; done and cancelled are final. */
+export type JobStatus = 'open' | 'in_progress' | 'waiting_parts' | 'done' | 'cancelled';
+/** Which half the work is on. */
+export type JobHalf = 'cover' | 'ejector' | 'both';
+/** Where the job was opened from. */
+export type JobSource = 'die' | 'service_task' | 'notice';
+export type Coolant = 'water' | 'oil';
+export type LeakTest = 'pass' | 'fail';
+
+export interface ToolroomJobsTable {
+	id: Generated<number>;
+	/** `TJ-00042`, from the row id, written in the same transaction as the row. */
+	number: string;
+	die_id: number;
+	/** 'repair', 'modification' or a service task kind (stress_relief, surface_inspection, …). */
+	kind: string;
+	half: JobHalf;
+	zone: string | null;
+	description: string;
+	/** Toolmaker (or lead) the job is assigned to. */
+	assigned_to: string | null;
+	status: Generated<JobStatus>;
+	source: JobSource;
+	/** The service notice the job was opened from (notices.id), when source = 'notice'. */
+	notice_id: number | null;
+	/** 1 while the job keeps the die `in_toolroom`; the lead may open a job without that. */
+	die_to_toolroom: Generated<number>;
+	die_shots_at_open: number;
+	opened_by: string | null;
+	opened_at: string;
+	updated_at: string;
+	closed_at: string | null;
+	closed_by: string | null;
+	die_shots_at_close: number | null;
+	findings: string | null;
+	work_done: string | null;
+	hours: number | null;
+	parts_used: string | null;
+	billable_to_owner: Generated<number>;
+	/** Text written for the die's owner; shown in the owner portal only when summary_shared = 1. */
+	owner_summary: string | null;
+	summary_shared: Generated<number>;
+	cancel_reason: string | null;
+}
+
+/** Service tasks a job carries out; marked done at the die's total when the job closes. */
+export interface JobServiceTasksTable {
+	job_id: number;
+	service_task_id: number;
+	/** Die total at which the task was recorded done (null until the job closes). */
+	done_at_shots: number | null;
+}
+
+export interface PhotosTable {
+	id: Generated<number>;
+	/** Random id used in URLs, so photo addresses cannot be guessed by counting. */
+	public_id: string;
+	/** Exactly one of job_id / inspection_id is set. */
+	job_id: number | null;
+	inspection_id: number | null;
+	die_id: number;
+	/** Paths relative to UPLOAD_DIR, random names (never the uploader's file name). */
+	full_file: string;
+	thumb_file: string;
+	/** Of the stored full-size JPEG, px. */
+	width: number;
+	height: number;
+	/** sha256 hex of the stored full-size JPEG. */
+	sha256: string;
+	/** Size of the stored full-size JPEG. */
+	bytes: number;
+	thumb_bytes: number;
+	source_type: 'jpeg' | 'png';
+	uploaded_by: string | null;
+	uploaded_at: string;
+	caption: string | null;
+	shared_with_owner: Generated<number>;
+}
+
+export interface SurfaceInspectionsTable {
+	id: Generated<number>;
+	die_id: number;
+	/** The job the inspection was made under, if any. */
+	job_id: number | null;
+	half: 'cover' | 'ejector';
+	/** Free text, e.g. "gate side, cavity 2"; trends group by half + zone. */
+	zone: string;
+	shots_at: number;
+	/** Castellan surface grade 0–4 (SURFACE_GRADES in calc/crack-trend.ts). */
+	grade: number;
+	longest_crack_mm: number | null;
+	soldering: Generated<number>;
+	erosion: Generated<number>;
+	notes: string | null;
+	inspected_by: string | null;
+	inspected_at: string;
+}
+
+export interface CoolingCircuitsTable {
+	id: Generated<number>;
+	die_id: number;
+	half: 'cover' | 'ejector';
+	label: string;
+	coolant: Coolant;
+	channel_diameter_mm: number;
+	nominal_flow_lpm: number;
+	active: Generated<number>;
+	created_by: string | null;
+	created_at: string;
+}
+
+export interface CoolingChecksTable {
+	id: Generated<number>;
+	circuit_id: number;
+	die_id: number;
+	checked_at: string;
+	checked_by: string | null;
+	measured_flow_lpm: number;
+	inlet_c: number;
+	outlet_c: number;
+	supply_pressure_bar: number | null;
+	leak_test: LeakTest;
+	notes: string | null;
+	/** Oil circuits only: the oil's data-sheet properties at working temperature. */
+	oil_density_kg_m3: number | null;
+	oil_viscosity_mpa_s: number | null;
+	oil_specific_heat_j_kgk: number | null;
+}
+
+export interface ToolroomTables {
+	toolroom_jobs: ToolroomJobsTable;
+	job_service_tasks: JobServiceTasksTable;
+	photos: PhotosTable;
+	surface_inspections: SurfaceInspectionsTable;
+	cooling_circuits: CoolingCircuitsTable;
+	cooling_checks: CoolingChecksTable;
+}
+
+export type ToolroomJob = Selectable<ToolroomJobsTable>;
+export type Photo = Selectable<PhotosTable>;
+export type NewPhoto = Insertable<PhotosTable>;
+export type SurfaceInspection = Selectable<SurfaceInspectionsTable>;
+export type CoolingCircuit = Selectable<CoolingCircuitsTable>;
+export type CoolingCheck = Selectable<CoolingChecksTable>;

@@ -34,15 +34,15 @@ export async function createDie(db: DB, form: DieForm, actorId: string, at = now
 			.values({
 				number: form.number,
 				part_name: form.partName,
-				part_number: form.partNumber,
+				part_number: form.partNumber || null,
 				customer_id: form.customerId,
 				alloy_id: form.alloyId,
 				process: form.process,
 				cavities: form.cavities,
 				projected_area_cm2: form.projectedAreaCm2,
 				has_slides: form.hasSlides ? 1 : 0,
-				location: form.location,
-				notes: form.notes,
+				location: form.location || null,
+				notes: form.notes || null,
 				expected_life_shots: form.expectedLifeShots ?? null,
 				created_at: at,
 				updated_at: at
@@ -91,15 +91,15 @@ export async function updateDie(db: DB, dieId: number, form: DieForm, actorId: s
 			.set({
 				number: form.number,
 				part_name: form.partName,
-				part_number: form.partNumber,
+				part_number: form.partNumber || null,
 				customer_id: form.customerId,
 				alloy_id: form.alloyId,
 				process: form.process,
 				cavities: form.cavities,
 				projected_area_cm2: form.projectedAreaCm2,
 				has_slides: form.hasSlides ? 1 : 0,
-				location: form.location,
-				notes: form.notes,
+				location: form.location || null,
+				notes: form.notes || null,
 				expected_life_shots: form.expectedLifeShots ?? null,
 				updated_at: at
 			})

@@ -133,13 +133,12 @@ export function inspectImage(input) {
 	if (header.width === 0 || header.height === 0) {
 		throw new PhotoError('corrupt', 'The image header gives a width or height of zero.');
 	}
-	if (header.width * header.height > MAX_PHOTO_PIXELS) {
+	const pixels = header.width * header.height;
+	if (pixels > MAX_PHOTO_PIXELS) {
+		const size = `${header.width} × ${header.height} px (${(pixels / 1e6).toFixed(1)} MP)`;
 		throw new PhotoError(
 			'too_many_pixels',
-			`The image is ${header.width} × ${header.height} px (${(
-				(header.width * header.height) /
-				1e6
-			).toFixed(1)} MP); photos may have at most ${MAX_PHOTO_PIXELS / 1e6} MP.`
+			`The image is ${size}; photos may have at most ${MAX_PHOTO_PIXELS / 1e6} MP.`
 		);
 	}
 	return header;
@@ -216,7 +215,7 @@ function readJpegHeader(buf) {
  * @param {Buffer} seg APP1 payload after the length field
  * @returns {number}
  */
-export function readExifOrientation(seg) {
+function readExifOrientation(seg) {
 	if (seg.length < 14 || seg.toString('latin1', 0, 6) !== 'Exif\0\0') return 0;
 	const tiff = seg.subarray(6);
 	const order = tiff.toString('latin1', 0, 2);
@@ -271,7 +270,7 @@ const ORIENTATION_STEPS = {
  * @param {number} orientation 1–8
  * @returns {Bitmap}
  */
-export function applyOrientation(bitmap, orientation) {
+function applyOrientation(bitmap, orientation) {
 	const steps = ORIENTATION_STEPS[orientation];
 	if (!steps) return bitmap;
 	const [sxPerX, sxPerY, syPerX, syPerY] = steps;
@@ -296,8 +295,9 @@ export function applyOrientation(bitmap, orientation) {
 /** @param {Buffer} data */
 function pixelsAsUint32(data) {
 	// Only whole pixels are moved, so byte order does not matter; alignment does.
-	if (data.byteOffset % 4 === 0)
+	if (data.byteOffset % 4 === 0) {
 		return new Uint32Array(data.buffer, data.byteOffset, data.length / 4);
+	}
 	return new Uint32Array(Uint8Array.from(data).buffer);
 }
 

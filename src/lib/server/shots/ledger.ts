@@ -15,10 +15,12 @@ export interface ShotInput {
 	note?: string | null;
 }
 
+/** Why a row was refused; `code` lets callers pick a status (an unknown die is a 404). */
 export interface ShotIssue {
 	index: number;
 	field: string;
 	message: string;
+	code?: 'unknown_die';
 }
 
 export interface LedgerActor {
@@ -35,6 +37,8 @@ export interface RecordOptions {
 	dryRun?: boolean;
 }
 
+export type RowOutcome = 'counted' | 'duplicate';
+
 export type RecordResult =
 	| {
 			ok: true;
@@ -42,7 +46,7 @@ export type RecordResult =
 			duplicates: number;
 			dies: { die: string; totalShots: number }[];
 			/** Per input row: counted, or skipped as an already-seen key. */
-			outcome: ('counted' | 'duplicate')[];
+			outcome: RowOutcome[];
 	  }
 	| { ok: false; issues: ShotIssue[] };
 
@@ -55,20 +59,39 @@ interface DieRow {
 	family: AlloyFamily;
 	total_shots: number;
 	last_counted_at: string | null;
+	min_half_shots: number | null;
 }
 
 const MAX_FUTURE_MS = 24 * 3_600_000;
-const MAX_BATCH = 5000;
+export const MAX_BATCH = 5000;
+/** No die makes this many shots in its life; a bigger single entry is a typing error. */
+export const MAX_SHOTS_PER_ENTRY = 10_000_000;
+const MAX_NOTE = 500;
+const MAX_KEY = 200;
+/** Counts dated before this are typing errors (a two-digit year, a swapped field). */
+const EARLIEST = '2000-01-01T00:00:00.000Z';
 
 function statements(raw: SQLite.Database) {
 	return {
 		die: raw.prepare<[string], DieRow>(
 			`select dies.id, dies.number, dies.status, dies.customer_id, dies.process, alloys.family,
-			        dies.total_shots, dies.last_counted_at
+			        dies.total_shots, dies.last_counted_at,
+			        (select min(h.shots) from die_halves h where h.die_id = dies.id and h.active = 1)
+			          as min_half_shots
 			   from dies join alloys on alloys.id = dies.alloy_id where dies.number = ?`
 		),
-		machine: raw.prepare<[string], { id: number }>(`select id from machines where name = ? collate nocase`),
-		keyExists: raw.prepare<[string], { one: number }>(`select 1 as one from shot_entries where idem_key = ?`),
+		machine: raw.prepare<[string], { id: number }>(
+			`select id from machines where name = ? collate nocase`
+		),
+		keyOwner: raw.prepare<[string], { die_id: number }>(
+			`select die_id from shot_entries where idem_key = ?`
+		),
+		// Index seek on (die_id, counted_at), walking back past corrections (they are not readings).
+		previousReading: raw.prepare<[number, string], { counted_at: string }>(
+			`select counted_at from shot_entries
+			  where die_id = ? and counted_at < ? and source <> 'correction'
+			  order by counted_at desc limit 1`
+		),
 		insert: raw.prepare(
 			`insert into shot_entries (die_id, machine_id, counted_at, shots, counter_start, counter_end,
 			   source, idem_key, entered_by, token_id, note, created_at)
@@ -81,7 +104,9 @@ function statements(raw: SQLite.Database) {
 		),
 		dieTotal: raw.prepare(
 			`update dies set total_shots = total_shots + ?,
-			   last_counted_at = max(coalesce(last_counted_at, ''), ?), updated_at = ? where id = ?`
+			   last_counted_at = case when ? is null then last_counted_at
+			     else max(coalesce(last_counted_at, ''), ?) end,
+			   updated_at = ? where id = ?`
 		),
 		halves: raw.prepare(`update die_halves set shots = shots + ? where die_id = ? and active = 1`),
 		audit: raw.prepare(
@@ -96,9 +121,17 @@ function prepared(raw: SQLite.Database) {
 	return s;
 }
 
-function parseInstant(value: string | undefined, fallback: string): string | null {
-	if (value === undefined || value === '') return fallback;
-	const ms = Date.parse(value);
+const LOCAL_DATE_TIME = /^\d{4}-\d{2}-\d{2}[T ]\d{2}:\d{2}(:\d{2}(\.\d{1,9})?)?$/;
+
+/**
+ * An instant as stored (ISO-8601 UTC), or null when the text is not a date and time. A time
+ * without an offset is read as UTC — the one zone Castellan shows — whatever the server's zone.
+ */
+export function normalizeInstant(value: string): string | null {
+	let text = value.trim();
+	if (LOCAL_DATE_TIME.test(text)) text = text.replace(' ', 'T') + 'Z';
+	if (!/^\d{4}-\d{2}-\d{2}/.test(text)) return null;
+	const ms = Date.parse(text);
 	return Number.isNaN(ms) ? null : new Date(ms).toISOString();
 }
 
@@ -107,60 +140,133 @@ interface CheckedRow {
 	die: DieRow;
 	machineId: number | null;
 	countedAt: string;
+	key: string | null;
+	duplicate: boolean;
 	input: ShotInput;
 }
 
+/** Sorted insert, so "latest reading before t" within a batch is a binary search. */
+function insertSorted(list: string[], value: string) {
+	let lo = 0;
+	let hi = list.length;
+	while (lo < hi) {
+		const mid = (lo + hi) >> 1;
+		if (list[mid] < value) lo = mid + 1;
+		else hi = mid;
+	}
+	list.splice(lo, 0, value);
+}
+function latestBefore(list: string[] | undefined, value: string): string | null {
+	if (!list?.length) return null;
+	let lo = 0;
+	let hi = list.length;
+	while (lo < hi) {
+		const mid = (lo + hi) >> 1;
+		if (list[mid] < value) lo = mid + 1;
+		else hi = mid;
+	}
+	return lo > 0 ? list[lo - 1] : null;
+}
+
+const isCount = (v: unknown): v is number => Number.isSafeInteger(v) && (v as number) >= 0;
+const shortTime = (iso: string) => `${iso.slice(0, 16).replace('T', ' ')} UTC`;
+
 /**
  * Checks every row against the register as it is now (inside the write transaction), so the
- * answer and the write agree. Returns per-row issues; an empty list means all rows can go in.
+ * answer and the write agree. A key already in the ledger for the same die marks the row a
+ * duplicate and skips the checks that depend on the die's present state, so a retried post is
+ * acknowledged even after the die moved on. Returns one issue per refused row.
  */
 function checkRows(
 	raw: SQLite.Database,
 	inputs: ShotInput[],
 	actor: LedgerActor,
-	opts: Required<Pick<RecordOptions, 'source' | 'now'>>
+	opts: { source: ShotSource; now: string }
 ): { issues: ShotIssue[]; rows: CheckedRow[] } {
 	const st = prepared(raw);
 	const issues: ShotIssue[] = [];
 	const rows: CheckedRow[] = [];
 	const dies = new Map<string, DieRow | undefined>();
 	const machines = new Map<string, number | undefined>();
-	// Running state per die within this batch, for plausibility and negative-total checks.
-	const lastAt = new Map<number, string | null>();
+	const batchKeys = new Set<string>();
+	// Running state per die within this batch: readings accepted so far and the running totals.
+	const readings = new Map<number, string[]>();
 	const runningTotal = new Map<number, number>();
+	const runningHalf = new Map<number, number | null>();
 	const nowMs = Date.parse(opts.now);
 	const correction = opts.source === 'correction';
 
 	inputs.forEach((input, index) => {
-		const issue = (field: string, message: string) => issues.push({ index, field, message });
-		const number = String(input.die ?? '').trim().toUpperCase();
-		if (!dies.has(number)) dies.set(number, st.die.get(number));
+		const issue = (field: string, message: string, code?: ShotIssue['code']) =>
+			issues.push(code ? { index, field, message, code } : { index, field, message });
+		if (input === null || typeof input !== 'object') return issue('entry', 'Not an entry.');
+		const number = String(input.die ?? '')
+			.trim()
+			.toUpperCase();
+		if (!dies.has(number)) dies.set(number, number ? st.die.get(number) : undefined);
 		const die = dies.get(number);
+		// Another owner's die is answered exactly like a missing one.
 		if (!die || (actor.customerId !== null && die.customer_id !== actor.customerId)) {
-			return issue('die', `There is no die ${number || '(blank)'}.`);
+			return issue('die', `There is no die ${number || '(blank)'}.`, 'unknown_die');
 		}
-		if (die.status === 'retired') return issue('die', `Die ${die.number} is retired and takes no more shots.`);
+
 		const shots = input.shots;
 		if (!Number.isSafeInteger(shots)) return issue('shots', 'Shots must be a whole number.');
+		const { counterStart, counterEnd } = input;
+		if (counterStart != null || counterEnd != null) {
+			if (counterStart == null || counterEnd == null) {
+				return issue(
+					counterStart == null ? 'counterStart' : 'counterEnd',
+					'Give both counter readings, or a shot count instead.'
+				);
+			}
+			if (!isCount(counterStart)) {
+				return issue('counterStart', 'The counter start must be a whole number, 0 or more.');
+			}
+			if (!isCount(counterEnd)) {
+				return issue('counterEnd', 'The counter end must be a whole number, 0 or more.');
+			}
+			if (counterEnd < counterStart) {
+				return issue('counterEnd', 'The counter end is below the counter start.');
+			}
+			if (counterEnd === counterStart && !correction) {
+				return issue('counterEnd', 'The counter did not move (end equals start): nothing to count.');
+			}
+			if (shots !== counterEnd - counterStart) {
+				return issue(
+					'shots',
+					`Shots (${shots}) must equal counter end minus counter start (${counterEnd - counterStart}).`
+				);
+			}
+		}
 		if (correction) {
 			if (shots === 0) return issue('shots', 'A correction must change the count (not 0).');
-			if (!input.note?.trim()) return issue('note', 'A correction needs a reason.');
 		} else if (shots <= 0) {
 			return issue('shots', 'Shots must be a positive whole number.');
 		}
-		if (input.counterStart != null || input.counterEnd != null) {
-			if (input.counterStart == null || input.counterEnd == null) {
-				return issue('counterEnd', 'Give both counter readings, or a shot count instead.');
-			}
-			if (input.counterEnd < input.counterStart) {
-				return issue('counterEnd', 'The counter end is below the counter start.');
-			}
+		if (Math.abs(shots) > MAX_SHOTS_PER_ENTRY) {
+			return issue(
+				'shots',
+				`${shots} shots in one entry is not plausible (at most ${MAX_SHOTS_PER_ENTRY}).`
+			);
 		}
-		const countedAt = parseInstant(input.countedAt, opts.now);
-		if (!countedAt) return issue('countedAt', 'Counted-at is not a date and time.');
+		const note = input.note?.trim() ?? '';
+		if (correction && !note) return issue('note', 'A correction needs a reason.');
+		if (note.length > MAX_NOTE) return issue('note', `Keep the note under ${MAX_NOTE} characters.`);
+
+		let countedAt = opts.now;
+		if (input.countedAt !== undefined && input.countedAt !== null && input.countedAt !== '') {
+			const parsed = typeof input.countedAt === 'string' ? normalizeInstant(input.countedAt) : null;
+			if (!parsed) {
+				return issue('countedAt', 'Counted-at is not a date and time (use 2026-03-01T14:30:00Z).');
+			}
+			countedAt = parsed;
+		}
 		if (Date.parse(countedAt) - nowMs > MAX_FUTURE_MS) {
 			return issue('countedAt', 'Counted-at is more than a day in the future.');
 		}
+		if (countedAt < EARLIEST) return issue('countedAt', 'Counted-at is before the year 2000.');
+
 		let machineId: number | null = null;
 		const machineName = input.machine?.trim();
 		if (machineName) {
@@ -169,36 +275,101 @@ function checkRows(
 			if (id === undefined) return issue('machine', `There is no press called ${machineName}.`);
 			machineId = id;
 		}
-		const total = runningTotal.get(die.id) ?? die.total_shots;
-		if (total + shots < 0) {
-			return issue('shots', `The correction would take die ${die.number} below zero shots (now ${total}).`);
+
+		const key = input.key?.trim() || null;
+		if (key !== null) {
+			if (key.length > MAX_KEY) return issue('key', `Keep the key under ${MAX_KEY} characters.`);
+			if (batchKeys.has(key)) {
+				return issue('key', `The key "${key}" appears twice in this batch; give each entry its own.`);
+			}
+			batchKeys.add(key);
+			const owner = st.keyOwner.get(key);
+			if (owner) {
+				if (owner.die_id !== die.id) {
+					return issue('key', `The key "${key}" was already used for another die's count.`);
+				}
+				rows.push({ index, die, machineId, countedAt, key, duplicate: true, input });
+				return;
+			}
 		}
+
+		if (die.status === 'retired') {
+			return issue('die', `Die ${die.number} is retired and takes no more shots.`);
+		}
+		const total = runningTotal.get(die.id) ?? die.total_shots;
+		const halfLow = runningHalf.has(die.id) ? runningHalf.get(die.id)! : die.min_half_shots;
+		if (total + shots < 0) {
+			return issue(
+				'shots',
+				`The correction would take die ${die.number} below zero shots (it has ${total}).`
+			);
+		}
+		if (halfLow !== null && halfLow + shots < 0) {
+			return issue(
+				'shots',
+				`The correction would take a half of die ${die.number} below zero shots (the newer half has ${halfLow}).`
+			);
+		}
+
 		if (!correction) {
-			const previous = lastAt.has(die.id) ? lastAt.get(die.id)! : die.last_counted_at;
-			if (previous && countedAt > previous) {
+			const inBatch = latestBefore(readings.get(die.id), countedAt);
+			let inLedger: string | null = null;
+			if (die.last_counted_at !== null) {
+				inLedger =
+					countedAt > die.last_counted_at
+						? die.last_counted_at
+						: (st.previousReading.get(die.id, countedAt)?.counted_at ?? null);
+			}
+			const previous = inBatch && (!inLedger || inBatch > inLedger) ? inBatch : inLedger;
+			if (previous) {
 				const perHour = maxShotsPerHour(die.process, die.family);
 				const limit = maxShotsIn(Date.parse(countedAt) - Date.parse(previous), perHour);
 				if (shots > limit) {
 					return issue(
 						'shots',
-						`${shots} shots since the last count at ${previous.slice(0, 16).replace('T', ' ')} is more than a press can make (at most ${limit} at ${perHour} shots/h).`
+						`${shots} shots between the previous count (${shortTime(previous)}) and this one (${shortTime(countedAt)}) is more than a press can make: at most ${limit} at ${perHour} shots/h.`
 					);
 				}
 			}
-			if (!previous || countedAt > previous) lastAt.set(die.id, countedAt);
+			let list = readings.get(die.id);
+			if (!list) readings.set(die.id, (list = []));
+			insertSorted(list, countedAt);
 		}
 		runningTotal.set(die.id, total + shots);
-		rows.push({ index, die, machineId, countedAt, input });
+		if (halfLow !== null) runningHalf.set(die.id, halfLow + shots);
+		rows.push({ index, die, machineId, countedAt, key, duplicate: false, input });
 	});
 	return { issues, rows };
 }
 
-class DryRunRollback extends Error {}
+/** The answer for rows that passed every check; `added` holds the shots per die id. */
+function summarize(rows: CheckedRow[], total: number, added: Map<number, number>): RecordResult {
+	const outcome: RowOutcome[] = new Array(total);
+	const touched = new Map<number, DieRow>();
+	let accepted = 0;
+	for (const row of rows) {
+		outcome[row.index] = row.duplicate ? 'duplicate' : 'counted';
+		if (!row.duplicate) accepted++;
+		// Dies named only by duplicates still report their total.
+		touched.set(row.die.id, row.die);
+	}
+	return {
+		ok: true,
+		accepted,
+		duplicates: rows.length - accepted,
+		dies: [...touched.values()].map((d) => ({
+			die: d.number,
+			totalShots: d.total_shots + (added.get(d.id) ?? 0)
+		})),
+		outcome
+	};
+}
 
 /**
  * Counts shots into the ledger: every row is checked, then all rows are written with die, daily
  * and active-half totals in one IMMEDIATE transaction — or nothing is written. A key seen before
- * (in the ledger or earlier in the batch) is acknowledged and not counted again.
+ * for the same die is acknowledged and not counted again. Totals are applied once per die (and
+ * per die-day) per batch, which keeps a gateway's batch of readings cheap.
  */
 export async function recordShots(
 	db: DB,
@@ -206,29 +377,39 @@ export async function recordShots(
 	actor: LedgerActor,
 	options: RecordOptions
 ): Promise<RecordResult> {
-	if (inputs.length === 0) return { ok: false, issues: [{ index: 0, field: 'shots', message: 'Nothing to count.' }] };
+	if (!Array.isArray(inputs) || inputs.length === 0) {
+		return { ok: false, issues: [{ index: 0, field: 'batch', message: 'Nothing to count.' }] };
+	}
 	if (inputs.length > MAX_BATCH) {
-		return { ok: false, issues: [{ index: MAX_BATCH, field: 'batch', message: `Send at most ${MAX_BATCH} entries at once.` }] };
+		return {
+			ok: false,
+			issues: [
+				{
+					index: MAX_BATCH,
+					field: 'batch',
+					message: `Send at most ${MAX_BATCH} entries at once (this batch has ${inputs.length}).`
+				}
+			]
+		};
 	}
 	const now = options.now ?? new Date().toISOString();
+	const source = options.source;
 	const raw = rawHandle(db);
 	return db.connection().execute(async () => {
 		const run = raw.transaction((): RecordResult => {
-			const { issues, rows } = checkRows(raw, inputs, actor, { source: options.source, now });
+			const { issues, rows } = checkRows(raw, inputs, actor, { source, now });
 			if (issues.length) return { ok: false, issues };
-			const st = prepared(raw);
-			const seenKeys = new Set<string>();
-			const outcome: ('counted' | 'duplicate')[] = new Array(inputs.length);
-			const touched = new Map<number, DieRow>();
 			const added = new Map<number, number>();
-			let accepted = 0;
 			for (const row of rows) {
-				const key = row.input.key?.trim() || null;
-				if (key && (seenKeys.has(key) || st.keyExists.get(key))) {
-					outcome[row.index] = 'duplicate';
-					continue;
-				}
-				if (key) seenKeys.add(key);
+				if (!row.duplicate) added.set(row.die.id, (added.get(row.die.id) ?? 0) + row.input.shots);
+			}
+			if (options.dryRun) return summarize(rows, inputs.length, added);
+
+			const st = prepared(raw);
+			const daily = new Map<string, { dieId: number; day: string; shots: number }>();
+			const latest = new Map<number, string>();
+			for (const row of rows) {
+				if (row.duplicate) continue;
 				const shots = row.input.shots;
 				st.insert.run({
 					dieId: row.die.id,
@@ -237,41 +418,43 @@ export async function recordShots(
 					shots,
 					counterStart: row.input.counterStart ?? null,
 					counterEnd: row.input.counterEnd ?? null,
-					source: options.source,
-					key,
+					source,
+					key: row.key,
 					userId: actor.userId,
 					tokenId: actor.tokenId,
 					note: row.input.note?.trim() || null,
 					createdAt: now
 				});
-				st.daily.run(row.die.id, row.countedAt.slice(0, 10), shots);
-				st.dieTotal.run(shots, row.countedAt, now, row.die.id);
-				st.halves.run(shots, row.die.id);
-				if (options.source === 'correction') {
-					st.audit.run(now, actor.userId, actor.tokenId, 'shots.correction', row.die.id, JSON.stringify({ shots, reason: row.input.note }));
+				const day = row.countedAt.slice(0, 10);
+				const dayKey = `${row.die.id}|${day}`;
+				const d = daily.get(dayKey);
+				if (d) d.shots += shots;
+				else daily.set(dayKey, { dieId: row.die.id, day, shots });
+				// A correction is not a reading: it leaves "last counted at" (and so the rate check) alone.
+				if (source !== 'correction') {
+					const prev = latest.get(row.die.id);
+					if (!prev || row.countedAt > prev) latest.set(row.die.id, row.countedAt);
 				}
-				touched.set(row.die.id, row.die);
-				added.set(row.die.id, (added.get(row.die.id) ?? 0) + shots);
-				outcome[row.index] = 'counted';
-				accepted++;
+				if (source === 'correction') {
+					st.audit.run(
+						now,
+						actor.userId,
+						actor.tokenId,
+						'shots.correction',
+						row.die.id,
+						JSON.stringify({ shots, reason: row.input.note?.trim(), countedAt: row.countedAt })
+					);
+				}
 			}
-			// Dies named only by duplicates still report their total.
-			for (const row of rows) touched.set(row.die.id, row.die);
-			const result: RecordResult = {
-				ok: true,
-				accepted,
-				duplicates: rows.length - accepted,
-				dies: [...touched.values()].map((d) => ({ die: d.number, totalShots: d.total_shots + (added.get(d.id) ?? 0) })),
-				outcome
-			};
-			if (options.dryRun) throw Object.assign(new DryRunRollback(), { result });
-			return result;
+			for (const d of daily.values()) st.daily.run(d.dieId, d.day, d.shots);
+			for (const [dieId, shots] of added) {
+				const at = latest.get(dieId) ?? null;
+				st.dieTotal.run(shots, at, at, now, dieId);
+				st.halves.run(shots, dieId);
+			}
+			return summarize(rows, inputs.length, added);
 		});
-		try {
-			return run.immediate();
-		} catch (err) {
-			if (err instanceof DryRunRollback) return (err as DryRunRollback & { result: RecordResult }).result;
-			throw err;
-		}
+		// A dry run only reads; it needs no write lock.
+		return options.dryRun ? run.deferred() : run.immediate();
 	});
 }

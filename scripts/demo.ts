@@ -1,0 +1,71 @@
+// One command for a fresh machine: build if needed, migrate, seed the invented demo plant when the
+// database is empty, start the fake mail server and the app, and print a sign-in for every role.
+import { execSync, spawn } from 'node:child_process';
+import fs from 'node:fs';
+import path from 'node:path';
+import { startFakeMail } from '../fakes/mail/server';
+import { DEMO_PASSWORD, DEMO_PLANT, DEMO_USERS, isEmpty, seedDemo } from './lib/demo-scenario';
+import { databasePath, openMigratedDatabase } from './lib/cli';
+
+const port = process.env.PORT ?? '3000';
+const origin = process.env.ORIGIN ?? `http://localhost:${port}`;
+
+function newestMtime(dir: string): number {
+	let newest = 0;
+	for (const entry of fs.readdirSync(dir, { withFileTypes: true })) {
+		const p = path.join(dir, entry.name);
+		newest = Math.max(newest, entry.isDirectory() ? newestMtime(p) : fs.statSync(p).mtimeMs);
+	}
+	return newest;
+}
+
+const built = fs.existsSync('build/index.js') ? fs.statSync('build/index.js').mtimeMs : 0;
+if (built < Math.max(newestMtime('src'), newestMtime('migrations'))) {
+	console.log('Building Castellan (vite build)…');
+	execSync('npx vite build --logLevel error', { stdio: ['ignore', 'ignore', 'inherit'] });
+}
+
+const db = await openMigratedDatabase();
+if (await isEmpty(db)) {
+	console.log(`Seeding the invented demo plant "${DEMO_PLANT}" into ${databasePath()}…`);
+	const s = await seedDemo(db);
+	console.log(`  ${s.dies} dies, ${s.entries} ledger entries. Demo API token (shots:write, dies:read):\n  ${s.token}`);
+}
+await db.destroy();
+
+let mail: Awaited<ReturnType<typeof startFakeMail>> | null = null;
+try {
+	mail = await startFakeMail();
+} catch (err) {
+	console.warn(`Fake mail server not started (${(err as Error).message}); is one already running?`);
+}
+
+const app = spawn(process.execPath, ['build'], {
+	stdio: 'inherit',
+	env: {
+		...process.env,
+		PORT: port,
+		ORIGIN: origin,
+		DATABASE_PATH: databasePath(),
+		UPLOAD_DIR: process.env.UPLOAD_DIR ?? './data/uploads',
+		SMTP_URL: process.env.SMTP_URL ?? 'smtp://127.0.0.1:2525'
+	}
+});
+
+console.log(`\nCastellan demo: ${origin}`);
+if (mail) console.log(`Fake mail inbox: http://127.0.0.1:${mail.httpPort} (SMTP on 127.0.0.1:${mail.smtpPort})`);
+console.log(`Sign in as any of these, password "${DEMO_PASSWORD}":`);
+for (const u of DEMO_USERS) console.log(`  ${u.role.padEnd(14)} ${u.email}`);
+console.log('Stop with Ctrl+C.\n');
+
+const stop = async () => {
+	app.kill('SIGTERM');
+	await mail?.close();
+	process.exit(0);
+};
+process.on('SIGINT', stop);
+process.on('SIGTERM', stop);
+app.on('exit', async (code) => {
+	await mail?.close();
+	process.exit(code ?? 0);
+});

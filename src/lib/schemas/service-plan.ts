@@ -1,0 +1,91 @@
+import { z } from 'zod';
+import { SERVICE_KINDS } from '../calc/service';
+
+/**
+ * Plausible bounds for a service interval. Below 100 shots a die would live in the toolroom;
+ * above 2 million shots the task would outlast even a zinc die (NADCA FAQ average 500 000 shots).
+ * Five years is the longest calendar interval that still reads as a plan. Plant practice, not a
+ * published rule.
+ */
+export const INTERVAL_SHOTS_MIN = 100;
+export const INTERVAL_SHOTS_MAX = 2_000_000;
+export const INTERVAL_DAYS_MIN = 1;
+export const INTERVAL_DAYS_MAX = 1825;
+
+const blankToUndefined = (v: unknown) =>
+	v === '' || v === null || v === undefined ? undefined : v;
+
+const intervalShots = z.preprocess(
+	blankToUndefined,
+	z.coerce
+		.number({ error: 'Enter the interval in shots as a number.' })
+		.int('Enter whole shots.')
+		.min(INTERVAL_SHOTS_MIN, `A shot interval below ${INTERVAL_SHOTS_MIN} shots is not plausible.`)
+		.max(
+			INTERVAL_SHOTS_MAX,
+			'A shot interval above 2 000 000 shots is not plausible; leave it blank to keep the task by calendar only.'
+		)
+		.optional()
+);
+
+const intervalDays = z.preprocess(
+	blankToUndefined,
+	z.coerce
+		.number({ error: 'Enter the interval in days as a number.' })
+		.int('Enter whole days.')
+		.min(INTERVAL_DAYS_MIN, 'A day interval must be at least 1 day.')
+		.max(
+			INTERVAL_DAYS_MAX,
+			'A day interval above 1825 days (5 years) is not plausible; leave it blank to keep the task by shots only.'
+		)
+		.optional()
+);
+
+const taskId = z.coerce
+	.number({ error: 'Choose a task.' })
+	.int('Choose a task.')
+	.positive('Choose a task.');
+
+const NEEDS_AN_INTERVAL = 'Give an interval in shots, in days, or both.';
+const hasInterval = (v: { intervalShots?: number; intervalDays?: number }) =>
+	v.intervalShots !== undefined || v.intervalDays !== undefined;
+
+export const taskIntervalsSchema = z
+	.object({ taskId, intervalShots, intervalDays })
+	.refine(hasInterval, { path: ['intervalShots'], message: NEEDS_AN_INTERVAL });
+export type TaskIntervalsForm = z.infer<typeof taskIntervalsSchema>;
+
+export const addTaskSchema = z
+	.object({
+		kind: z.enum(SERVICE_KINDS, { error: 'Choose the kind of service.' }),
+		intervalShots,
+		intervalDays
+	})
+	.refine(hasInterval, { path: ['intervalShots'], message: NEEDS_AN_INTERVAL });
+export type AddTaskForm = z.infer<typeof addTaskSchema>;
+
+// Date.parse rolls 2026-02-30 over into March; a real date survives the round trip.
+const isCalendarDate = (v: string) => {
+	const ms = Date.parse(v);
+	return Number.isFinite(ms) && new Date(ms).toISOString().slice(0, 10) === v;
+};
+
+export const markDoneSchema = z.object({
+	taskId,
+	doneOn: z
+		.string({ error: 'Enter the date the task was done.' })
+		.trim()
+		.regex(/^\d{4}-\d{2}-\d{2}$/, 'Enter the date as YYYY-MM-DD.')
+		.refine(isCalendarDate, 'That is not a calendar date.'),
+	shots: z.coerce
+		.number({ error: 'Enter the die’s shot count when the task was done.' })
+		.int('Enter whole shots.')
+		.min(0, 'The shot count cannot be negative.')
+});
+export type MarkDoneForm = z.infer<typeof markDoneSchema>;
+
+export const deactivateTaskSchema = z.object({
+	taskId,
+	reason: z.string().trim().max(300, 'Keep the reason under 300 characters.').default('')
+});
+export type DeactivateTaskForm = z.infer<typeof deactivateTaskSchema>;

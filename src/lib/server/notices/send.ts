@@ -1,0 +1,197 @@
+import { randomUUID } from 'node:crypto';
+import { rawHandle, type DB } from '../db/connect';
+import type { Mailer } from '../mail/transport';
+import { composeDigest, type ComposedMail, type DigestEntry } from './digest';
+import { toStoredInstant } from './outbox';
+import type { NoticeLevel, NoticePayload } from './types';
+
+/** Attempts before a delivery is marked failed and left to an admin. */
+export const DEFAULT_MAX_ATTEMPTS = 5;
+/** First retry after this long; each further failure doubles it (15 min, 30, 60, 120). */
+export const BACKOFF_BASE_MS = 15 * 60_000;
+/** Longest wait between two attempts. */
+export const BACKOFF_MAX_MS = 6 * 3_600_000;
+/**
+ * How long a sender owns the rows it claimed. Far beyond the mailer's own timeouts; if the
+ * process dies mid-send, the rows are free again after this and go out once more (at least once
+ * towards the relay, never lost).
+ */
+export const CLAIM_LEASE_MS = 10 * 60_000;
+
+export interface SendOptions {
+	/** Base URL for links in the mail. */
+	origin: string;
+	maxAttempts?: number;
+}
+
+export interface SendResult {
+	/** Digest e-mails the relay accepted. */
+	digests: number;
+	/** Delivery rows marked sent. */
+	sent: number;
+	/** Rows left pending after a failure, to be retried after their back-off. */
+	retrying: number;
+	/** Rows that reached the attempt limit in this run and were marked failed. */
+	failed: number;
+	/** One line per digest that could not be sent. */
+	errors: string[];
+}
+
+/** Wait after the n-th failed attempt (n ≥ 1): base × 2^(n−1), capped. */
+export function backoffMs(failedAttempts: number): number {
+	return Math.min(BACKOFF_MAX_MS, BACKOFF_BASE_MS * 2 ** Math.max(0, failedAttempts - 1));
+}
+
+interface ClaimedRow {
+	id: number;
+	recipient: string;
+	attempts: number;
+	level: NoticeLevel;
+	subject: string;
+	payload: string;
+}
+
+interface Claim {
+	digestId: string;
+	recipient: string;
+	rows: ClaimedRow[];
+}
+
+/**
+ * Takes every pending row whose time has come, one digest per recipient, in one IMMEDIATE
+ * transaction: each row gets the digest's id and a lease, so another sender (a second process,
+ * an overlapping run) skips it.
+ */
+async function claimDue(db: DB, at: string): Promise<Claim[]> {
+	const raw = rawHandle(db);
+	const lease = new Date(Date.parse(at) + CLAIM_LEASE_MS).toISOString();
+	return db.connection().execute(async () => {
+		const select = raw.prepare<[string], ClaimedRow>(
+			`select d.id, d.recipient, d.attempts, n.level, n.subject, n.payload
+			   from notice_deliveries d join notices n on n.id = d.notice_id
+			  where d.state = 'pending' and d.next_attempt_at <= ?
+			  order by d.recipient, d.id`
+		);
+		const claim = raw.prepare(
+			`update notice_deliveries set digest_id = ?, next_attempt_at = ?
+			  where id = ? and state = 'pending'`
+		);
+		const run = raw.transaction((): Claim[] => {
+			const byRecipient = new Map<string, Claim>();
+			for (const row of select.all(at)) {
+				let c = byRecipient.get(row.recipient);
+				if (!c) {
+					c = { digestId: randomUUID(), recipient: row.recipient, rows: [] };
+					byRecipient.set(row.recipient, c);
+				}
+				claim.run(c.digestId, lease, row.id);
+				c.rows.push(row);
+			}
+			return [...byRecipient.values()];
+		});
+		return run.immediate();
+	});
+}
+
+async function markSent(
+	db: DB,
+	claim: Claim,
+	subject: string,
+	messageId: string,
+	at: string
+): Promise<number> {
+	const raw = rawHandle(db);
+	return db.connection().execute(async () => {
+		const mark = raw.prepare(
+			`update notice_deliveries
+			    set state = 'sent', sent_at = ?, attempts = attempts + 1, last_error = null
+			  where digest_id = ? and state = 'pending'`
+		);
+		const record = raw.prepare(
+			`insert into notice_digests (id, recipient, subject, item_count, message_id, sent_at)
+			 values (?, ?, ?, ?, ?, ?)`
+		);
+		const run = raw.transaction((): number => {
+			const { changes } = mark.run(at, claim.digestId);
+			record.run(claim.digestId, claim.recipient, subject, changes, messageId, at);
+			return changes;
+		});
+		return run.immediate();
+	});
+}
+
+async function markFailed(
+	db: DB,
+	claim: Claim,
+	message: string,
+	at: string,
+	maxAttempts: number
+): Promise<{ retrying: number; failed: number }> {
+	const raw = rawHandle(db);
+	const error = message.slice(0, 1000);
+	return db.connection().execute(async () => {
+		const current = raw.prepare<[string], { id: number; attempts: number }>(
+			`select id, attempts from notice_deliveries where digest_id = ? and state = 'pending'`
+		);
+		const update = raw.prepare(
+			`update notice_deliveries
+			    set attempts = ?, last_error = ?, state = ?, next_attempt_at = ?, digest_id = null
+			  where id = ?`
+		);
+		const run = raw.transaction(() => {
+			let retrying = 0;
+			let failed = 0;
+			for (const row of current.all(claim.digestId)) {
+				const attempts = row.attempts + 1;
+				const giveUp = attempts >= maxAttempts;
+				const next = new Date(Date.parse(at) + backoffMs(attempts)).toISOString();
+				update.run(attempts, error, giveUp ? 'failed' : 'pending', next, row.id);
+				if (giveUp) failed++;
+				else retrying++;
+			}
+			return { retrying, failed };
+		});
+		return run.immediate();
+	});
+}
+
+/**
+ * Sends every pending delivery whose time has come: one digest e-mail per recipient. Rows are
+ * marked sent in one transaction once the relay accepted the mail; a failure leaves them pending
+ * with the error and an exponential back-off, and after `maxAttempts` failures marks them failed.
+ */
+export async function sendPending(
+	db: DB,
+	mailer: Pick<Mailer, 'send'>,
+	now: string,
+	options: SendOptions
+): Promise<SendResult> {
+	const at = toStoredInstant(now);
+	const maxAttempts = options.maxAttempts ?? DEFAULT_MAX_ATTEMPTS;
+	const result: SendResult = { digests: 0, sent: 0, retrying: 0, failed: 0, errors: [] };
+	const claims = await claimDue(db, at);
+
+	for (const claim of claims) {
+		let mail: ComposedMail;
+		let messageId: string;
+		try {
+			const entries: DigestEntry[] = claim.rows.map((r) => ({
+				level: r.level,
+				subject: r.subject,
+				payload: JSON.parse(r.payload) as NoticePayload
+			}));
+			mail = composeDigest(entries, { origin: options.origin, asOf: at });
+			({ messageId } = await mailer.send({ to: claim.recipient, ...mail }));
+		} catch (error) {
+			const message = error instanceof Error ? error.message : String(error);
+			const outcome = await markFailed(db, claim, message, at, maxAttempts);
+			result.retrying += outcome.retrying;
+			result.failed += outcome.failed;
+			result.errors.push(message);
+			continue;
+		}
+		result.sent += await markSent(db, claim, mail.subject, messageId, at);
+		result.digests++;
+	}
+	return result;
+}

@@ -1,0 +1,190 @@
+/**
+ * Photo files on disk: checking a batch of uploads before anything is kept, writing the
+ * processed JPEGs under random names below UPLOAD_DIR, and reading them back for the
+ * authorised photo route. Database rows are the caller's (toolroom/photos.ts): it writes the
+ * files first, then the rows in one transaction, and removes the files if that transaction fails,
+ * so an upload is stored whole or not at all.
+ */
+import { randomBytes } from 'node:crypto';
+import { mkdir, readFile, rm, writeFile } from 'node:fs/promises';
+import path from 'node:path';
+import { MAX_PHOTO_BYTES, PhotoError } from './process-image';
+import type { ProcessedImage } from './process-image';
+import { processImageInPool } from './worker-pool';
+
+/** A file as a multipart form hands it over (File / Blob), or a test builds it. */
+export interface UploadedFile {
+	name: string;
+	size: number;
+	arrayBuffer(): Promise<ArrayBuffer>;
+}
+
+export interface PhotoProblem {
+	/** The uploader's file name, only ever shown back to them. */
+	file: string;
+	message: string;
+}
+
+export type PreparedPhotos =
+	| { ok: true; images: ProcessedImage[] }
+	| { ok: false; message: string; problems: PhotoProblem[] };
+
+export interface StoredPhotoFiles {
+	/** Relative to the upload directory. */
+	fullFile: string;
+	thumbFile: string;
+	image: ProcessedImage;
+}
+
+function formatMiB(bytes: number): string {
+	return `${(bytes / 1024 / 1024).toFixed(1)} MB`;
+}
+
+/** Drops the empty part a browser sends for a file input nobody filled in. */
+export function selectedFiles(values: unknown[]): UploadedFile[] {
+	return values.filter(
+		(v): v is UploadedFile =>
+			typeof v === 'object' &&
+			v !== null &&
+			typeof (v as UploadedFile).arrayBuffer === 'function' &&
+			!((v as UploadedFile).size === 0 && !(v as UploadedFile).name)
+	);
+}
+
+/**
+ * Checks and processes every file of one upload on the photo worker pool. All must pass: one bad
+ * file refuses the whole upload (each bad file named with its reason), so nothing is kept half way
+ * and the uploader can fix the batch and send it again.
+ */
+export async function preparePhotos(
+	files: UploadedFile[],
+	maxFiles: number
+): Promise<PreparedPhotos> {
+	if (files.length === 0) {
+		return { ok: false, message: 'Choose at least one photo.', problems: [] };
+	}
+	if (files.length > maxFiles) {
+		return {
+			ok: false,
+			message: `You sent ${files.length} photos; send at most ${maxFiles} at a time.`,
+			problems: []
+		};
+	}
+	const results = await Promise.allSettled(
+		files.map(async (file) => {
+			// Refused on the declared size before the bytes are even copied.
+			if (file.size > MAX_PHOTO_BYTES) {
+				throw new PhotoError(
+					'too_large',
+					`The file is ${formatMiB(file.size)}; photos may be at most ${formatMiB(MAX_PHOTO_BYTES)}.`
+				);
+			}
+			return processImageInPool(new Uint8Array(await file.arrayBuffer()));
+		})
+	);
+	const problems: PhotoProblem[] = [];
+	const images: ProcessedImage[] = [];
+	results.forEach((result, i) => {
+		const file = files[i].name || `Photo ${i + 1}`;
+		if (result.status === 'fulfilled') {
+			images.push(result.value);
+		} else if (result.reason instanceof PhotoError) {
+			problems.push({ file, message: result.reason.message });
+		} else {
+			// A worker failure (out of memory, crash) is ours, not the uploader's; the pool replaces
+			// the worker and the server carries on.
+			console.error('Photo processing failed', result.reason);
+			problems.push({ file, message: 'This photo could not be processed. Try it again.' });
+		}
+	});
+	if (problems.length > 0) {
+		const n = problems.length;
+		return {
+			ok: false,
+			message:
+				files.length === 1
+					? 'The photo was not saved.'
+					: `${n} of ${files.length} photos cannot be used, so none were saved. Remove or replace ${n === 1 ? 'it' : 'them'} and upload again.`,
+			problems
+		};
+	}
+	return { ok: true, images };
+}
+
+/** Absolute path of a stored file, refusing anything that would leave the upload directory. */
+export function resolvePhotoPath(uploadDir: string, relative: string): string {
+	const root = path.resolve(uploadDir);
+	const full = path.resolve(root, relative);
+	if (!full.startsWith(root + path.sep)) throw new Error('Photo path outside the upload folder.');
+	return full;
+}
+
+/** Writes full-size and thumbnail JPEGs under fresh random names; all or none. */
+export async function writePhotoFiles(
+	uploadDir: string,
+	images: ProcessedImage[]
+): Promise<StoredPhotoFiles[]> {
+	const written: StoredPhotoFiles[] = [];
+	try {
+		for (const image of images) {
+			const key = randomBytes(16).toString('hex');
+			// Two-character folders keep any one directory small.
+			const dir = path.join('photos', key.slice(0, 2));
+			const stored = {
+				fullFile: path.join(dir, `${key}.jpg`),
+				thumbFile: path.join(dir, `${key}.thumb.jpg`),
+				image
+			};
+			await mkdir(resolvePhotoPath(uploadDir, dir), { recursive: true });
+			written.push(stored);
+			// 'wx': never overwrite, even on the (absurd) chance of a repeated random key.
+			await writeFile(resolvePhotoPath(uploadDir, stored.fullFile), image.full, { flag: 'wx' });
+			await writeFile(resolvePhotoPath(uploadDir, stored.thumbFile), image.thumb, { flag: 'wx' });
+		}
+	} catch (error) {
+		await removePhotoFiles(uploadDir, written);
+		throw error;
+	}
+	return written;
+}
+
+/** Removes stored files (missing ones are fine): the undo of writePhotoFiles. */
+export async function removePhotoFiles(
+	uploadDir: string,
+	files: { fullFile: string; thumbFile: string }[]
+): Promise<void> {
+	await Promise.all(
+		files.flatMap((f) => [
+			rm(resolvePhotoPath(uploadDir, f.fullFile), { force: true }),
+			rm(resolvePhotoPath(uploadDir, f.thumbFile), { force: true })
+		])
+	);
+}
+
+/**
+ * Writes the files, then runs `save` (which inserts the rows in one transaction); when `save`
+ * throws, the files go again, so a failed upload leaves neither rows nor files.
+ */
+export async function storePhotoFilesWith<T>(
+	uploadDir: string,
+	images: ProcessedImage[],
+	save: (files: StoredPhotoFiles[]) => Promise<T>
+): Promise<T> {
+	const files = await writePhotoFiles(uploadDir, images);
+	try {
+		return await save(files);
+	} catch (error) {
+		await removePhotoFiles(uploadDir, files);
+		throw error;
+	}
+}
+
+/** A stored photo file, or null when it is missing on disk. */
+export async function readPhotoFile(uploadDir: string, relative: string): Promise<Buffer | null> {
+	try {
+		return await readFile(resolvePhotoPath(uploadDir, relative));
+	} catch (error) {
+		if ((error as NodeJS.ErrnoException).code === 'ENOENT') return null;
+		throw error;
+	}
+}
