@@ -57,15 +57,15 @@ beforeEach(async () => {
 		{
 			number: 'D-0900',
 			partName: 'Test housing',
-			partNumber: null,
+			partNumber: '',
 			customerId: customer.id,
 			alloyId: alloy.id,
 			process: 'cold_chamber',
 			cavities: 1,
 			projectedAreaCm2: 400,
 			hasSlides: false,
-			location: null,
-			notes: null,
+			location: '',
+			notes: '',
 			expectedLifeShots: undefined,
 			steel: 'H13'
 		},
@@ -97,16 +97,20 @@ describe('service plan of a die', () => {
 		expect(relief.state).toBe('due'); // 16 000 / 15 000 = 107 %
 		// Already past the interval: projected due is today.
 		expect(relief.projectedDue).toBe('2026-03-10');
-		// Worst first: the overdue surface inspection (16 000 of 10 000, 64 of 30 days) leads.
+		// Worst first: the overdue surface inspection (16 000 of 7 500 shots, 64 of 30 days) leads.
 		expect(plan.tasks[0].kind).toBe('surface_inspection');
 		expect(plan.tasks[0].state).toBe('overdue');
 	});
 
 	it('projects the due date from the trailing shot rate', async () => {
 		const plan = await listServicePlan(db, await die(), 1000, NOW);
-		// Teardown: 50 000 shots or 365 days; 34 000 shots left at 1000/day → 34 days.
+		// Teardown (aluminium template): 40 000 shots or 365 days; 24 000 shots left at 1000 a day
+		// → 24 days, before the 301 days left on the calendar.
 		const teardown = plan.tasks.find((t) => t.kind === 'teardown')!;
-		expect(teardown.projectedDue).toBe('2026-04-13');
+		expect(teardown.projectedDue).toBe('2026-04-03');
+		// Idle die: the same task falls due by the calendar only, 365 days after 2026-01-05.
+		const idle = await listServicePlan(db, await die(), 0, NOW);
+		expect(idle.tasks.find((t) => t.kind === 'teardown')!.projectedDue).toBe('2027-01-05');
 	});
 });
 

@@ -112,7 +112,7 @@ async function currentDie(trx: DB, dieId: number) {
 		.selectFrom('dies')
 		.select(['status', 'total_shots'])
 		.where('id', '=', dieId)
-		.executeTakeFirstOrThrow();
+		.executeTakeFirst();
 }
 
 /** Changes one task's intervals (at least one of shots/days; the schema checks the bounds). */
@@ -138,7 +138,7 @@ export async function updateTaskIntervals(
 			findActiveTask(trx, die.id, input.taskId),
 			currentDie(trx, die.id)
 		]);
-		if (!task) return notOnPlan;
+		if (!task || !now) return notOnPlan;
 		if (now.status === 'retired') return retiredDie;
 		await trx
 			.updateTable('service_tasks')
@@ -187,6 +187,7 @@ export async function addServiceTask(
 	}
 	return db.transaction().execute(async (trx): Promise<PlanResult> => {
 		const now = await currentDie(trx, die.id);
+		if (!now) return notOnPlan;
 		if (now.status === 'retired') return retiredDie;
 		const clash = await trx
 			.selectFrom('service_tasks')
@@ -279,7 +280,7 @@ export async function markTaskDone(
 			findActiveTask(trx, die.id, input.taskId),
 			currentDie(trx, die.id)
 		]);
-		if (!task) return notOnPlan;
+		if (!task || !current) return notOnPlan;
 		if (current.status === 'retired') return retiredDie;
 
 		const today = now.slice(0, 10);

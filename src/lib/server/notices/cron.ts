@@ -1,0 +1,121 @@
+import cron, { type ScheduledTask } from 'node-cron';
+import { building } from '$app/environment';
+import { env } from '$env/dynamic/private';
+import { getDb } from '../db';
+import { createMailer, type Mailer } from '../mail/transport';
+import { nowIso } from '../time';
+import { readNoticeConfig, type NoticeConfig } from './config';
+import { runNotices } from './run';
+import { sendPending } from './send';
+
+/**
+ * Between daily runs, a light tick sends only what is pending and due: retries after their
+ * back-off and "ready again" mails queued when a toolroom job closes. With nothing pending it is
+ * one indexed query.
+ */
+const DELIVERY_TICK = '*/5 * * * *';
+
+interface NoticeCron {
+	config: NoticeConfig;
+	mailer: Mailer;
+	tasks: ScheduledTask[];
+	/** Runs and ticks of this process go one after the other, never side by side. */
+	queue: Promise<unknown>;
+}
+
+// Kept on globalThis so that a module reloaded by the dev server does not start a second job.
+const STATE = Symbol.for('castellan.noticeCron');
+type WithState = typeof globalThis & { [STATE]?: NoticeCron };
+const holder = globalThis as WithState;
+
+function exclusive(state: NoticeCron, label: string, job: () => Promise<string>): Promise<void> {
+	const next = state.queue.then(job).then(
+		(line) => console.log(`Castellan notices (${label}): ${line}`),
+		(error: unknown) =>
+			console.error(`Castellan notices (${label}) failed:`, (error as Error)?.message ?? error)
+	);
+	state.queue = next;
+	return next;
+}
+
+function runOnce(state: NoticeCron): Promise<void> {
+	return exclusive(state, 'daily run', async () => {
+		const r = await runNotices(getDb(), {
+			now: nowIso(),
+			mailer: state.mailer,
+			origin: state.config.origin,
+			threshold: state.config.threshold
+		});
+		const errors = r.errors.length ? `; last error: ${r.errors.at(-1)}` : '';
+		return `${r.items} items, ${r.written} new, ${r.digests} digests sent, ${r.retrying} to retry, ${r.failed} failed${errors}`;
+	});
+}
+
+function deliverOnce(state: NoticeCron): Promise<void> {
+	return exclusive(state, 'delivery', async () => {
+		const r = await sendPending(getDb(), state.mailer, nowIso(), { origin: state.config.origin });
+		if (r.digests === 0 && r.retrying === 0 && r.failed === 0) return 'nothing due';
+		return `${r.digests} digests sent, ${r.retrying} to retry, ${r.failed} failed`;
+	});
+}
+
+/**
+ * Starts the notice job in this server process: the daily run on NOTICE_CRON (default 06:00
+ * server time) and the delivery tick. Once per process; never while building; not at all when
+ * NOTICE_CRON=off. A bad expression is reported and leaves the server running without the job.
+ * Returns whether the job is running.
+ */
+export function startNoticeCron(): boolean {
+	if (building) return false;
+	if (holder[STATE]) return true;
+	const config = readNoticeConfig(env);
+	if (config.cron === null) {
+		console.log('Castellan notices: off (NOTICE_CRON=off).');
+		return false;
+	}
+	if (!cron.validate(config.cron)) {
+		console.error(
+			`Castellan notices: NOTICE_CRON "${config.cron}" is not a cron expression; the notice job is not started.`
+		);
+		return false;
+	}
+	const state: NoticeCron = {
+		config,
+		mailer: createMailer({ smtpUrl: config.smtpUrl, from: config.from }),
+		tasks: [],
+		queue: Promise.resolve()
+	};
+	holder[STATE] = state;
+	state.tasks.push(
+		cron.schedule(config.cron, () => runOnce(state), { name: 'castellan-notices', noOverlap: true }),
+		cron.schedule(DELIVERY_TICK, () => deliverOnce(state), {
+			name: 'castellan-notice-delivery',
+			noOverlap: true
+		})
+	);
+	const next = state.tasks[0].getNextRun();
+	console.log(
+		`Castellan notices: "${config.cron}", next run ${next ? next.toISOString() : 'unknown'}.`
+	);
+	return true;
+}
+
+/** Stops the job (tests, shutdown). */
+export async function stopNoticeCron(): Promise<void> {
+	const state = holder[STATE];
+	if (!state) return;
+	delete holder[STATE];
+	await Promise.all(state.tasks.map((t) => t.destroy()));
+	await state.queue;
+	state.mailer.close();
+}
+
+/**
+ * Sends pending deliveries now instead of at the next tick, e.g. right after a toolroom job was
+ * closed and its "ready again" mail queued. Does nothing when the job is not running; never
+ * throws (errors are logged and the rows retried later).
+ */
+export function sendNoticesSoon(): void {
+	const state = holder[STATE];
+	if (state) void deliverOnce(state);
+}

@@ -1,0 +1,110 @@
+import { apiShotEntrySchema } from '../../schemas/shots';
+import type { DB } from '../db/connect';
+import { MAX_BATCH, recordShots, type LedgerActor, type ShotInput, type ShotIssue } from './ledger';
+
+export interface IngestAnswer {
+	status: 201 | 400 | 404;
+	body:
+		| { accepted: number; duplicates: number; dies: { die: string; totalShots: number }[] }
+		| { error: string; issues?: { index: number; field: string; message: string }[] };
+}
+
+const plain = (i: ShotIssue) => ({ index: i.index, field: i.field, message: i.message });
+
+/**
+ * The body of `POST /api/v1/shots` (already parsed JSON) to a ledger write: one entry object or
+ * an array of up to 5000. Every row is checked — shape by the schema, meaning by the ledger — so
+ * one answer lists all problems; the batch is applied all-or-nothing. The route and the ingest
+ * benchmark both go through here.
+ */
+export async function ingestShotBody(
+	db: DB,
+	body: unknown,
+	actor: LedgerActor,
+	now?: string
+): Promise<IngestAnswer> {
+	const single = body !== null && typeof body === 'object' && !Array.isArray(body);
+	if (!single && !Array.isArray(body)) {
+		return {
+			status: 400,
+			body: {
+				error: 'Send one entry object or an array of entries.',
+				issues: [{ index: 0, field: 'body', message: 'Expected an object or an array.' }]
+			}
+		};
+	}
+	const items: unknown[] = single ? [body] : (body as unknown[]);
+	if (items.length === 0) {
+		return {
+			status: 400,
+			body: {
+				error: 'The array is empty: nothing to count.',
+				issues: [{ index: 0, field: 'batch', message: 'Send at least one entry.' }]
+			}
+		};
+	}
+	if (items.length > MAX_BATCH) {
+		return {
+			status: 400,
+			body: {
+				error: `Send at most ${MAX_BATCH} entries at once (this batch has ${items.length}); nothing was counted.`,
+				issues: [{ index: MAX_BATCH, field: 'batch', message: `At most ${MAX_BATCH} entries.` }]
+			}
+		};
+	}
+
+	const issues: ShotIssue[] = [];
+	const valid: { index: number; input: ShotInput }[] = [];
+	items.forEach((item, index) => {
+		const parsed = apiShotEntrySchema.safeParse(item);
+		if (!parsed.success) {
+			for (const i of parsed.error.issues) {
+				const field = i.code === 'unrecognized_keys' ? i.keys.join(',') : String(i.path[0] ?? 'entry');
+				const message =
+					i.code === 'unrecognized_keys'
+						? `Unknown field ${i.keys.map((k) => `"${k}"`).join(', ')}; use die, shots, countedAt, machine, key.`
+						: i.path.length === 0
+							? 'Each entry must be an object.'
+							: i.message;
+				issues.push({ index, field, message });
+			}
+			return;
+		}
+		const e = parsed.data;
+		valid.push({
+			index,
+			input: { die: e.die, shots: e.shots, countedAt: e.countedAt, machine: e.machine, key: e.key }
+		});
+	});
+
+	const inputs = valid.map((v) => v.input);
+	// With shape problems nothing is written, but the rest still gets its meaning checked so the
+	// caller can fix everything in one go.
+	const result = inputs.length
+		? await recordShots(db, inputs, actor, { source: 'api', now, dryRun: issues.length > 0 })
+		: null;
+	if (result && !result.ok) {
+		for (const i of result.issues) issues.push({ ...i, index: valid[i.index]?.index ?? i.index });
+	}
+	if (issues.length) {
+		issues.sort((a, b) => a.index - b.index);
+		if (single && issues.every((i) => i.code === 'unknown_die')) {
+			return { status: 404, body: { error: issues[0].message } };
+		}
+		const rows = new Set(issues.map((i) => i.index)).size;
+		return {
+			status: 400,
+			body: {
+				error: single
+					? 'The entry has problems; nothing was counted.'
+					: `${rows} of ${items.length} entries have problems; nothing was counted.`,
+				issues: issues.map(plain)
+			}
+		};
+	}
+	if (!result || !result.ok) throw new Error('Unreachable: no issues and no result.');
+	return {
+		status: 201,
+		body: { accepted: result.accepted, duplicates: result.duplicates, dies: result.dies }
+	};
+}
