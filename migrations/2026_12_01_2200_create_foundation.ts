@@ -10,7 +10,9 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addColumn('code', 'text', (c) => c.notNull().unique())
 		.addColumn('name', 'text', (c) => c.notNull())
 		.addColumn('contact_email', 'text')
-		.addColumn('created_at', 'text', (c) => c.notNull().defaultTo(sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`))
+		.addColumn('created_at', 'text', (c) =>
+			c.notNull().defaultTo(sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`)
+		)
 		.execute();
 
 	await db.schema
@@ -24,7 +26,9 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addColumn('active', 'integer', (c) => c.notNull().defaultTo(1))
 		.addColumn('unit_system', 'text', (c) => c.notNull().defaultTo('metric'))
 		.addColumn('notices_enabled', 'integer', (c) => c.notNull().defaultTo(1))
-		.addColumn('created_at', 'text', (c) => c.notNull().defaultTo(sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`))
+		.addColumn('created_at', 'text', (c) =>
+			c.notNull().defaultTo(sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`)
+		)
 		.addCheckConstraint(
 			'users_role_check',
 			sql`role in ('admin','toolroom_lead','toolmaker','scheduler','customer')`
@@ -59,7 +63,9 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addColumn('scopes', 'text', (c) => c.notNull())
 		.addColumn('customer_id', 'integer', (c) => c.references('customers.id'))
 		.addColumn('created_by', 'text', (c) => c.references('users.id'))
-		.addColumn('created_at', 'text', (c) => c.notNull().defaultTo(sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`))
+		.addColumn('created_at', 'text', (c) =>
+			c.notNull().defaultTo(sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`)
+		)
 		.addColumn('last_used_at', 'text')
 		.addColumn('revoked_at', 'text')
 		.execute();
@@ -115,8 +121,12 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addColumn('expected_life_shots', 'integer')
 		.addColumn('total_shots', 'integer', (c) => c.notNull().defaultTo(0))
 		.addColumn('last_counted_at', 'text')
-		.addColumn('created_at', 'text', (c) => c.notNull().defaultTo(sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`))
-		.addColumn('updated_at', 'text', (c) => c.notNull().defaultTo(sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`))
+		.addColumn('created_at', 'text', (c) =>
+			c.notNull().defaultTo(sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`)
+		)
+		.addColumn('updated_at', 'text', (c) =>
+			c.notNull().defaultTo(sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`)
+		)
 		.addColumn('retired_at', 'text')
 		.addCheckConstraint(
 			'dies_status_check',
@@ -126,7 +136,11 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addCheckConstraint('dies_cavities_check', sql`cavities >= 1`)
 		.addCheckConstraint('dies_area_check', sql`projected_area_cm2 > 0`)
 		.execute();
-	await db.schema.createIndex('dies_customer').on('dies').columns(['customer_id', 'number']).execute();
+	await db.schema
+		.createIndex('dies_customer')
+		.on('dies')
+		.columns(['customer_id', 'number'])
+		.execute();
 	await db.schema.createIndex('dies_status').on('dies').column('status').execute();
 
 	await db.schema
@@ -146,7 +160,9 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addCheckConstraint('die_halves_side_check', sql`side in ('cover','ejector')`)
 		.execute();
 	// Exactly one active cover and one active ejector half per die.
-	await sql`create unique index die_halves_one_active on die_halves (die_id, side) where active = 1`.execute(db);
+	await sql`create unique index die_halves_one_active on die_halves (die_id, side) where active = 1`.execute(
+		db
+	);
 
 	await db.schema
 		.createTable('shot_entries')
@@ -168,8 +184,14 @@ export async function up(db: Kysely<any>): Promise<void> {
 			sql`source in ('manual','csv','api','correction','seed')`
 		)
 		.execute();
-	await db.schema.createIndex('shot_entries_die_time').on('shot_entries').columns(['die_id', 'counted_at']).execute();
-	await sql`create unique index shot_entries_key on shot_entries (idem_key) where idem_key is not null`.execute(db);
+	await db.schema
+		.createIndex('shot_entries_die_time')
+		.on('shot_entries')
+		.columns(['die_id', 'counted_at'])
+		.execute();
+	await sql`create unique index shot_entries_key on shot_entries (idem_key) where idem_key is not null`.execute(
+		db
+	);
 
 	// Daily roll-up kept in the same transaction as each ledger row, so trailing rates and charts
 	// never scan the ledger.

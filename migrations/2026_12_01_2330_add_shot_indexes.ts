@@ -8,7 +8,11 @@ import type { Kysely } from 'kysely';
 
 // eslint-disable-next-line @typescript-eslint/no-explicit-any
 export async function up(db: Kysely<any>): Promise<void> {
-	await db.schema.createIndex('shot_entries_time').on('shot_entries').column('counted_at').execute();
+	await db.schema
+		.createIndex('shot_entries_time')
+		.on('shot_entries')
+		.column('counted_at')
+		.execute();
 	await db.schema
 		.createIndex('shot_entries_source_time')
 		.on('shot_entries')

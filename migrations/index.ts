@@ -5,6 +5,7 @@ import * as createToolroom from './2026_12_01_2300_create_toolroom';
 import * as createSchedule from './2026_12_01_2310_create_schedule';
 import * as createNotices from './2026_12_01_2320_create_notices';
 import * as addShotIndexes from './2026_12_01_2330_add_shot_indexes';
+import * as createInvitations from './2026_12_01_2340_create_invitations';
 
 // Every migration is listed here by name so the same list works in the built app, in Vitest and
 // in tsx scripts (none of which share a way to glob the folder). Add new ones at the end.
@@ -14,5 +15,6 @@ export const migrations: Record<string, Migration> = {
 	'2026_12_01_2300_create_toolroom': createToolroom,
 	'2026_12_01_2310_create_schedule': createSchedule,
 	'2026_12_01_2320_create_notices': createNotices,
-	'2026_12_01_2330_add_shot_indexes': addShotIndexes
+	'2026_12_01_2330_add_shot_indexes': addShotIndexes,
+	'2026_12_01_2340_create_invitations': createInvitations
 };

@@ -36,12 +36,20 @@ for (const file of files) {
 		for (const r of await mod.run()) rows.push({ ...r, script: file });
 	} catch (err) {
 		console.error(`  ${file} failed:`, err);
-		rows.push({ script: file, figure: 'script failed', value: NaN, unit: '', target: 'runs', pass: false });
+		rows.push({
+			script: file,
+			figure: 'script failed',
+			value: NaN,
+			unit: '',
+			target: 'runs',
+			pass: false
+		});
 	}
 	console.log(`  (${((Date.now() - started) / 1000).toFixed(1)} s)`);
 }
 
-const fmt = (n: number) => (Number.isFinite(n) ? (Math.abs(n) >= 100 ? n.toFixed(0) : n.toPrecision(3)) : '—');
+const fmt = (n: number) =>
+	Number.isFinite(n) ? (Math.abs(n) >= 100 ? n.toFixed(0) : n.toPrecision(3)) : '—';
 const table = rows.map((r) => ({
 	figure: r.figure,
 	value: `${fmt(r.value)} ${r.unit}`.trim(),

@@ -6,8 +6,12 @@ const target = process.argv[2];
 if (!target) fail('name the backup file', 'npm run db:backup -- FILE');
 try {
 	const { pages } = await backupDatabase(databasePath(), target);
-	console.log(`Backed up ${databasePath()} to ${target} (${pages} pages, integrity ${checkIntegrity(target)}).`);
-	console.log('Photos are files under UPLOAD_DIR: copy that folder too (e.g. rsync -a data/uploads/ …).');
+	console.log(
+		`Backed up ${databasePath()} to ${target} (${pages} pages, integrity ${checkIntegrity(target)}).`
+	);
+	console.log(
+		'Photos are files under UPLOAD_DIR: copy that folder too (e.g. rsync -a data/uploads/ …).'
+	);
 } catch (err) {
 	fail((err as Error).message);
 }

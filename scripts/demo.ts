@@ -29,7 +29,9 @@ const db = await openMigratedDatabase();
 if (await isEmpty(db)) {
 	console.log(`Seeding the invented demo plant "${DEMO_PLANT}" into ${databasePath()}…`);
 	const s = await seedDemo(db);
-	console.log(`  ${s.dies} dies, ${s.entries} ledger entries. Demo API token (shots:write, dies:read):\n  ${s.token}`);
+	console.log(
+		`  ${s.dies} dies, ${s.entries} ledger entries. Demo API token (shots:write, dies:read):\n  ${s.token}`
+	);
 }
 await db.destroy();
 
@@ -53,7 +55,10 @@ const app = spawn(process.execPath, ['build'], {
 });
 
 console.log(`\nCastellan demo: ${origin}`);
-if (mail) console.log(`Fake mail inbox: http://127.0.0.1:${mail.httpPort} (SMTP on 127.0.0.1:${mail.smtpPort})`);
+if (mail)
+	console.log(
+		`Fake mail inbox: http://127.0.0.1:${mail.httpPort} (SMTP on 127.0.0.1:${mail.smtpPort})`
+	);
 console.log(`Sign in as any of these, password "${DEMO_PASSWORD}":`);
 for (const u of DEMO_USERS) console.log(`  ${u.role.padEnd(14)} ${u.email}`);
 console.log('Stop with Ctrl+C.\n');

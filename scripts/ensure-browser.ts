@@ -8,9 +8,12 @@ if (fs.existsSync(CHROMIUM)) process.exit(0);
 console.log(`Chromium is not at ${CHROMIUM}; installing Debian's chromium package…`);
 const asRoot = process.getuid?.() === 0 ? '' : 'sudo ';
 try {
-	execSync(`${asRoot}apt-get update -qq && ${asRoot}env DEBIAN_FRONTEND=noninteractive apt-get install -y -qq chromium`, {
-		stdio: 'inherit'
-	});
+	execSync(
+		`${asRoot}apt-get update -qq && ${asRoot}env DEBIAN_FRONTEND=noninteractive apt-get install -y -qq chromium`,
+		{
+			stdio: 'inherit'
+		}
+	);
 } catch {
 	console.error(
 		'Could not install Chromium. Install it yourself with `sudo apt-get install chromium` ' +

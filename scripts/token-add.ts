@@ -11,7 +11,10 @@ const { values } = parseCli(
 );
 if (!values.name?.trim()) fail('--name is required', USAGE);
 if (!values.scopes) fail('--scopes is required', USAGE);
-const scopes = values.scopes.split(',').map((s) => s.trim()).filter(Boolean);
+const scopes = values.scopes
+	.split(',')
+	.map((s) => s.trim())
+	.filter(Boolean);
 const unknown = scopes.filter((s) => !API_SCOPES.includes(s as ApiScope));
 if (unknown.length || scopes.length === 0) {
 	fail(`unknown scope ${unknown.join(', ') || '(none)'}; use ${API_SCOPES.join(', ')}`, USAGE);
@@ -31,7 +34,9 @@ try {
 		customerId,
 		createdBy: null
 	});
-	console.log(`Token "${values.name.trim()}" with ${scopes.join(', ')}${values.customer ? ` for ${values.customer}` : ''}. Shown once:`);
+	console.log(
+		`Token "${values.name.trim()}" with ${scopes.join(', ')}${values.customer ? ` for ${values.customer}` : ''}. Shown once:`
+	);
 	console.log(token);
 } finally {
 	await db.destroy();

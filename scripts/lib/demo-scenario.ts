@@ -13,7 +13,12 @@ export const DEMO_PLANT = 'Kestrel Vale Diecast Works';
 export const DEMO_USERS = [
 	{ email: 'admin@kestrelvale.test', name: 'Ines Marwood', role: 'admin', customer: null },
 	{ email: 'lead@kestrelvale.test', name: 'Tomasz Ferrell', role: 'toolroom_lead', customer: null },
-	{ email: 'toolmaker@kestrelvale.test', name: 'Ruth Okonkwo-Hale', role: 'toolmaker', customer: null },
+	{
+		email: 'toolmaker@kestrelvale.test',
+		name: 'Ruth Okonkwo-Hale',
+		role: 'toolmaker',
+		customer: null
+	},
 	{ email: 'planner@kestrelvale.test', name: 'Dev Castellanos', role: 'scheduler', customer: null },
 	{ email: 'buyer@brookmere.test', name: 'Greta Pohl', role: 'customer', customer: 'BRKPUMP' },
 	{ email: 'buyer@lumenfold.test', name: 'Amos Trevanion', role: 'customer', customer: 'LUMEN' }
@@ -28,13 +33,55 @@ const CUSTOMERS = [
 
 // kN for the tonnage class: 1 tf = 9.80665 kN.
 const MACHINES = [
-	{ name: 'HC-08', chamber: 'hot', clamp_force_kn: 785, max_shot_weight_kg: 0.6, tie_bar_spacing_mm: 280 },
-	{ name: 'HC-20', chamber: 'hot', clamp_force_kn: 1961, max_shot_weight_kg: 1.5, tie_bar_spacing_mm: 360 },
-	{ name: 'HC-42M', chamber: 'hot', clamp_force_kn: 4119, max_shot_weight_kg: 2.2, tie_bar_spacing_mm: 520 },
-	{ name: 'CC-40', chamber: 'cold', clamp_force_kn: 3923, max_shot_weight_kg: 4, tie_bar_spacing_mm: 510 },
-	{ name: 'CC-84', chamber: 'cold', clamp_force_kn: 8238, max_shot_weight_kg: 9, tie_bar_spacing_mm: 760 },
-	{ name: 'CC-160', chamber: 'cold', clamp_force_kn: 15691, max_shot_weight_kg: 22, tie_bar_spacing_mm: 1100 },
-	{ name: 'CC-25B', chamber: 'cold', clamp_force_kn: 2452, max_shot_weight_kg: 3, tie_bar_spacing_mm: 420 }
+	{
+		name: 'HC-08',
+		chamber: 'hot',
+		clamp_force_kn: 785,
+		max_shot_weight_kg: 0.6,
+		tie_bar_spacing_mm: 280
+	},
+	{
+		name: 'HC-20',
+		chamber: 'hot',
+		clamp_force_kn: 1961,
+		max_shot_weight_kg: 1.5,
+		tie_bar_spacing_mm: 360
+	},
+	{
+		name: 'HC-42M',
+		chamber: 'hot',
+		clamp_force_kn: 4119,
+		max_shot_weight_kg: 2.2,
+		tie_bar_spacing_mm: 520
+	},
+	{
+		name: 'CC-40',
+		chamber: 'cold',
+		clamp_force_kn: 3923,
+		max_shot_weight_kg: 4,
+		tie_bar_spacing_mm: 510
+	},
+	{
+		name: 'CC-84',
+		chamber: 'cold',
+		clamp_force_kn: 8238,
+		max_shot_weight_kg: 9,
+		tie_bar_spacing_mm: 760
+	},
+	{
+		name: 'CC-160',
+		chamber: 'cold',
+		clamp_force_kn: 15691,
+		max_shot_weight_kg: 22,
+		tie_bar_spacing_mm: 1100
+	},
+	{
+		name: 'CC-25B',
+		chamber: 'cold',
+		clamp_force_kn: 2452,
+		max_shot_weight_kg: 3,
+		tie_bar_spacing_mm: 420
+	}
 ] as const;
 
 interface DieSpec {
@@ -50,18 +97,84 @@ interface DieSpec {
 }
 
 const PARTS: Record<string, string[]> = {
-	BRKPUMP: ['Impeller housing', 'Volute cover', 'Bearing bracket', 'Seal carrier', 'Pump foot', 'Priming cap', 'Motor adapter', 'Check-valve body', 'Manifold block', 'Terminal box lid', 'Diffuser plate'],
-	LUMEN: ['Spotlight heat sink', 'Track adapter shell', 'Lens bezel', 'Driver housing', 'Pendant canopy', 'Wall-wash reflector frame', 'Gimbal ring', 'Street-lamp end cap', 'Bollard cap', 'LED module base', 'Clamp knuckle'],
-	TOLLARD: ['Pipe wrench jaw', 'Plier handle core', 'Hammer head blank', 'Ratchet cap', 'Clamp frame', 'Vice slide', 'Spirit-level body', 'Tape-measure case', 'Socket tray', 'Valve key', 'Brass tap handle'],
-	ASHENG: ['Crankcase half', 'Cylinder head cover', 'Carburettor body', 'Starter housing', 'Flywheel fan', 'Oil-sump cover', 'Throttle lever', 'Air-filter base', 'Gear cover', 'Brass fuel fitting', 'Magneto bracket']
+	BRKPUMP: [
+		'Impeller housing',
+		'Volute cover',
+		'Bearing bracket',
+		'Seal carrier',
+		'Pump foot',
+		'Priming cap',
+		'Motor adapter',
+		'Check-valve body',
+		'Manifold block',
+		'Terminal box lid',
+		'Diffuser plate'
+	],
+	LUMEN: [
+		'Spotlight heat sink',
+		'Track adapter shell',
+		'Lens bezel',
+		'Driver housing',
+		'Pendant canopy',
+		'Wall-wash reflector frame',
+		'Gimbal ring',
+		'Street-lamp end cap',
+		'Bollard cap',
+		'LED module base',
+		'Clamp knuckle'
+	],
+	TOLLARD: [
+		'Pipe wrench jaw',
+		'Plier handle core',
+		'Hammer head blank',
+		'Ratchet cap',
+		'Clamp frame',
+		'Vice slide',
+		'Spirit-level body',
+		'Tape-measure case',
+		'Socket tray',
+		'Valve key',
+		'Brass tap handle'
+	],
+	ASHENG: [
+		'Crankcase half',
+		'Cylinder head cover',
+		'Carburettor body',
+		'Starter housing',
+		'Flywheel fan',
+		'Oil-sump cover',
+		'Throttle lever',
+		'Air-filter base',
+		'Gear cover',
+		'Brass fuel fitting',
+		'Magneto bracket'
+	]
 };
 
-const ALLOY_CYCLE: { alloy: string; family: AlloyFamily; process: DieProcess; press: string; area: [number, number] }[] = [
+const ALLOY_CYCLE: {
+	alloy: string;
+	family: AlloyFamily;
+	process: DieProcess;
+	press: string;
+	area: [number, number];
+}[] = [
 	{ alloy: 'ZP0400', family: 'zinc', process: 'hot_chamber', press: 'HC-08', area: [40, 140] },
 	{ alloy: 'A380', family: 'aluminium', process: 'cold_chamber', press: 'CC-84', area: [300, 900] },
 	{ alloy: 'ZP0410', family: 'zinc', process: 'hot_chamber', press: 'HC-20', area: [80, 300] },
-	{ alloy: 'AZ91D', family: 'magnesium', process: 'hot_chamber', press: 'HC-42M', area: [150, 500] },
-	{ alloy: 'EN-AC-46000', family: 'aluminium', process: 'cold_chamber', press: 'CC-160', area: [900, 1800] },
+	{
+		alloy: 'AZ91D',
+		family: 'magnesium',
+		process: 'hot_chamber',
+		press: 'HC-42M',
+		area: [150, 500]
+	},
+	{
+		alloy: 'EN-AC-46000',
+		family: 'aluminium',
+		process: 'cold_chamber',
+		press: 'CC-160',
+		area: [900, 1800]
+	},
 	{ alloy: 'A380', family: 'aluminium', process: 'cold_chamber', press: 'CC-40', area: [150, 420] },
 	{ alloy: 'CW617N', family: 'copper', process: 'cold_chamber', press: 'CC-25B', area: [40, 160] }
 ];
@@ -81,7 +194,10 @@ const DAY = 86_400_000;
 const HISTORY_DAYS = 548;
 
 export async function isEmpty(db: DB): Promise<boolean> {
-	const row = await db.selectFrom('users').select((eb) => eb.fn.countAll<number>().as('n')).executeTakeFirstOrThrow();
+	const row = await db
+		.selectFrom('users')
+		.select((eb) => eb.fn.countAll<number>().as('n'))
+		.executeTakeFirstOrThrow();
 	return Number(row.n) === 0;
 }
 
@@ -96,10 +212,17 @@ export async function seedDemo(db: DB, now = new Date()): Promise<SeedSummary> {
 	const rand = mulberry32(20261201);
 	const nowIso = now.toISOString();
 	await db.insertInto('customers').values(CUSTOMERS).execute();
-	await db.insertInto('machines').values(MACHINES.map((m) => ({ ...m }))).execute();
-	const customers = new Map((await db.selectFrom('customers').select(['id', 'code']).execute()).map((c) => [c.code, c.id]));
+	await db
+		.insertInto('machines')
+		.values(MACHINES.map((m) => ({ ...m })))
+		.execute();
+	const customers = new Map(
+		(await db.selectFrom('customers').select(['id', 'code']).execute()).map((c) => [c.code, c.id])
+	);
 	const alloys = new Map(
-		(await db.selectFrom('alloys').select(['id', 'code', 'expected_life_shots']).execute()).map((a) => [a.code, a])
+		(await db.selectFrom('alloys').select(['id', 'code', 'expected_life_shots']).execute()).map(
+			(a) => [a.code, a]
+		)
 	);
 	for (const u of DEMO_USERS) {
 		await createUser(db, {
@@ -110,7 +233,11 @@ export async function seedDemo(db: DB, now = new Date()): Promise<SeedSummary> {
 			password: DEMO_PASSWORD
 		});
 	}
-	const admin = await db.selectFrom('users').select('id').where('role', '=', 'admin').executeTakeFirstOrThrow();
+	const admin = await db
+		.selectFrom('users')
+		.select('id')
+		.where('role', '=', 'admin')
+		.executeTakeFirstOrThrow();
 
 	// 44 dies: eleven parts per customer, alloys cycling through the plant's mix.
 	const specs: DieSpec[] = [];
@@ -142,14 +269,26 @@ export async function seedDemo(db: DB, now = new Date()): Promise<SeedSummary> {
 		// Some dies retired during the window: their life at retirement scatters around the
 		// expected life, which gives the fleet statistics failures to fit.
 		const retired = n % 9 === 4;
-		const lifeFraction = retired ? 0.7 + rand() * 0.6 : n % 11 === 3 ? 0.9 + rand() * 0.08 : 0.08 + rand() * 0.78;
+		const lifeFraction = retired
+			? 0.7 + rand() * 0.6
+			: n % 11 === 3
+				? 0.9 + rand() * 0.08
+				: 0.08 + rand() * 0.78;
 		const startDay = Math.floor(rand() * 120);
 		const endDay = retired ? HISTORY_DAYS - 60 - Math.floor(rand() * 200) : HISTORY_DAYS;
 		const opening = Math.round(life * lifeFraction * (0.2 + rand() * 0.4));
 		const target = Math.round(life * lifeFraction) - opening;
 		const started = new Date(now.getTime() - (HISTORY_DAYS - startDay) * DAY);
 		const createdAt = started.toISOString();
-		const status: DieStatus = retired ? 'retired' : n % 13 === 5 ? 'in_toolroom' : n % 17 === 8 ? 'held' : n % 3 === 0 ? 'running' : 'ready';
+		const status: DieStatus = retired
+			? 'retired'
+			: n % 13 === 5
+				? 'in_toolroom'
+				: n % 17 === 8
+					? 'held'
+					: n % 3 === 0
+						? 'running'
+						: 'ready';
 
 		const die = await db
 			.insertInto('dies')
@@ -174,12 +313,27 @@ export async function seedDemo(db: DB, now = new Date()): Promise<SeedSummary> {
 		for (const side of ['cover', 'ejector'] as const) {
 			await db
 				.insertInto('die_halves')
-				.values({ die_id: die.id, side, serial: `${number}-${side === 'cover' ? 'C' : 'E'}1`, steel: 'H13', hardness_hrc: 44 + Math.round(rand() * 4), installed_at: createdAt })
+				.values({
+					die_id: die.id,
+					side,
+					serial: `${number}-${side === 'cover' ? 'C' : 'E'}1`,
+					steel: 'H13',
+					hardness_hrc: 44 + Math.round(rand() * 4),
+					installed_at: createdAt
+				})
 				.execute();
 		}
 
 		// Daily counter readings on working days, at the end of the second shift.
-		const rows: ShotInput[] = [{ die: number, shots: opening, countedAt: createdAt, note: 'Opening balance carried over from the previous register', key: `demo-${number}-open` }];
+		const rows: ShotInput[] = [
+			{
+				die: number,
+				shots: opening,
+				countedAt: createdAt,
+				note: 'Opening balance carried over from the previous register',
+				key: `demo-${number}-open`
+			}
+		];
 		const workDays: Date[] = [];
 		for (let d = startDay + 1; d < endDay; d++) {
 			const day = new Date(now.getTime() - (HISTORY_DAYS - d) * DAY);
@@ -190,22 +344,50 @@ export async function seedDemo(db: DB, now = new Date()): Promise<SeedSummary> {
 			day.setUTCHours(22, 0, 0, 0);
 			if (day.getTime() > now.getTime()) continue;
 			const shots = Math.max(1, Math.round(perDay * (0.6 + rand() * 0.8)));
-			rows.push({ die: number, shots, countedAt: day.toISOString(), machine: spec.press, key: `demo-${number}-${day.toISOString().slice(0, 10)}` });
+			rows.push({
+				die: number,
+				shots,
+				countedAt: day.toISOString(),
+				machine: spec.press,
+				key: `demo-${number}-${day.toISOString().slice(0, 10)}`
+			});
 		}
 		for (let k = 0; k < rows.length; k += 2000) {
-			const result = await recordShots(db, rows.slice(k, k + 2000), { userId: null, tokenId: null, customerId: null }, { source: 'seed', now: nowIso });
-			if (!result.ok) throw new Error(`Demo ledger for ${number} refused: ${JSON.stringify(result.issues.slice(0, 3))}`);
+			const result = await recordShots(
+				db,
+				rows.slice(k, k + 2000),
+				{ userId: null, tokenId: null, customerId: null },
+				{ source: 'seed', now: nowIso }
+			);
+			if (!result.ok)
+				throw new Error(
+					`Demo ledger for ${number} refused: ${JSON.stringify(result.issues.slice(0, 3))}`
+				);
 			entries += result.accepted;
 		}
 
 		// Service plan from the family template, last done at a point that spreads the tasks over
 		// every due band.
-		const total = (await db.selectFrom('dies').select('total_shots').where('id', '=', die.id).executeTakeFirstOrThrow()).total_shots;
-		const templates = await db.selectFrom('service_templates').selectAll().where('family', '=', spec.family).execute();
+		const total = (
+			await db
+				.selectFrom('dies')
+				.select('total_shots')
+				.where('id', '=', die.id)
+				.executeTakeFirstOrThrow()
+		).total_shots;
+		const templates = await db
+			.selectFrom('service_templates')
+			.selectAll()
+			.where('family', '=', spec.family)
+			.execute();
 		for (const t of templates) {
 			const fraction = n % 5 === 1 ? 0.92 + rand() * 0.25 : rand() * 0.85;
-			const shotsSince = t.interval_shots ? Math.min(total, Math.round(t.interval_shots * fraction)) : 0;
-			const daysSince = t.interval_days ? Math.round(t.interval_days * fraction) : Math.round(20 + rand() * 60);
+			const shotsSince = t.interval_shots
+				? Math.min(total, Math.round(t.interval_shots * fraction))
+				: 0;
+			const daysSince = t.interval_days
+				? Math.round(t.interval_days * fraction)
+				: Math.round(20 + rand() * 60);
 			await db
 				.insertInto('service_tasks')
 				.values({
@@ -219,8 +401,14 @@ export async function seedDemo(db: DB, now = new Date()): Promise<SeedSummary> {
 				.execute();
 		}
 		if (status !== 'ready') {
-			const at = retired ? new Date(now.getTime() - (HISTORY_DAYS - endDay) * DAY).toISOString() : nowIso;
-			await db.updateTable('dies').set({ status, retired_at: retired ? at : null }).where('id', '=', die.id).execute();
+			const at = retired
+				? new Date(now.getTime() - (HISTORY_DAYS - endDay) * DAY).toISOString()
+				: nowIso;
+			await db
+				.updateTable('dies')
+				.set({ status, retired_at: retired ? at : null })
+				.where('id', '=', die.id)
+				.execute();
 			await db
 				.insertInto('audit_log')
 				.values({
@@ -231,13 +419,24 @@ export async function seedDemo(db: DB, now = new Date()): Promise<SeedSummary> {
 					detail: JSON.stringify({
 						from: 'ready',
 						to: status,
-						reason: retired ? 'Gross cracking across the cavity; owner approved replacement' : status === 'held' ? 'Porosity complaint from the customer; awaiting decision' : status === 'in_toolroom' ? 'Scheduled service' : 'Production order'
+						reason: retired
+							? 'Gross cracking across the cavity; owner approved replacement'
+							: status === 'held'
+								? 'Porosity complaint from the customer; awaiting decision'
+								: status === 'in_toolroom'
+									? 'Scheduled service'
+									: 'Production order'
 					})
 				})
 				.execute();
 		}
 	}
-	const { token } = await createApiToken(db, { name: 'Demo press-counter gateway', scopes: ['shots:write', 'dies:read'], customerId: null, createdBy: admin.id });
+	const { token } = await createApiToken(db, {
+		name: 'Demo press-counter gateway',
+		scopes: ['shots:write', 'dies:read'],
+		customerId: null,
+		createdBy: admin.id
+	});
 	await sql`pragma optimize`.execute(db);
 	return { dies: specs.length, entries, token };
 }

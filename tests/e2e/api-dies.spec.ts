@@ -16,7 +16,10 @@ async function createToken(page: Page, name: string, scopes: string[], customer:
 	return token;
 }
 
-test('dies API: bearer tokens, scopes, customer binding and 404 for other owners', async ({ page, request }) => {
+test('dies API: bearer tokens, scopes, customer binding and 404 for other owners', async ({
+	page,
+	request
+}) => {
 	await signIn(page, 'admin');
 	const plant = await createToken(page, 'e2e plant reader', ['dies:read'], null);
 	const bound = await createToken(page, 'e2e Brookmere reader', ['dies:read'], 'Brookmere Pumps');
@@ -30,11 +33,17 @@ test('dies API: bearer tokens, scopes, customer binding and 404 for other owners
 
 	const mine = await (await request.get('/api/v1/dies?size=200', auth(bound))).json();
 	expect(mine.dies.length).toBe(11);
-	expect(new Set(mine.dies.map((d: { customer: { code: string } }) => d.customer.code))).toEqual(new Set(['BRKPUMP']));
+	expect(new Set(mine.dies.map((d: { customer: { code: string } }) => d.customer.code))).toEqual(
+		new Set(['BRKPUMP'])
+	);
 
 	const own = await request.get('/api/v1/dies/D-0101', auth(bound));
 	expect(own.status()).toBe(200);
-	expect(await own.json()).toMatchObject({ number: 'D-0101', customer: { code: 'BRKPUMP' }, expectedLifeShots: 500000 });
+	expect(await own.json()).toMatchObject({
+		number: 'D-0101',
+		customer: { code: 'BRKPUMP' },
+		expectedLifeShots: 500000
+	});
 
 	const other = await request.get('/api/v1/dies/D-0112', auth(bound));
 	expect(other.status()).toBe(404);
@@ -42,14 +51,19 @@ test('dies API: bearer tokens, scopes, customer binding and 404 for other owners
 
 	expect((await request.get('/api/v1/dies/D-9999', auth(plant))).status()).toBe(404);
 	expect((await request.get('/api/v1/dies', auth('cst_not-a-real-token'))).status()).toBe(401);
-	expect((await request.get('/api/v1/dies', { headers: { authorization: 'Basic abc' } })).status()).toBe(401);
+	expect(
+		(await request.get('/api/v1/dies', { headers: { authorization: 'Basic abc' } })).status()
+	).toBe(401);
 	const noScope = await request.get('/api/v1/dies', auth(writer));
 	expect(noScope.status()).toBe(403);
 	expect(await noScope.json()).toEqual({ error: 'The API token lacks the scope dies:read.' });
 
 	// Revoke the plant token in the UI: it stops working at once.
 	await page.goto('/admin/tokens');
-	await page.getByRole('row', { name: /e2e plant reader/ }).getByRole('button', { name: 'Revoke' }).click();
+	await page
+		.getByRole('row', { name: /e2e plant reader/ })
+		.getByRole('button', { name: 'Revoke' })
+		.click();
 	await expect(page.getByRole('row', { name: /e2e plant reader/ })).toContainText('Revoked');
 	expect((await request.get('/api/v1/dies', auth(plant))).status()).toBe(401);
 });
@@ -64,6 +78,8 @@ test('a customer session sees only its own dies through the API', async ({ page 
 	await signIn(page, 'otherCustomer');
 	const res = await page.request.get('/api/v1/dies?size=200');
 	const body = await res.json();
-	expect(body.dies.every((d: { customer: { code: string } }) => d.customer.code === 'LUMEN')).toBe(true);
+	expect(body.dies.every((d: { customer: { code: string } }) => d.customer.code === 'LUMEN')).toBe(
+		true
+	);
 	expect((await page.request.get('/api/v1/dies/D-0101')).status()).toBe(404);
 });

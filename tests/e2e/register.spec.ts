@@ -1,7 +1,9 @@
 import { expect, test } from '@playwright/test';
 import { signIn } from './support';
 
-test('a toolroom lead registers a die, sees field errors first, then edits it and holds it', async ({ page }, info) => {
+test('a toolroom lead registers a die, sees field errors first, then edits it and holds it', async ({
+	page
+}, info) => {
 	await signIn(page, 'toolroom_lead');
 	await page.goto('/dies/new');
 	await page.getByLabel('Die number').fill('D-0901');
@@ -28,10 +30,14 @@ test('a toolroom lead registers a die, sees field errors first, then edits it an
 	await page.getByLabel('Move to').selectOption('held');
 	await page.getByLabel('Reason').fill('Waiting for the owner’s approval');
 	await page.getByRole('button', { name: 'Change state' }).click();
-	await expect(page.getByText('State Ready → Held: Waiting for the owner’s approval')).toBeVisible();
+	await expect(
+		page.getByText('State Ready → Held: Waiting for the owner’s approval')
+	).toBeVisible();
 });
 
-test('the register filters, sorts and searches through the URL, with an empty state', async ({ page }) => {
+test('the register filters, sorts and searches through the URL, with an empty state', async ({
+	page
+}) => {
 	await signIn(page, 'scheduler');
 	await page.goto('/dies?family=copper');
 	const rows = page.locator('tbody tr');

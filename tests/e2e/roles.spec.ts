@@ -34,7 +34,9 @@ test('a wrong password is refused with a plain message', async ({ page }) => {
 	await page.getByLabel('E-mail').fill('planner@kestrelvale.test');
 	await page.getByLabel('Password').fill('not-the-password');
 	await page.getByRole('button', { name: 'Sign in' }).click();
-	await expect(page.getByText('That e-mail and password do not match an active account.')).toBeVisible();
+	await expect(
+		page.getByText('That e-mail and password do not match an active account.')
+	).toBeVisible();
 	await expect(page).toHaveURL(/sign-in/);
 });
 
@@ -55,5 +57,7 @@ test('the toolmaker may not open admin pages', async ({ page }) => {
 	await signIn(page, 'toolmaker');
 	const res = await page.goto('/admin/users');
 	expect(res?.status()).toBe(403);
-	await expect(page.getByText('This page needs the role Plant admin. You are signed in as Toolmaker.')).toBeVisible();
+	await expect(
+		page.getByText('This page needs the role Plant admin. You are signed in as Toolmaker.')
+	).toBeVisible();
 });

@@ -15,7 +15,18 @@ describe('online backup under write load', () => {
 		await migrateToLatest(db);
 		await db.insertInto('customers').values({ code: 'ACME', name: 'Acme' }).execute();
 		const alloy = await db.selectFrom('alloys').select('id').executeTakeFirstOrThrow();
-		await db.insertInto('dies').values({ number: 'D-1', part_name: 'P', customer_id: 1, alloy_id: alloy.id, process: 'hot_chamber', cavities: 1, projected_area_cm2: 10 }).execute();
+		await db
+			.insertInto('dies')
+			.values({
+				number: 'D-1',
+				part_name: 'P',
+				customer_id: 1,
+				alloy_id: alloy.id,
+				process: 'hot_chamber',
+				cavities: 1,
+				projected_area_cm2: 10
+			})
+			.execute();
 		await db.destroy();
 
 		// A separate process writes ledger rows and totals in transactions the whole time.
@@ -41,8 +52,12 @@ describe('online backup under write load', () => {
 		fs.writeFileSync(restoredPath, '');
 		restoreDatabase(target, restoredPath);
 		const restored = new SQLite(restoredPath, { readonly: true });
-		const { total } = restored.prepare('select total_shots as total from dies where id = 1').get() as { total: number };
-		const { sum, n } = restored.prepare('select coalesce(sum(shots),0) as sum, count(*) as n from shot_entries').get() as { sum: number; n: number };
+		const { total } = restored
+			.prepare('select total_shots as total from dies where id = 1')
+			.get() as { total: number };
+		const { sum, n } = restored
+			.prepare('select coalesce(sum(shots),0) as sum, count(*) as n from shot_entries')
+			.get() as { sum: number; n: number };
 		restored.close();
 		expect(n).toBeGreaterThan(0);
 		expect(total).toBe(sum);

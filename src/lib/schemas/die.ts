@@ -46,7 +46,9 @@ export const dieFormSchema = z.object({
 export type DieForm = z.infer<typeof dieFormSchema>;
 
 export const dieStatusSchema = z.object({
-	status: z.enum(['ready', 'running', 'in_toolroom', 'held', 'retired'], { error: 'Choose a status.' }),
+	status: z.enum(['ready', 'running', 'in_toolroom', 'held', 'retired'], {
+		error: 'Choose a status.'
+	}),
 	reason: z.string().trim().min(3, 'Give a reason of at least 3 characters.').max(500)
 });
 

@@ -1,36 +1,58 @@
 import { z } from 'zod';
 
 const optionalNumber = <T extends z.ZodType>(schema: T) =>
-	z.preprocess((v) => (v === '' || v === null || v === undefined ? undefined : v), schema.optional());
+	z.preprocess(
+		(v) => (v === '' || v === null || v === undefined ? undefined : v),
+		schema.optional()
+	);
 
 export const customerSchema = z.object({
-	id: z.preprocess((v) => (v === '' || v === '0' ? undefined : v), z.coerce.number().int().positive().optional()),
+	id: z.preprocess(
+		(v) => (v === '' || v === '0' ? undefined : v),
+		z.coerce.number().int().positive().optional()
+	),
 	code: z
 		.string()
 		.trim()
 		.toUpperCase()
 		.regex(/^[A-Z0-9]{2,12}$/, 'Use 2–12 capital letters or digits, e.g. NORDPUMP.'),
 	name: z.string().trim().min(2, 'Enter the customer’s name.').max(120),
-	contactEmail: z.union([z.literal(''), z.string().trim().email('Enter a valid e-mail address.')]).default('')
+	contactEmail: z
+		.union([z.literal(''), z.string().trim().email('Enter a valid e-mail address.')])
+		.default('')
 });
 
-export const alloySchema = z.object({
-	id: z.preprocess((v) => (v === '' || v === '0' ? undefined : v), z.coerce.number().int().positive().optional()),
-	code: z.string().trim().toUpperCase().regex(/^[A-Z0-9-]{2,20}$/, 'Use 2–20 capital letters, digits or dashes.'),
-	name: z.string().trim().min(2, 'Name the alloy.').max(80),
-	family: z.enum(['zinc', 'magnesium', 'aluminium', 'copper'], { error: 'Choose the family.' }),
-	expectedLifeShots: z.coerce
-		.number({ error: 'Enter the expected life in shots.' })
-		.int('Whole shots.')
-		.min(100, 'At least 100 shots.')
-		.max(10_000_000, 'More than 10 million shots is not plausible.'),
-	densityKgM3: optionalNumber(z.coerce.number().min(500, 'Density in kg/m³ (e.g. 2710).').max(20000)),
-	specificHeatJKgK: optionalNumber(z.coerce.number().min(50).max(5000)),
-	latentHeatJKg: optionalNumber(z.coerce.number().min(1000).max(2_000_000)),
-	solidusC: optionalNumber(z.coerce.number().min(100).max(1500)),
-	liquidusC: optionalNumber(z.coerce.number().min(100).max(1500)),
-	pourTempC: optionalNumber(z.coerce.number().min(100).max(1600))
-}).refine((a) => a.solidusC === undefined || a.liquidusC === undefined || a.liquidusC >= a.solidusC, {
-	path: ['liquidusC'],
-	message: 'Liquidus must be at or above solidus.'
-});
+export const alloySchema = z
+	.object({
+		id: z.preprocess(
+			(v) => (v === '' || v === '0' ? undefined : v),
+			z.coerce.number().int().positive().optional()
+		),
+		code: z
+			.string()
+			.trim()
+			.toUpperCase()
+			.regex(/^[A-Z0-9-]{2,20}$/, 'Use 2–20 capital letters, digits or dashes.'),
+		name: z.string().trim().min(2, 'Name the alloy.').max(80),
+		family: z.enum(['zinc', 'magnesium', 'aluminium', 'copper'], { error: 'Choose the family.' }),
+		expectedLifeShots: z.coerce
+			.number({ error: 'Enter the expected life in shots.' })
+			.int('Whole shots.')
+			.min(100, 'At least 100 shots.')
+			.max(10_000_000, 'More than 10 million shots is not plausible.'),
+		densityKgM3: optionalNumber(
+			z.coerce.number().min(500, 'Density in kg/m³ (e.g. 2710).').max(20000)
+		),
+		specificHeatJKgK: optionalNumber(z.coerce.number().min(50).max(5000)),
+		latentHeatJKg: optionalNumber(z.coerce.number().min(1000).max(2_000_000)),
+		solidusC: optionalNumber(z.coerce.number().min(100).max(1500)),
+		liquidusC: optionalNumber(z.coerce.number().min(100).max(1500)),
+		pourTempC: optionalNumber(z.coerce.number().min(100).max(1600))
+	})
+	.refine(
+		(a) => a.solidusC === undefined || a.liquidusC === undefined || a.liquidusC >= a.solidusC,
+		{
+			path: ['liquidusC'],
+			message: 'Liquidus must be at or above solidus.'
+		}
+	);

@@ -19,7 +19,12 @@ export const load: PageServerLoad = async (event) => {
 			zod4(preferencesSchema)
 		)
 	]);
-	return { passwordForm, preferencesForm, showNotices: user.role === 'toolroom_lead' || user.role === 'toolmaker' || user.role === 'scheduler' };
+	return {
+		passwordForm,
+		preferencesForm,
+		showNotices:
+			user.role === 'toolroom_lead' || user.role === 'toolmaker' || user.role === 'scheduler'
+	};
 };
 
 export const actions: Actions = {

@@ -11,6 +11,9 @@ export const load: PageServerLoad = async (event) => {
 	const query = dieListQuerySchema.parse(Object.fromEntries(event.url.searchParams));
 	const db = getDb();
 	const scope = scopeOf(user);
-	const [list, owners] = await Promise.all([listDies(db, query, scope), listOwnerOptions(db, scope)]);
+	const [list, owners] = await Promise.all([
+		listDies(db, query, scope),
+		listOwnerOptions(db, scope)
+	]);
 	return { query, ...list, owners, canCreate: DIE_EDITORS.includes(user.role) };
 };

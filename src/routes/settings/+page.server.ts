@@ -11,13 +11,24 @@ import type { Actions, PageServerLoad } from './$types';
 export const load: PageServerLoad = async (event) => {
 	requireRole(event, 'admin');
 	const db = getDb();
-	const [customers, alloys, templates] = await Promise.all([listCustomers(db), listAlloys(db), listServiceTemplates(db)]);
-	const editCustomer = customers.find((c) => c.id === Number(event.url.searchParams.get('customer')));
+	const [customers, alloys, templates] = await Promise.all([
+		listCustomers(db),
+		listAlloys(db),
+		listServiceTemplates(db)
+	]);
+	const editCustomer = customers.find(
+		(c) => c.id === Number(event.url.searchParams.get('customer'))
+	);
 	const editAlloy = alloys.find((a) => a.id === Number(event.url.searchParams.get('alloy')));
 	const [customerForm, alloyForm] = await Promise.all([
 		superValidate(
 			editCustomer
-				? { id: editCustomer.id, code: editCustomer.code, name: editCustomer.name, contactEmail: editCustomer.contact_email ?? '' }
+				? {
+						id: editCustomer.id,
+						code: editCustomer.code,
+						name: editCustomer.name,
+						contactEmail: editCustomer.contact_email ?? ''
+					}
 				: undefined,
 			zod4(customerSchema),
 			{ errors: false }
@@ -50,7 +61,10 @@ export const actions: Actions = {
 		requireRole(event, 'admin');
 		const form = await superValidate(event.request, zod4(customerSchema));
 		if (!form.valid) return fail(400, { customerForm: form });
-		const result = await saveCustomer(getDb(), { ...form.data, contactEmail: form.data.contactEmail || null });
+		const result = await saveCustomer(getDb(), {
+			...form.data,
+			contactEmail: form.data.contactEmail || null
+		});
 		if (!result.ok) return setError(form, 'code', result.message);
 		return message(form, `Customer ${form.data.code} saved.`);
 	},

@@ -5,7 +5,11 @@ import { signInSchema } from '$lib/schemas/auth';
 import { getDb } from '$lib/server/db';
 import { getLucia } from '$lib/server/auth';
 import { dummyPasswordHash, verifyPassword } from '$lib/server/auth/password';
-import { clearAccountFailures, recordSignInFailure, signInBlockedFor } from '$lib/server/auth/throttle';
+import {
+	clearAccountFailures,
+	recordSignInFailure,
+	signInBlockedFor
+} from '$lib/server/auth/throttle';
 import { findUserByEmail } from '$lib/server/users/users';
 import { ROLE_HOME } from '$lib/roles';
 import type { Actions, PageServerLoad } from './$types';
@@ -16,7 +20,8 @@ function safeRedirect(target: string | null): string | null {
 }
 
 export const load: PageServerLoad = async ({ locals, url }) => {
-	if (locals.user) redirect(303, safeRedirect(url.searchParams.get('redirectTo')) ?? ROLE_HOME[locals.user.role]);
+	if (locals.user)
+		redirect(303, safeRedirect(url.searchParams.get('redirectTo')) ?? ROLE_HOME[locals.user.role]);
 	return { form: await superValidate(zod4(signInSchema)) };
 };
 

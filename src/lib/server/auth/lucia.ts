@@ -4,7 +4,11 @@ import type { Role } from '../db/schema';
 
 /** Lucia's storage, written over Kysely so sessions live in the same SQLite file as the rest. */
 export function createKyselyAdapter(db: DB): Adapter {
-	const toSession = (row: { id: string; user_id: string; expires_at: number }): DatabaseSession => ({
+	const toSession = (row: {
+		id: string;
+		user_id: string;
+		expires_at: number;
+	}): DatabaseSession => ({
 		id: row.id,
 		userId: row.user_id,
 		expiresAt: new Date(row.expires_at),
@@ -43,13 +47,21 @@ export function createKyselyAdapter(db: DB): Adapter {
 			return [toSession(row), user];
 		},
 		async getUserSessions(userId) {
-			const rows = await db.selectFrom('sessions').selectAll().where('user_id', '=', userId).execute();
+			const rows = await db
+				.selectFrom('sessions')
+				.selectAll()
+				.where('user_id', '=', userId)
+				.execute();
 			return rows.map(toSession);
 		},
 		async setSession(session) {
 			await db
 				.insertInto('sessions')
-				.values({ id: session.id, user_id: session.userId, expires_at: session.expiresAt.getTime() })
+				.values({
+					id: session.id,
+					user_id: session.userId,
+					expires_at: session.expiresAt.getTime()
+				})
 				.execute();
 		},
 		async updateSessionExpiration(sessionId, expiresAt) {

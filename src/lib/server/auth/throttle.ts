@@ -43,16 +43,23 @@ export async function signInBlockedFor(
 	return 0;
 }
 
-export async function recordSignInFailure(db: DB, email: string, address: string, now = Date.now()) {
+export async function recordSignInFailure(
+	db: DB,
+	email: string,
+	address: string,
+	now = Date.now()
+) {
 	for (const bucket of [accountBucket(email), addressBucket(address)]) {
 		const current = await failuresIn(db, bucket, now);
 		await db
 			.insertInto('sign_in_failures')
 			.values({ bucket, failures: 1, window_started_at: now })
 			.onConflict((oc) =>
-				oc.column('bucket').doUpdateSet(
-					current === 0 ? { failures: 1, window_started_at: now } : { failures: current + 1 }
-				)
+				oc
+					.column('bucket')
+					.doUpdateSet(
+						current === 0 ? { failures: 1, window_started_at: now } : { failures: current + 1 }
+					)
 			)
 			.execute();
 	}

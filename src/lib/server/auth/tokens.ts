@@ -19,7 +19,10 @@ export interface NewTokenInput {
 }
 
 /** Creates a token and returns its secret; only the hash is stored, so this is the one chance to see it. */
-export async function createApiToken(db: DB, input: NewTokenInput): Promise<{ id: number; token: string }> {
+export async function createApiToken(
+	db: DB,
+	input: NewTokenInput
+): Promise<{ id: number; token: string }> {
 	const scopes = [...new Set(input.scopes)].filter((s) => API_SCOPES.includes(s));
 	if (scopes.length === 0) throw new Error('A token needs at least one scope.');
 	const token = TOKEN_PREFIX + randomBytes(32).toString('base64url');
@@ -56,7 +59,11 @@ export async function findActiveToken(db: DB, token: string): Promise<TokenPrinc
 	const now = nowIso();
 	// Touch last-used at most once a minute so a busy press feed does not write on every call.
 	if (!row.last_used_at || Date.parse(now) - Date.parse(row.last_used_at) > 60_000) {
-		await db.updateTable('api_tokens').set({ last_used_at: now }).where('id', '=', row.id).execute();
+		await db
+			.updateTable('api_tokens')
+			.set({ last_used_at: now })
+			.where('id', '=', row.id)
+			.execute();
 	}
 	return {
 		tokenId: row.id,

@@ -5,9 +5,13 @@ import SQLite from 'better-sqlite3';
  * Online backup of a live database with SQLite's backup API: pages are copied in steps while
  * other connections keep writing, and the copy is a consistent snapshot.
  */
-export async function backupDatabase(sourcePath: string, targetPath: string): Promise<{ pages: number }> {
+export async function backupDatabase(
+	sourcePath: string,
+	targetPath: string
+): Promise<{ pages: number }> {
 	if (!fs.existsSync(sourcePath)) throw new Error(`There is no database at ${sourcePath}.`);
-	if (fs.existsSync(targetPath)) throw new Error(`${targetPath} exists already; choose a new file.`);
+	if (fs.existsSync(targetPath))
+		throw new Error(`${targetPath} exists already; choose a new file.`);
 	const source = new SQLite(sourcePath, { fileMustExist: true });
 	try {
 		source.pragma('busy_timeout = 5000');
@@ -22,7 +26,9 @@ export async function backupDatabase(sourcePath: string, targetPath: string): Pr
 export function checkIntegrity(path: string): string {
 	const db = new SQLite(path, { readonly: true, fileMustExist: true });
 	try {
-		return (db.pragma('integrity_check') as { integrity_check: string }[]).map((r) => r.integrity_check).join('; ');
+		return (db.pragma('integrity_check') as { integrity_check: string }[])
+			.map((r) => r.integrity_check)
+			.join('; ');
 	} finally {
 		db.close();
 	}

@@ -14,6 +14,7 @@ const rawHandles = new WeakMap<object, SQLite.Database>();
  * prepared statements in one synchronous IMMEDIATE transaction. Use it only inside
  * `db.connection().execute(...)`, which holds Kysely's connection lock so nothing interleaves.
  */
+// eslint-disable-next-line @typescript-eslint/no-explicit-any
 export function rawHandle(db: Kysely<any>): SQLite.Database {
 	const handle = rawHandles.get(db);
 	if (!handle) throw new Error('This Kysely instance was not opened with openDatabase().');

@@ -5,6 +5,7 @@ import type { AlloyFamily, DieProcess, DieStatus, HalfSide, Role, ShotSource } f
 import type { ToolroomTables } from './schema-toolroom';
 import type { ScheduleTables } from './schema-schedule';
 import type { NoticesTables } from './schema-notices';
+import type { InvitationsTables } from './schema-invitations';
 
 export type { AlloyFamily, DieProcess, DieStatus, HalfSide, Role, ShotSource };
 
@@ -175,7 +176,7 @@ export interface AuditLogTable {
 	detail: Generated<string>;
 }
 
-export interface Database extends ToolroomTables, ScheduleTables, NoticesTables {
+export interface Database extends ToolroomTables, ScheduleTables, NoticesTables, InvitationsTables {
 	customers: CustomersTable;
 	users: UsersTable;
 	sessions: SessionsTable;

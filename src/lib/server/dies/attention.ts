@@ -11,7 +11,11 @@ export interface AttentionRow extends ServiceTaskView {
 }
 
 /** Service tasks of active dies that are coming up, due or overdue, worst first. */
-export async function listServiceAttention(db: DB, asOf = nowIso(), threshold = 0.9): Promise<AttentionRow[]> {
+export async function listServiceAttention(
+	db: DB,
+	asOf = nowIso(),
+	threshold = 0.9
+): Promise<AttentionRow[]> {
 	const rows = await db
 		.selectFrom('service_tasks')
 		.innerJoin('dies', 'dies.id', 'service_tasks.die_id')
@@ -71,10 +75,14 @@ export async function diesNearEndOfLife(db: DB, minPct = 90, customerId: number 
 			'dies.status',
 			'customers.name as customerName',
 			'dies.total_shots as totalShots',
-			sql<number>`100.0 * dies.total_shots / coalesce(dies.expected_life_shots, alloys.expected_life_shots)`.as('lifeUsedPct')
+			sql<number>`100.0 * dies.total_shots / coalesce(dies.expected_life_shots, alloys.expected_life_shots)`.as(
+				'lifeUsedPct'
+			)
 		])
 		.where('dies.status', '!=', 'retired')
-		.where(sql<boolean>`100.0 * dies.total_shots / coalesce(dies.expected_life_shots, alloys.expected_life_shots) >= ${minPct}`)
+		.where(
+			sql<boolean>`100.0 * dies.total_shots / coalesce(dies.expected_life_shots, alloys.expected_life_shots) >= ${minPct}`
+		)
 		.$if(customerId !== null, (q) => q.where('dies.customer_id', '=', customerId!))
 		.orderBy('lifeUsedPct', 'desc')
 		.execute();

@@ -108,7 +108,13 @@ export async function getDieStory(db: DB, die: FoundDie, asOf = nowIso()) {
 		db
 			.selectFrom('audit_log')
 			.leftJoin('users', 'users.id', 'audit_log.user_id')
-			.select(['audit_log.id', 'audit_log.at', 'audit_log.action', 'audit_log.detail', 'users.name as userName'])
+			.select([
+				'audit_log.id',
+				'audit_log.at',
+				'audit_log.action',
+				'audit_log.detail',
+				'users.name as userName'
+			])
 			.where('audit_log.die_id', '=', die.id)
 			.orderBy('audit_log.id', 'desc')
 			.limit(30)

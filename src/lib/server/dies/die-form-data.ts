@@ -4,7 +4,12 @@ import type { DB } from '../db/connect';
 export async function dieFormChoices(db: DB) {
 	const [customers, alloys] = await Promise.all([
 		db.selectFrom('customers').select(['id', 'name', 'code']).orderBy('name').execute(),
-		db.selectFrom('alloys').select(['id', 'name', 'expected_life_shots']).orderBy('family').orderBy('name').execute()
+		db
+			.selectFrom('alloys')
+			.select(['id', 'name', 'expected_life_shots'])
+			.orderBy('family')
+			.orderBy('name')
+			.execute()
 	]);
 	return { customers, alloys };
 }

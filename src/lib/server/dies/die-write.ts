@@ -4,9 +4,14 @@ import type { DieForm } from '../../schemas/die';
 import { writeAudit } from '../audit';
 import { nowIso } from '../time';
 
-export type WriteResult = { ok: true; number: string } | { ok: false; field: string; message: string };
+export type WriteResult =
+	{ ok: true; number: string } | { ok: false; field: string; message: string };
 
-async function checkReferences(db: DB, form: DieForm, excludeDieId?: number): Promise<WriteResult | null> {
+async function checkReferences(
+	db: DB,
+	form: DieForm,
+	excludeDieId?: number
+): Promise<WriteResult | null> {
 	const [clash, customer, alloy] = await Promise.all([
 		db
 			.selectFrom('dies')
@@ -15,7 +20,11 @@ async function checkReferences(db: DB, form: DieForm, excludeDieId?: number): Pr
 			.$if(excludeDieId !== undefined, (q) => q.where('id', '!=', excludeDieId!))
 			.executeTakeFirst(),
 		db.selectFrom('customers').select('id').where('id', '=', form.customerId).executeTakeFirst(),
-		db.selectFrom('alloys').select(['id', 'family']).where('id', '=', form.alloyId).executeTakeFirst()
+		db
+			.selectFrom('alloys')
+			.select(['id', 'family'])
+			.where('id', '=', form.alloyId)
+			.executeTakeFirst()
 	]);
 	if (clash) return { ok: false, field: 'number', message: `Die ${form.number} already exists.` };
 	if (!customer) return { ok: false, field: 'customerId', message: 'That owner does not exist.' };
@@ -24,10 +33,19 @@ async function checkReferences(db: DB, form: DieForm, excludeDieId?: number): Pr
 }
 
 /** Registers a new die with both halves and the service plan of its alloy family, in one transaction. */
-export async function createDie(db: DB, form: DieForm, actorId: string, at = nowIso()): Promise<WriteResult> {
+export async function createDie(
+	db: DB,
+	form: DieForm,
+	actorId: string,
+	at = nowIso()
+): Promise<WriteResult> {
 	const problem = await checkReferences(db, form);
 	if (problem) return problem;
-	const alloy = await db.selectFrom('alloys').select('family').where('id', '=', form.alloyId).executeTakeFirstOrThrow();
+	const alloy = await db
+		.selectFrom('alloys')
+		.select('family')
+		.where('id', '=', form.alloyId)
+		.executeTakeFirstOrThrow();
 	await db.transaction().execute(async (trx) => {
 		const die = await trx
 			.insertInto('dies')
@@ -50,7 +68,9 @@ export async function createDie(db: DB, form: DieForm, actorId: string, at = now
 			.returning('id')
 			.executeTakeFirstOrThrow();
 		for (const side of ['cover', 'ejector'] as const) {
-			const serial = (side === 'cover' ? form.coverSerial : form.ejectorSerial) || `${form.number}-${side === 'cover' ? 'C' : 'E'}1`;
+			const serial =
+				(side === 'cover' ? form.coverSerial : form.ejectorSerial) ||
+				`${form.number}-${side === 'cover' ? 'C' : 'E'}1`;
 			await trx
 				.insertInto('die_halves')
 				.values({ die_id: die.id, side, serial, steel: form.steel || 'H13', installed_at: at })
@@ -75,13 +95,22 @@ export async function createDie(db: DB, form: DieForm, actorId: string, at = now
 				)
 				.execute();
 		}
-		await writeAudit(trx, { userId: actorId, action: 'die.create', dieId: die.id, detail: { number: form.number } }, at);
+		await writeAudit(
+			trx,
+			{ userId: actorId, action: 'die.create', dieId: die.id, detail: { number: form.number } },
+			at
+		);
 	});
 	return { ok: true, number: form.number };
 }
 
 /** Edits the die's register data; counts, halves and status have their own flows. */
-export async function updateDie(db: DB, dieId: number, form: DieForm, actorId: string): Promise<WriteResult> {
+export async function updateDie(
+	db: DB,
+	dieId: number,
+	form: DieForm,
+	actorId: string
+): Promise<WriteResult> {
 	const problem = await checkReferences(db, form, dieId);
 	if (problem) return problem;
 	const at = nowIso();
@@ -105,7 +134,11 @@ export async function updateDie(db: DB, dieId: number, form: DieForm, actorId: s
 			})
 			.where('id', '=', dieId)
 			.execute();
-		await writeAudit(trx, { userId: actorId, action: 'die.edit', dieId, detail: { number: form.number } }, at);
+		await writeAudit(
+			trx,
+			{ userId: actorId, action: 'die.edit', dieId, detail: { number: form.number } },
+			at
+		);
 	});
 	return { ok: true, number: form.number };
 }
@@ -127,7 +160,16 @@ export async function changeDieStatus(
 			.set({ status: to, updated_at: at, retired_at: to === 'retired' ? at : null })
 			.where('id', '=', die.id)
 			.execute();
-		await writeAudit(trx, { userId: actorId, action: 'die.status', dieId: die.id, detail: { from: die.status, to, reason } }, at);
+		await writeAudit(
+			trx,
+			{
+				userId: actorId,
+				action: 'die.status',
+				dieId: die.id,
+				detail: { from: die.status, to, reason }
+			},
+			at
+		);
 	});
 	return { ok: true };
 }

@@ -100,14 +100,15 @@ export async function listOutbox(
 		.innerJoin('notices as n', 'n.id', 'd.notice_id')
 		.innerJoin('dies', 'dies.id', 'n.die_id')
 		.$if(!!query.state, (b) => b.where('d.state', '=', query.state!))
-		.$if(!!q, (b) =>
-			b.where((eb) =>
+		.$if(!!q, (b) => {
+			const pattern = `%${q!.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
+			return b.where((eb) =>
 				eb.or([
-					eb('d.recipient', 'like', `%${escapeLike(q!)}%`, ),
-					eb('dies.number', 'like', `%${escapeLike(q!)}%`)
+					sql<boolean>`d.recipient like ${pattern} escape '\\'`,
+					sql<boolean>`dies.number like ${pattern} escape '\\'`
 				])
-			)
-		);
+			);
+		});
 	const [rows, total] = await Promise.all([
 		base
 			.select([
@@ -133,12 +134,6 @@ export async function listOutbox(
 		base.select((eb) => eb.fn.countAll<number>().as('n')).executeTakeFirstOrThrow()
 	]);
 	return { rows, total: Number(total.n) };
-}
-
-// LIKE without an ESCAPE clause has no escape character in SQLite, so wildcards typed by the
-// admin are taken out rather than escaped.
-function escapeLike(value: string): string {
-	return value.replace(/[%_]/g, '');
 }
 
 /**

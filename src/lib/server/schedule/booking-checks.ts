@@ -199,7 +199,7 @@ function statusChecks(die: DieFacts, jobNumbers: string[]): BookingCheck[] {
  * large parts cold chamber), so it raises nothing. Separately, a die is built for one process
  * (gooseneck nozzle or shot sleeve), so a die on a press of the other chamber type is blocked.
  */
-function chamberChecks(die: DieFacts, press: Press): BookingCheck[] {
+export function chamberChecks(die: DieFacts, press: Press): BookingCheck[] {
 	const checks: BookingCheck[] = [];
 	const pressKind = press.chamber === 'hot' ? 'hot-chamber' : 'cold-chamber';
 	const dieChamber = die.process === 'hot_chamber' ? 'hot' : 'cold';

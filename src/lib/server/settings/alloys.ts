@@ -16,14 +16,19 @@ export async function saveAlloy(
 		.where('code', '=', code)
 		.$if(!!input.id, (q) => q.where('id', '!=', input.id!))
 		.executeTakeFirst();
-	if (clash) return { ok: false, field: 'code', message: `The alloy code ${code} is already in use.` };
+	if (clash)
+		return { ok: false, field: 'code', message: `The alloy code ${code} is already in use.` };
 	const { id, ...rest } = input;
 	const values = { ...rest, code, name: input.name.trim() };
 	if (id) {
 		await db.updateTable('alloys').set(values).where('id', '=', id).execute();
 		return { ok: true, id };
 	}
-	const row = await db.insertInto('alloys').values(values).returning('id').executeTakeFirstOrThrow();
+	const row = await db
+		.insertInto('alloys')
+		.values(values)
+		.returning('id')
+		.executeTakeFirstOrThrow();
 	return { ok: true, id: row.id };
 }
 

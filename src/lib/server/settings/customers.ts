@@ -19,7 +19,11 @@ export async function listCustomers(db: DB) {
 }
 
 export async function findCustomerByCode(db: DB, code: string) {
-	return db.selectFrom('customers').selectAll().where('code', '=', code.trim().toUpperCase()).executeTakeFirst();
+	return db
+		.selectFrom('customers')
+		.selectAll()
+		.where('code', '=', code.trim().toUpperCase())
+		.executeTakeFirst();
 }
 
 export async function saveCustomer(
@@ -39,6 +43,10 @@ export async function saveCustomer(
 		await db.updateTable('customers').set(values).where('id', '=', input.id).execute();
 		return { ok: true, id: input.id };
 	}
-	const row = await db.insertInto('customers').values(values).returning('id').executeTakeFirstOrThrow();
+	const row = await db
+		.insertInto('customers')
+		.values(values)
+		.returning('id')
+		.executeTakeFirstOrThrow();
 	return { ok: true, id: row.id };
 }

@@ -31,7 +31,11 @@ export async function createUser(db: DB, input: NewUserInput, actorId: string | 
 	if (input.role === 'customer' && input.customerId === null) {
 		throw new UserInputError('customerId', 'A tooling owner account must belong to a customer.');
 	}
-	const existing = await db.selectFrom('users').select('id').where('email', '=', email).executeTakeFirst();
+	const existing = await db
+		.selectFrom('users')
+		.select('id')
+		.where('email', '=', email)
+		.executeTakeFirst();
 	if (existing) throw new UserInputError('email', `There is already an account for ${email}.`);
 	const id = generateIdFromEntropySize(10);
 	await db
@@ -45,7 +49,11 @@ export async function createUser(db: DB, input: NewUserInput, actorId: string | 
 			password_hash: await hashPassword(input.password)
 		})
 		.execute();
-	await writeAudit(db, { userId: actorId, action: 'user.create', detail: { id, email, role: input.role } });
+	await writeAudit(db, {
+		userId: actorId,
+		action: 'user.create',
+		detail: { id, email, role: input.role }
+	});
 	return id;
 }
 
@@ -104,16 +112,28 @@ export async function updateUserRole(
 
 export async function setUserActive(db: DB, id: string, active: boolean, actorId: string) {
 	await db.transaction().execute(async (trx) => {
-		await trx.updateTable('users').set({ active: active ? 1 : 0 }).where('id', '=', id).execute();
+		await trx
+			.updateTable('users')
+			.set({ active: active ? 1 : 0 })
+			.where('id', '=', id)
+			.execute();
 		if (!active) await trx.deleteFrom('sessions').where('user_id', '=', id).execute();
-		await writeAudit(trx, { userId: actorId, action: active ? 'user.enable' : 'user.disable', detail: { id } });
+		await writeAudit(trx, {
+			userId: actorId,
+			action: active ? 'user.enable' : 'user.disable',
+			detail: { id }
+		});
 	});
 }
 
 export async function setUserPassword(db: DB, id: string, password: string, actorId: string) {
 	const passwordHash = await hashPassword(password);
 	await db.transaction().execute(async (trx) => {
-		await trx.updateTable('users').set({ password_hash: passwordHash }).where('id', '=', id).execute();
+		await trx
+			.updateTable('users')
+			.set({ password_hash: passwordHash })
+			.where('id', '=', id)
+			.execute();
 		await trx.deleteFrom('sessions').where('user_id', '=', id).execute();
 		await writeAudit(trx, { userId: actorId, action: 'user.password', detail: { id } });
 	});

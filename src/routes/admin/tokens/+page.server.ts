@@ -32,7 +32,11 @@ export const actions: Actions = {
 			customerId: form.data.customerId ?? null,
 			createdBy: admin.id
 		});
-		await writeAudit(db, { userId: admin.id, action: 'token.create', detail: { id, name: form.data.name } });
+		await writeAudit(db, {
+			userId: admin.id,
+			action: 'token.create',
+			detail: { id, name: form.data.name }
+		});
 		// The secret goes back once, in this response only.
 		return message(form, token);
 	},
@@ -41,7 +45,8 @@ export const actions: Actions = {
 		const id = Number((await event.request.formData()).get('id'));
 		if (!Number.isInteger(id) || id <= 0) return fail(400, { revokeError: 'No token given.' });
 		const db = getDb();
-		if (!(await revokeApiToken(db, id))) return fail(404, { revokeError: 'That token does not exist or is already revoked.' });
+		if (!(await revokeApiToken(db, id)))
+			return fail(404, { revokeError: 'That token does not exist or is already revoked.' });
 		await writeAudit(db, { userId: admin.id, action: 'token.revoke', detail: { id } });
 		return { revoked: id };
 	}

@@ -20,7 +20,10 @@ import type { Actions, PageServerLoad } from './$types';
 const roleChangeSchema = z.object({
 	userId: z.string().min(1),
 	role: z.enum(ROLES),
-	customerId: z.preprocess((v) => (v === '' ? undefined : v), z.coerce.number().int().positive().optional())
+	customerId: z.preprocess(
+		(v) => (v === '' ? undefined : v),
+		z.coerce.number().int().positive().optional()
+	)
 });
 
 export const load: PageServerLoad = async (event) => {
@@ -43,7 +46,11 @@ export const actions: Actions = {
 		form.data.password = '';
 		if (!form.valid) return fail(400, { createForm: form });
 		try {
-			await createUser(getDb(), { ...form.data, password, customerId: form.data.customerId ?? null }, admin.id);
+			await createUser(
+				getDb(),
+				{ ...form.data, password, customerId: form.data.customerId ?? null },
+				admin.id
+			);
 		} catch (err) {
 			if (err instanceof UserInputError) return setError(form, err.field as 'email', err.message);
 			throw err;
@@ -53,12 +60,19 @@ export const actions: Actions = {
 	role: async (event) => {
 		const admin = requireRole(event, 'admin');
 		const parsed = roleChangeSchema.safeParse(Object.fromEntries(await event.request.formData()));
-		if (!parsed.success) return fail(400, { rowError: 'Choose a role (and a customer for a tooling owner).' });
+		if (!parsed.success)
+			return fail(400, { rowError: 'Choose a role (and a customer for a tooling owner).' });
 		if (parsed.data.userId === admin.id && parsed.data.role !== 'admin') {
 			return fail(400, { rowError: 'You cannot take the admin role from yourself.' });
 		}
 		try {
-			await updateUserRole(getDb(), parsed.data.userId, parsed.data.role, parsed.data.customerId ?? null, admin.id);
+			await updateUserRole(
+				getDb(),
+				parsed.data.userId,
+				parsed.data.role,
+				parsed.data.customerId ?? null,
+				admin.id
+			);
 		} catch (err) {
 			if (err instanceof UserInputError) return fail(400, { rowError: err.message });
 			throw err;
@@ -71,7 +85,8 @@ export const actions: Actions = {
 		const userId = String(data.get('userId') ?? '');
 		const active = data.get('active') === '1';
 		if (!userId) return fail(400, { rowError: 'No user given.' });
-		if (userId === admin.id && !active) return fail(400, { rowError: 'You cannot disable your own account.' });
+		if (userId === admin.id && !active)
+			return fail(400, { rowError: 'You cannot disable your own account.' });
 		await setUserActive(getDb(), userId, active, admin.id);
 		return { rowMessage: active ? 'Account enabled.' : 'Account disabled; its sessions ended.' };
 	},

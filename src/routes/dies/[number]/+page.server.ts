@@ -7,10 +7,15 @@ import { getDb } from '$lib/server/db';
 import { getDieStory } from '$lib/server/dies/die-detail';
 import { loadPlantDie } from '$lib/server/dies/load-die';
 import { changeDieStatus } from '$lib/server/dies/die-write';
+import { listServicePlan } from '$lib/server/dies/service-plan';
+import { nowIso } from '$lib/server/time';
 import { DIE_EDITORS, PLANT_ROLES } from '$lib/roles';
 import type { DieStatus } from '$lib/domain';
 import type { Actions, PageServerLoad } from './$types';
 
+/** Tasks the overview shows; the plan tab has them all. */
+const OVERVIEW_TASKS = 4;
+const OVERVIEW_ENTRIES = 8;
 
 /** Which states this role may move the die to from where it is. */
 function allowedTargets(role: string, from: DieStatus): DieStatus[] {
@@ -24,13 +29,22 @@ function allowedTargets(role: string, from: DieStatus): DieStatus[] {
 
 export const load: PageServerLoad = async (event) => {
 	const user = requireRole(event, ...PLANT_ROLES);
-	const die = await loadPlantDie(event.params.number);
-	const [story, statusForm] = await Promise.all([
-		getDieStory(getDb(), die),
+	const { die, life } = await event.parent();
+	const db = getDb();
+	const asOf = nowIso();
+	const [story, plan, statusForm] = await Promise.all([
+		getDieStory(db, die, asOf),
+		listServicePlan(db, die, life.shotsPerDay, asOf),
 		superValidate(zod4(dieStatusSchema))
 	]);
+	const needsService = plan.tasks.filter((t) => t.state !== 'on_track').length;
 	return {
-		...story,
+		tasks: plan.tasks.slice(0, OVERVIEW_TASKS),
+		taskCount: plan.tasks.length,
+		needsService,
+		halves: story.halves,
+		entries: story.entries.slice(0, OVERVIEW_ENTRIES),
+		history: story.history,
 		statusForm,
 		statusTargets: allowedTargets(user.role, die.status),
 		canEdit: DIE_EDITORS.includes(user.role)

@@ -14,7 +14,31 @@ export const GET: RequestHandler = async (event) => {
 	const { rows } = await listDies(getDb(), { ...query, page: 1, size: 100_000 }, scopeOf(user));
 	return csvResponse(
 		`castellan-dies-${new Date().toISOString().slice(0, 10)}.csv`,
-		['die', 'part', 'owner', 'alloy', 'family', 'status', 'total_shots', 'expected_life_shots', 'life_used_pct', 'next_service', 'next_service_state'],
-		rows.map((r) => [r.number, r.partName, r.customerName, r.alloyCode, r.family, r.status, r.totalShots, r.expectedLifeShots, r.lifeUsedPct.toFixed(1), r.nextService?.kind ?? '', r.nextService?.state ?? ''])
+		[
+			'die',
+			'part',
+			'owner',
+			'alloy',
+			'family',
+			'status',
+			'total_shots',
+			'expected_life_shots',
+			'life_used_pct',
+			'next_service',
+			'next_service_state'
+		],
+		rows.map((r) => [
+			r.number,
+			r.partName,
+			r.customerName,
+			r.alloyCode,
+			r.family,
+			r.status,
+			r.totalShots,
+			r.expectedLifeShots,
+			r.lifeUsedPct.toFixed(1),
+			r.nextService?.kind ?? '',
+			r.nextService?.state ?? ''
+		])
 	);
 };

@@ -12,7 +12,9 @@ import type { Actions, PageServerLoad } from './$types';
 export const load: PageServerLoad = async (event) => {
 	requireRole(event, ...DIE_EDITORS);
 	const [form, choices] = await Promise.all([
-		superValidate({ cavities: 1, process: 'cold_chamber', steel: 'H13' }, zod4(dieFormSchema), { errors: false }),
+		superValidate({ cavities: 1, process: 'cold_chamber', steel: 'H13' }, zod4(dieFormSchema), {
+			errors: false
+		}),
 		dieFormChoices(getDb())
 	]);
 	return { form, ...choices };

@@ -10,7 +10,6 @@ import { updateDie } from '$lib/server/dies/die-write';
 import { DIE_EDITORS } from '$lib/roles';
 import type { Actions, PageServerLoad } from './$types';
 
-
 export const load: PageServerLoad = async (event) => {
 	requireRole(event, ...DIE_EDITORS);
 	const die = await loadPlantDie(event.params.number);

@@ -1,0 +1,226 @@
+import { sql } from 'kysely';
+import { addDaysToDate } from '../../calc/dates';
+import { TRAILING_RATE_DAYS, type AlloyFamily } from '../../calc/life';
+import { projectServiceDue } from '../../calc/service';
+import type { BoardQuery } from '../../schemas/schedule';
+import type { DB } from '../db/connect';
+import type { DieProcess, DieStatus } from '../db/schema';
+import type { DieScope } from '../dies/register';
+import { viewServiceTask } from '../dies/service-summary';
+import { nowIso } from '../time';
+import { chamberChecks, dieClampRequirement } from './booking-checks';
+import { bookingPhase, listBookingsInWindow, windowBounds } from './bookings';
+import type { DieFacts } from './die-facts';
+import { findPressByName, listPressOptions } from './presses';
+import { listOpenToolroomJobs } from './toolroom-hook';
+
+const DAY_MS = 86_400_000;
+
+// The board answers in compact tables (column names once, rows as arrays) so 2 000 dies and their
+// bookings stay a small, fast JSON document. Rows of the other tables point at a die by its index
+// in `dies.rows`.
+
+export const BOARD_DIE_COLUMNS = ['number', 'part', 'owner', 'family', 'status', 'lifeUsedPct'] as const;
+export type BoardDieRow = [string, string, string, AlloyFamily, DieStatus, number];
+
+export const BOARD_BOOKING_COLUMNS = ['id', 'die', 'press', 'start', 'end', 'order', 'parts', 'phase'] as const;
+export type BoardBookingRow = [number, number, string, string, string, string, number, string];
+
+export const BOARD_JOB_COLUMNS = ['die', 'number', 'kind', 'status', 'openedAt'] as const;
+export type BoardJobRow = [number, string, string, string, string];
+
+export const BOARD_SERVICE_COLUMNS = ['die', 'day', 'kind', 'state'] as const;
+export type BoardServiceRow = [number, string, string, string];
+
+export interface BoardData {
+	from: string;
+	/** Day after the last day shown. */
+	to: string;
+	days: number;
+	today: string;
+	generatedAt: string;
+	press: { name: string; chamber: 'hot' | 'cold'; clampKn: number } | null;
+	dies: { columns: typeof BOARD_DIE_COLUMNS; rows: BoardDieRow[] };
+	bookings: { columns: typeof BOARD_BOOKING_COLUMNS; rows: BoardBookingRow[] };
+	jobs: { columns: typeof BOARD_JOB_COLUMNS; rows: BoardJobRow[] };
+	service: { columns: typeof BOARD_SERVICE_COLUMNS; rows: BoardServiceRow[] };
+}
+
+/** Monday of the UTC week holding `iso` — the board's default first day. */
+export function startOfWeek(iso: string): string {
+	const day = new Date(Date.parse(iso.slice(0, 10)));
+	const back = (day.getUTCDay() + 6) % 7;
+	return new Date(day.getTime() - back * DAY_MS).toISOString().slice(0, 10);
+}
+
+/** Filter choices for the board's skeleton page (server-rendered before the data arrives). */
+export async function loadBoardFilters(db: DB, scope: DieScope) {
+	const [owners, presses] = await Promise.all([
+		db
+			.selectFrom('customers')
+			.select(['code', 'name'])
+			.$if(scope.customerId !== null, (q) => q.where('id', '=', scope.customerId!))
+			.orderBy('name')
+			.execute(),
+		listPressOptions(db)
+	]);
+	return { owners, presses };
+}
+
+interface DieBase {
+	id: number;
+	number: string;
+	part_name: string;
+	owner: string;
+	family: AlloyFamily;
+	status: DieStatus;
+	process: DieProcess;
+	projected_area_cm2: number;
+	has_slides: number;
+	total_shots: number;
+	expectedLife: number;
+	alloyCode: string;
+}
+
+/**
+ * The availability board for a window: active dies (filtered by owner, family and — for a press —
+ * those that fit it by chamber and clamping force), their bookings, open toolroom jobs and the
+ * projected due dates of their service tasks at the trailing shot rate (calc/service).
+ */
+export async function loadBoard(db: DB, query: BoardQuery, scope: DieScope, now = nowIso()): Promise<BoardData> {
+	const today = now.slice(0, 10);
+	const from = query.from ?? startOfWeek(now);
+	const to = addDaysToDate(from, query.days);
+	const { start, end } = windowBounds(from, addDaysToDate(from, query.days - 1));
+
+	const [press, allDies] = await Promise.all([
+		query.press ? findPressByName(db, query.press) : Promise.resolve(undefined),
+		db
+			.selectFrom('dies')
+			.innerJoin('customers', 'customers.id', 'dies.customer_id')
+			.innerJoin('alloys', 'alloys.id', 'dies.alloy_id')
+			.select([
+				'dies.id',
+				'dies.number',
+				'dies.part_name',
+				'customers.code as owner',
+				'alloys.family',
+				'alloys.code as alloyCode',
+				'dies.status',
+				'dies.process',
+				'dies.projected_area_cm2',
+				'dies.has_slides',
+				'dies.total_shots',
+				sql<number>`coalesce(dies.expected_life_shots, alloys.expected_life_shots)`.as('expectedLife')
+			])
+			.where('dies.status', '!=', 'retired')
+			.$if(scope.customerId !== null, (q) => q.where('dies.customer_id', '=', scope.customerId!))
+			.$if(!!query.owner, (q) => q.where('customers.code', '=', query.owner))
+			.$if(!!query.family, (q) => q.where('alloys.family', '=', query.family as AlloyFamily))
+			.orderBy('dies.number')
+			.execute() as Promise<DieBase[]>
+	]);
+
+	let dies = allDies;
+	if (press) {
+		// Dies that could run on the press: right chamber and alloy, enough clamping force.
+		dies = allDies.filter((d) => {
+			const facts = {
+				number: d.number,
+				family: d.family,
+				alloyCode: d.alloyCode,
+				process: d.process,
+				projectedAreaCm2: d.projected_area_cm2,
+				hasSlides: d.has_slides === 1
+			} as DieFacts;
+			const blocked = chamberChecks(facts, press).some((c) => c.level === 'block');
+			return !blocked && dieClampRequirement(facts).requiredKn <= press.clamp_force_kn;
+		});
+	}
+	const index = new Map(dies.map((d, i) => [d.id, i]));
+	const ids = dies.map((d) => d.id);
+	const rateFrom = addDaysToDate(today, -TRAILING_RATE_DAYS);
+
+	const [bookings, jobs, tasks, rates] = await Promise.all([
+		listBookingsInWindow(db, { start, end }, scope),
+		listOpenToolroomJobs(db, ids),
+		ids.length
+			? db
+					.selectFrom('service_tasks')
+					.select(['id', 'die_id', 'kind', 'interval_shots', 'interval_days', 'last_done_at', 'last_done_shots'])
+					.where('active', '=', 1)
+					.where('die_id', 'in', ids)
+					.execute()
+			: Promise.resolve([]),
+		ids.length
+			? db
+					.selectFrom('shot_daily')
+					.select(['die_id', sql<number>`sum(shots)`.as('shots')])
+					.where('die_id', 'in', ids)
+					.where('day', '>', rateFrom)
+					.groupBy('die_id')
+					.execute()
+			: Promise.resolve([])
+	]);
+
+	const perDay = new Map(rates.map((r) => [r.die_id, Math.max(0, Number(r.shots)) / TRAILING_RATE_DAYS]));
+	const totals = new Map(dies.map((d) => [d.id, d.total_shots]));
+	const service: BoardServiceRow[] = [];
+	for (const t of tasks) {
+		const total = totals.get(t.die_id) ?? 0;
+		const view = viewServiceTask(t, total, now);
+		const due = projectServiceDue({
+			intervalShots: t.interval_shots,
+			intervalDays: t.interval_days,
+			shotsSinceDone: view.shotsSinceDone,
+			daysSinceDone: Math.max(0, (Date.parse(now) - Date.parse(t.last_done_at)) / DAY_MS),
+			shotsPerDay: perDay.get(t.die_id) ?? 0,
+			asOf: now
+		});
+		if (due === null || due >= to) continue;
+		// Already due: shown on today (or the first day when the window starts later).
+		const day = due < from ? (today >= from && today < to ? today : from) : due;
+		if (day < from) continue;
+		service.push([index.get(t.die_id)!, day, t.kind, view.state]);
+	}
+
+	return {
+		from,
+		to,
+		days: query.days,
+		today,
+		generatedAt: now,
+		press: press ? { name: press.name, chamber: press.chamber, clampKn: press.clamp_force_kn } : null,
+		dies: {
+			columns: BOARD_DIE_COLUMNS,
+			rows: dies.map((d) => [
+				d.number,
+				d.part_name,
+				d.owner,
+				d.family,
+				d.status,
+				Math.round((1000 * d.total_shots) / d.expectedLife) / 10
+			])
+		},
+		bookings: {
+			columns: BOARD_BOOKING_COLUMNS,
+			rows: bookings
+				.filter((b) => index.has(b.die_id))
+				.map((b) => [
+					b.id,
+					index.get(b.die_id)!,
+					b.pressName,
+					b.starts_at,
+					b.ends_at,
+					b.order_ref,
+					b.parts,
+					bookingPhase(b, now)
+				])
+		},
+		jobs: {
+			columns: BOARD_JOB_COLUMNS,
+			rows: jobs.map((j) => [index.get(j.dieId)!, j.number, j.kind, j.status, j.openedAt])
+		},
+		service: { columns: BOARD_SERVICE_COLUMNS, rows: service }
+	};
+}

@@ -1,0 +1,252 @@
+/**
+ * Photos of toolroom jobs and surface inspections: the upload handler (check every file, keep
+ * processed JPEGs only, rows and files all or nothing), lists, sharing with the owner, and the
+ * access rule of the photo route.
+ */
+import { randomBytes } from 'node:crypto';
+import { MAX_PHOTOS_PER_UPLOAD } from '../../schemas/toolroom';
+import { writeAudit } from '../audit';
+import type { DB } from '../db/connect';
+import {
+	preparePhotos,
+	storePhotoFilesWith,
+	type PhotoProblem,
+	type StoredPhotoFiles,
+	type UploadedFile
+} from '../photos/store';
+import { nowIso } from '../time';
+import { canWorkToolroom } from './access';
+import type { Actor } from './jobs';
+
+export type PhotoTarget = { jobId: number } | { inspectionId: number };
+
+export type UploadResult =
+	| { ok: true; count: number; message: string }
+	| { ok: false; status: 400 | 403 | 404 | 409; message: string; problems: PhotoProblem[] };
+
+/** Random, URL-safe and not guessable: photo addresses must not be found by counting. */
+export function newPublicId(): string {
+	return randomBytes(16).toString('base64url');
+}
+
+/** Inserts the rows of stored photo files; call inside the transaction of the owning record. */
+export async function insertPhotoRows(
+	trx: DB,
+	files: StoredPhotoFiles[],
+	owner: { jobId: number | null; inspectionId: number | null; dieId: number },
+	actorId: string | null,
+	at: string,
+	caption: string | null = null
+) {
+	if (files.length === 0) return;
+	await trx
+		.insertInto('photos')
+		.values(
+			files.map((f) => ({
+				public_id: newPublicId(),
+				job_id: owner.jobId,
+				inspection_id: owner.inspectionId,
+				die_id: owner.dieId,
+				full_file: f.fullFile,
+				thumb_file: f.thumbFile,
+				width: f.image.width,
+				height: f.image.height,
+				sha256: f.image.sha256,
+				bytes: f.image.full.length,
+				thumb_bytes: f.image.thumb.length,
+				source_type: f.image.sourceType,
+				uploaded_by: actorId,
+				uploaded_at: at,
+				caption
+			}))
+		)
+		.execute();
+}
+
+async function findTarget(db: DB, target: PhotoTarget) {
+	if ('jobId' in target) {
+		const job = await db
+			.selectFrom('toolroom_jobs')
+			.select(['id', 'number', 'die_id', 'status'])
+			.where('id', '=', target.jobId)
+			.executeTakeFirst();
+		return job && { dieId: job.die_id, label: job.number, cancelled: job.status === 'cancelled' };
+	}
+	const inspection = await db
+		.selectFrom('surface_inspections')
+		.select(['id', 'die_id'])
+		.where('id', '=', target.inspectionId)
+		.executeTakeFirst();
+	return (
+		inspection && { dieId: inspection.die_id, label: `inspection ${inspection.id}`, cancelled: false }
+	);
+}
+
+/**
+ * The upload handler: adds up to MAX_PHOTOS_PER_UPLOAD photos to a job or an inspection. Every
+ * file is checked by content and processed first; only when all pass are files written and rows
+ * inserted (one transaction), so a refused upload stores nothing at all.
+ */
+export async function uploadPhotos(
+	db: DB,
+	input: {
+		target: PhotoTarget;
+		files: UploadedFile[];
+		actor: Actor;
+		uploadDir: string;
+		caption?: string | null;
+		at?: string;
+	}
+): Promise<UploadResult> {
+	const at = input.at ?? nowIso();
+	if (!canWorkToolroom(input.actor.role)) {
+		return { ok: false, status: 403, message: 'Your role may not add photos.', problems: [] };
+	}
+	const target = await findTarget(db, input.target);
+	if (!target) return { ok: false, status: 404, message: 'That record does not exist.', problems: [] };
+	if (target.cancelled) {
+		return {
+			ok: false,
+			status: 409,
+			message: `${target.label} is cancelled; photos cannot be added.`,
+			problems: []
+		};
+	}
+	const prepared = await preparePhotos(input.files, MAX_PHOTOS_PER_UPLOAD);
+	if (!prepared.ok) return { ok: false, status: 400, ...prepared };
+	const caption = input.caption?.trim() ? input.caption.trim().slice(0, 200) : null;
+	await storePhotoFilesWith(input.uploadDir, prepared.images, (files) =>
+		db.transaction().execute(async (trx) => {
+			await insertPhotoRows(
+				trx,
+				files,
+				{
+					jobId: 'jobId' in input.target ? input.target.jobId : null,
+					inspectionId: 'inspectionId' in input.target ? input.target.inspectionId : null,
+					dieId: target.dieId
+				},
+				input.actor.userId,
+				at,
+				caption
+			);
+			await writeAudit(
+				trx,
+				{
+					userId: input.actor.userId,
+					action: 'photo.add',
+					dieId: target.dieId,
+					detail: { to: target.label, count: files.length }
+				},
+				at
+			);
+		})
+	);
+	const count = prepared.images.length;
+	return { ok: true, count, message: `${count} photo${count === 1 ? '' : 's'} added.` };
+}
+
+const PHOTO_COLUMNS = [
+	'p.public_id as publicId',
+	'p.width',
+	'p.height',
+	'p.caption',
+	'p.uploaded_at as uploadedAt',
+	'p.shared_with_owner as shared',
+	'u.name as uploadedBy'
+] as const;
+
+/** Photos of a job, oldest first. */
+export async function listJobPhotos(db: DB, jobId: number) {
+	return db
+		.selectFrom('photos as p')
+		.leftJoin('users as u', 'u.id', 'p.uploaded_by')
+		.select(PHOTO_COLUMNS)
+		.where('p.job_id', '=', jobId)
+		.orderBy('p.id')
+		.execute();
+}
+
+/** Photos of the given inspections, keyed by inspection id. */
+export async function listInspectionPhotos(db: DB, inspectionIds: number[]) {
+	const byInspection = new Map<number, Awaited<ReturnType<typeof listJobPhotos>>>();
+	if (inspectionIds.length === 0) return byInspection;
+	const rows = await db
+		.selectFrom('photos as p')
+		.leftJoin('users as u', 'u.id', 'p.uploaded_by')
+		.select([...PHOTO_COLUMNS, 'p.inspection_id as inspectionId'])
+		.where('p.inspection_id', 'in', inspectionIds)
+		.orderBy('p.id')
+		.execute();
+	for (const { inspectionId, ...photo } of rows) {
+		const list = byInspection.get(inspectionId!) ?? [];
+		list.push(photo);
+		byInspection.set(inspectionId!, list);
+	}
+	return byInspection;
+}
+
+/** Marks a photo shared with (or hidden from) the die's owner. */
+export async function setPhotoShared(
+	db: DB,
+	input: { publicId: string; shared: boolean; actor: Actor; dieId?: number; at?: string }
+): Promise<{ ok: true } | { ok: false; status: 403 | 404; message: string }> {
+	if (!canWorkToolroom(input.actor.role)) {
+		return { ok: false, status: 403, message: 'Your role may not share photos.' };
+	}
+	const at = input.at ?? nowIso();
+	return db.transaction().execute(async (trx) => {
+		const photo = await trx
+			.selectFrom('photos')
+			.select(['id', 'die_id'])
+			.where('public_id', '=', input.publicId)
+			.$if(input.dieId !== undefined, (q) => q.where('die_id', '=', input.dieId!))
+			.executeTakeFirst();
+		if (!photo) return { ok: false, status: 404, message: 'There is no such photo.' } as const;
+		await trx
+			.updateTable('photos')
+			.set({ shared_with_owner: input.shared ? 1 : 0 })
+			.where('id', '=', photo.id)
+			.execute();
+		await writeAudit(
+			trx,
+			{
+				userId: input.actor.userId,
+				action: 'photo.share',
+				dieId: photo.die_id,
+				detail: { photo: input.publicId, shared: input.shared }
+			},
+			at
+		);
+		return { ok: true } as const;
+	});
+}
+
+/**
+ * The photo a viewer may see, or undefined (the route answers 404 either way): plant roles see
+ * every photo; a tooling owner only a photo marked shared on a die it owns.
+ */
+export async function findViewablePhoto(
+	db: DB,
+	publicId: string,
+	viewer: { role: string; customerId: number | null }
+) {
+	const photo = await db
+		.selectFrom('photos as p')
+		.innerJoin('dies', 'dies.id', 'p.die_id')
+		.select([
+			'p.full_file as fullFile',
+			'p.thumb_file as thumbFile',
+			'p.sha256',
+			'p.shared_with_owner as shared',
+			'dies.customer_id as customerId'
+		])
+		.where('p.public_id', '=', publicId)
+		.executeTakeFirst();
+	if (!photo) return undefined;
+	if (viewer.role === 'customer') {
+		if (!photo.shared || viewer.customerId === null || photo.customerId !== viewer.customerId) {
+			return undefined;
+		}
+	}
+	return photo;
+}
