@@ -27,8 +27,8 @@ const optionalText = (max: number) =>
 		.optional()
 		.transform((v) => (v ? v : null));
 
-const optionalNumber = (schema: z.ZodNumber) =>
-	z.preprocess(blankToUndefined, schema.optional()).transform((v) => v ?? null);
+const optionalNumber = <T extends z.ZodType<number>>(schema: T) =>
+	z.preprocess(blankToUndefined, schema.optional()).transform((v) => (v ?? null) as number | null);
 
 const halfSchema = z.enum(['cover', 'ejector'], { error: 'Choose the half.' });
 

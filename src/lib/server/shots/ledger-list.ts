@@ -31,6 +31,8 @@ export interface ShotListPage {
 }
 
 const MAX_DIES_PER_SEARCH = 500;
+/** Rows in one CSV export; a wider span is exported in date slices. */
+export const SHOT_EXPORT_LIMIT = 100_000;
 
 const cursorOf = (r: { countedAt: string; id: number }) => `${r.countedAt}_${r.id}`;
 function splitCursor(cursor: string): [string, number] {

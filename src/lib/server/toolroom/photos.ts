@@ -113,7 +113,9 @@ export async function uploadPhotos(
 		};
 	}
 	const prepared = await preparePhotos(input.files, MAX_PHOTOS_PER_UPLOAD);
-	if (!prepared.ok) return { ok: false, status: 400, ...prepared };
+	if (!prepared.ok) {
+		return { ok: false, status: 400, message: prepared.message, problems: prepared.problems };
+	}
 	const caption = input.caption?.trim() ? input.caption.trim().slice(0, 200) : null;
 	await storePhotoFilesWith(input.uploadDir, prepared.images, (files) =>
 		db.transaction().execute(async (trx) => {

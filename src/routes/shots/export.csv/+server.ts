@@ -1,0 +1,36 @@
+import { shotListQuerySchema } from '$lib/schemas/shots';
+import { requireRole } from '$lib/server/auth/guard';
+import { csvResponse } from '$lib/server/csv';
+import { getDb } from '$lib/server/db';
+import { listShotEntries, SHOT_EXPORT_LIMIT } from '$lib/server/shots/ledger-list';
+import { SHOT_RECORDERS } from '$lib/roles';
+import type { RequestHandler } from './$types';
+
+// The ledger as filtered on screen, newest first, up to SHOT_EXPORT_LIMIT rows (narrow the dates
+// for more). Columns match what the CSV upload reads, plus who counted and when it was entered.
+export const GET: RequestHandler = async (event) => {
+	requireRole(event, ...SHOT_RECORDERS);
+	const query = shotListQuerySchema.parse(Object.fromEntries(event.url.searchParams));
+	const { rows } = await listShotEntries(
+		getDb(),
+		{ ...query, before: '', after: '' },
+		SHOT_EXPORT_LIMIT
+	);
+	return csvResponse(
+		`castellan-shots-${new Date().toISOString().slice(0, 10)}.csv`,
+		['die', 'counted_at', 'shots', 'counter_start', 'counter_end', 'press', 'source', 'key', 'note', 'entered_by', 'entered_at'],
+		rows.map((r) => [
+			r.die,
+			r.countedAt,
+			r.shots,
+			r.counterStart ?? '',
+			r.counterEnd ?? '',
+			r.press ?? '',
+			r.source,
+			r.key ?? '',
+			r.note ?? '',
+			r.enteredBy ?? r.token ?? '',
+			r.createdAt
+		])
+	);
+};
