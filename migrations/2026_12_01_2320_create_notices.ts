@@ -23,7 +23,6 @@ export async function up(db: Kysely<any>): Promise<void> {
 			sql`level in ('overdue','due','coming_up','life_100','life_90','ready_again')`
 		)
 		.execute();
-	await db.schema.createIndex('notices_die').on('notices').columns(['die_id', 'created_at']).execute();
 
 	await db.schema
 		.createTable('notice_deliveries')
@@ -46,12 +45,11 @@ export async function up(db: Kysely<any>): Promise<void> {
 		)
 		.addUniqueConstraint('notice_deliveries_item_recipient', ['notice_id', 'recipient'])
 		.execute();
-	// The sender's one query: pending rows whose time has come.
-	await db.schema
-		.createIndex('notice_deliveries_state_next')
-		.on('notice_deliveries')
-		.columns(['state', 'next_attempt_at'])
-		.execute();
+	// The sender's one query: pending rows whose time has come. Partial, so the index stays the
+	// size of the queue while sent rows pile up as history.
+	await sql`create index notice_deliveries_pending on notice_deliveries (next_attempt_at) where state = 'pending'`.execute(
+		db
+	);
 	await db.schema
 		.createIndex('notice_deliveries_digest')
 		.on('notice_deliveries')

@@ -4,11 +4,14 @@ import { building } from '$app/environment';
 import { getLucia } from '$lib/server/auth';
 import { getDb } from '$lib/server/db';
 import { migrateToLatest } from '$lib/server/db/connect';
+import { startNoticeCron } from '$lib/server/notices/cron';
 
 export const init: ServerInit = async () => {
 	if (building) return;
 	const applied = await migrateToLatest(getDb());
 	if (applied.length) console.log(`Castellan: applied migrations ${applied.join(', ')}`);
+	// The notice job lives in the server process, once per process (NOTICE_CRON=off stops it).
+	if (!building) startNoticeCron();
 };
 
 const authenticate: Handle = async ({ event, resolve }) => {

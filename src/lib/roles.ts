@@ -25,5 +25,8 @@ export const DIE_EDITORS: RoleName[] = ['admin', 'toolroom_lead'];
 /** Roles that may record shots. */
 export const SHOT_RECORDERS: RoleName[] = ['admin', 'toolroom_lead', 'scheduler'];
 
-export const API_SCOPES = ['shots:write', 'dies:read'] as const;
+/** Roles that may edit presses and press bookings. */
+export const BOOKING_EDITORS: RoleName[] = ['admin', 'scheduler'];
+
+export const API_SCOPES = ['shots:write', 'dies:read', 'bookings:write'] as const;
 export type ApiScope = (typeof API_SCOPES)[number];

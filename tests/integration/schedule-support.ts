@@ -56,9 +56,9 @@ export async function openScheduleDb(): Promise<DB> {
 	await db
 		.insertInto('machines')
 		.values([
-			{ name: 'HC-20', chamber: 'hot', clamp_force_kn: 1961 },
-			{ name: 'CC-40', chamber: 'cold', clamp_force_kn: 3923 },
-			{ name: 'CC-160', chamber: 'cold', clamp_force_kn: 15691 },
+			{ name: 'HC-20', chamber: 'hot', clamp_force_kn: 1961, status: 'available' },
+			{ name: 'CC-40', chamber: 'cold', clamp_force_kn: 3923, status: 'available' },
+			{ name: 'CC-160', chamber: 'cold', clamp_force_kn: 15691, status: 'available' },
 			{ name: 'CC-84', chamber: 'cold', clamp_force_kn: 8238, status: 'down', notes: 'Hydraulic pump rebuild' }
 		])
 		.execute();
@@ -76,7 +76,7 @@ export async function openScheduleDb(): Promise<DB> {
 				cavities: d.cavities ?? 1,
 				projected_area_cm2: d.area,
 				has_slides: d.slides ? 1 : 0,
-				status: d.status ?? 'ready',
+				status: 'ready',
 				created_at: '2026-01-01T00:00:00.000Z',
 				updated_at: '2026-01-01T00:00:00.000Z'
 			})

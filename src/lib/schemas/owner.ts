@@ -26,6 +26,16 @@ export const inviteSchema = z.object({
 });
 export type InviteForm = z.infer<typeof inviteSchema>;
 
+/** What the admin sees once after sending: the link (to pass on if the mail failed) and how it went. */
+export interface InviteOutcome {
+	email: string;
+	link: string;
+	sent: boolean;
+	error?: string;
+	/** Open invitations to the same address that the new one replaced. */
+	replaced?: number;
+}
+
 export const acceptInviteSchema = z
 	.object({
 		password: z

@@ -1,13 +1,10 @@
 import { z } from 'zod';
 import { MAX_PLAUSIBLE_SHOTS_PER_HOUR } from '../calc/life';
 
+// Optional text stays a string ('' when empty) so a form can round-trip it; the server stores
+// empty text as null.
 const optionalText = (max: number) =>
-	z
-		.string()
-		.trim()
-		.max(max, `Keep it under ${max} characters.`)
-		.optional()
-		.transform((v) => (v ? v : null));
+	z.string().trim().max(max, `Keep it under ${max} characters.`).default('');
 
 /** An empty form field means "not given", not zero. */
 const blankToUndefined = (v: unknown) => (v === '' || v === null ? undefined : v);
@@ -53,24 +50,30 @@ export const pressFormSchema = z.object({
 });
 export type PressForm = z.infer<typeof pressFormSchema>;
 
+const DATE_TIME = /^(\d{4}-\d{2}-\d{2})[T ](\d{2}:\d{2}(?::\d{2}(?:\.\d{1,3})?)?)(Z|[+-]\d{2}:\d{2})?$/;
+
 /**
- * Date and time as a `datetime-local` field sends it (read as UTC, the way Castellan shows times)
- * or a full ISO-8601 timestamp with Z or an offset (from the API). Normalised to ISO UTC.
+ * A date and time as a `datetime-local` field sends it (read as UTC, the zone Castellan shows) or
+ * a full ISO-8601 timestamp with Z or an offset, as ISO UTC text; null when it is not one.
  */
-export const instantSchema = (what: string) =>
+export function toUtcIso(value: string): string | null {
+	const m = DATE_TIME.exec(value.trim());
+	const ms = m ? Date.parse(`${m[1]}T${m[2]}${m[3] ?? 'Z'}`) : Number.NaN;
+	return Number.isFinite(ms) ? new Date(ms).toISOString() : null;
+}
+
+/** The `datetime-local` value (YYYY-MM-DDTHH:mm, UTC) of an ISO instant. */
+export function toLocalInput(iso: string): string {
+	return iso.slice(0, 16);
+}
+
+/** Kept as typed so a form can show it again; read with `toUtcIso` after validation. */
+const dateTimeField = (what: string) =>
 	z
 		.string({ error: `Enter the ${what}.` })
 		.trim()
 		.min(1, `Enter the ${what}.`)
-		.transform((v, ctx) => {
-			const m = /^(\d{4}-\d{2}-\d{2})[T ](\d{2}:\d{2}(?::\d{2}(?:\.\d{1,3})?)?)(Z|[+-]\d{2}:\d{2})?$/.exec(v);
-			const ms = m ? Date.parse(`${m[1]}T${m[2]}${m[3] ?? 'Z'}`) : Number.NaN;
-			if (!Number.isFinite(ms)) {
-				ctx.addIssue({ code: 'custom', message: `Give the ${what} as date and time, e.g. 2026-12-14T06:00.` });
-				return z.NEVER;
-			}
-			return new Date(ms).toISOString();
-		});
+		.refine((v) => toUtcIso(v) !== null, `Give the ${what} as date and time, e.g. 2026-12-14T06:00.`);
 
 const bookingFields = {
 	die: z
@@ -80,8 +83,8 @@ const bookingFields = {
 		.min(1, 'Enter the die number, e.g. D-0107.')
 		.max(20, 'A die number has at most 20 characters.'),
 	press: z.string({ error: 'Choose the press.' }).trim().min(1, 'Choose the press.').max(20),
-	startsAt: instantSchema('start'),
-	endsAt: instantSchema('end'),
+	startsAt: dateTimeField('start'),
+	endsAt: dateTimeField('end'),
 	orderRef: z
 		.string({ error: 'Enter the order reference.' })
 		.trim()
@@ -105,8 +108,10 @@ const bookingFields = {
 };
 
 function checkWindow(v: { startsAt: string; endsAt: string }, ctx: z.RefinementCtx) {
-	const start = Date.parse(v.startsAt);
-	const end = Date.parse(v.endsAt);
+	const start = Date.parse(toUtcIso(v.startsAt) ?? '');
+	const end = Date.parse(toUtcIso(v.endsAt) ?? '');
+	// A bad date already has its own message.
+	if (!Number.isFinite(start) || !Number.isFinite(end)) return;
 	if (!(end > start)) {
 		ctx.addIssue({ code: 'custom', path: ['endsAt'], message: 'The end must be after the start.' });
 	} else if (end - start > MAX_BOOKING_DAYS * 86_400_000) {
@@ -131,10 +136,11 @@ export const bookingFormSchema = z
 	.superRefine(checkWindow);
 export type BookingForm = z.infer<typeof bookingFormSchema>;
 
-/** `POST /api/v1/bookings`: warnings are accepted only with `"confirm": true`. */
+/** `POST /api/v1/bookings`: warnings are accepted only with `"confirm": true`. Times as ISO UTC. */
 export const bookingApiSchema = z
 	.object({ ...bookingFields, confirm: z.boolean().default(false) })
-	.superRefine(checkWindow);
+	.superRefine(checkWindow)
+	.transform((v) => ({ ...v, startsAt: toUtcIso(v.startsAt)!, endsAt: toUtcIso(v.endsAt)! }));
 export type BookingApiInput = z.infer<typeof bookingApiSchema>;
 
 export const cancelBookingSchema = z.object({

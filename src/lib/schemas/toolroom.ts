@@ -103,11 +103,15 @@ export const inspectionSchema = z.object({
 		.int('Whole shots.')
 		.min(0, 'Shots cannot be negative.')
 		.max(100_000_000, 'That many shots is not plausible.'),
+	// Nullable so that no grade is preselected on the form: the toolmaker chooses one.
 	grade: z.coerce
 		.number({ error: 'Choose a surface grade.' })
 		.int('Choose a surface grade.')
 		.min(0, 'Choose a surface grade from 0 to 4.')
-		.max(4, 'Choose a surface grade from 0 to 4.'),
+		.max(4, 'Choose a surface grade from 0 to 4.')
+		.nullable()
+		.refine((v) => v !== null, 'Choose a surface grade.')
+		.transform((v) => v as number),
 	longestCrackMm: optionalNumber(
 		z.coerce
 			.number({ error: 'Enter the longest crack in mm, or leave it empty.' })

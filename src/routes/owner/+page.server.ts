@@ -1,29 +1,43 @@
-import { dieListQuerySchema } from '$lib/schemas/die';
-import { requireRole } from '$lib/server/auth/guard';
+import { ownerDieQuerySchema } from '$lib/schemas/owner';
 import { getDb } from '$lib/server/db';
-import { listDies } from '$lib/server/dies/register';
-import { scopeOf } from '$lib/server/dies/scope';
+import { requireOwner } from '$lib/server/owner/guard';
+import {
+	describeLastJob,
+	findOwnerCustomer,
+	loadOwnerDies,
+	pageOwnerDies,
+	summariseOwnerDies
+} from '$lib/server/owner/portfolio';
 import type { PageServerLoad } from './$types';
 
+// The owner's home: its dies only, with totals over all of them and the list searched, sorted
+// and paged as the URL says.
 export const load: PageServerLoad = async (event) => {
-	const user = requireRole(event, 'customer');
+	const { customerId } = requireOwner(event);
 	const db = getDb();
-	const query = dieListQuerySchema.parse(Object.fromEntries(event.url.searchParams));
-	const scope = scopeOf(user);
-	const [list, customer] = await Promise.all([
-		listDies(db, query, scope),
-		db.selectFrom('customers').select(['name', 'code']).where('id', '=', user.customerId!).executeTakeFirstOrThrow()
+	const query = ownerDieQuerySchema.parse(Object.fromEntries(event.url.searchParams));
+	const [customer, dies] = await Promise.all([
+		findOwnerCustomer(db, customerId),
+		loadOwnerDies(db, customerId)
 	]);
-	const all = await listDies(db, { ...query, q: '', status: '', family: '', owner: '', page: 1, size: 100_000 }, scope);
+	const { rows, total } = pageOwnerDies(dies, query);
 	return {
 		query,
-		...list,
-		customer,
-		totals: {
-			dies: all.total,
-			active: all.rows.filter((r) => r.status !== 'retired').length,
-			shots: all.rows.reduce((s, r) => s + r.totalShots, 0),
-			nearReplacement: all.rows.filter((r) => r.status !== 'retired' && r.lifeUsedPct >= 90).length
-		}
+		customer: { name: customer?.name ?? '', code: customer?.code ?? '' },
+		totals: summariseOwnerDies(dies),
+		total,
+		rows: rows.map((d) => ({
+			number: d.number,
+			partName: d.partName,
+			partNumber: d.partNumber,
+			status: d.status,
+			totalShots: d.totalShots,
+			lifeUsedPct: d.lifeUsedPct,
+			shotsRemaining: d.shotsRemaining,
+			projectedEndOfLife: d.projectedEndOfLife,
+			retiredAt: d.retiredAt,
+			nextService: d.nextService,
+			lastJob: d.lastJob ? describeLastJob(d.lastJob) : null
+		}))
 	};
 };

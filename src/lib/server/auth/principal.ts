@@ -1,5 +1,5 @@
 import type { RequestEvent } from '@sveltejs/kit';
-import { SHOT_RECORDERS, type ApiScope, type RoleName } from '../../roles';
+import { BOOKING_EDITORS, SHOT_RECORDERS, type ApiScope, type RoleName } from '../../roles';
 import { ApiError } from '../api/respond';
 import { getDb } from '../db';
 import { findActiveToken } from './tokens';
@@ -15,7 +15,8 @@ export interface Principal {
 
 const SESSION_SCOPES: Record<ApiScope, RoleName[]> = {
 	'dies:read': ['admin', 'toolroom_lead', 'toolmaker', 'scheduler', 'customer'],
-	'shots:write': SHOT_RECORDERS
+	'shots:write': SHOT_RECORDERS,
+	'bookings:write': BOOKING_EDITORS
 };
 
 /**

@@ -12,7 +12,10 @@ import {
 export interface DigestEntry {
 	level: NoticeLevel;
 	subject: string;
-	payload: NoticePayload;
+	/** Sort key within a level. */
+	dieNumber: string;
+	/** Read only for the items listed (the sender parses it lazily). */
+	readonly payload: NoticePayload;
 }
 
 export interface DigestOptions {
@@ -32,6 +35,12 @@ const SAFETY =
 	'Before any service or repair work: lock out the press, treat the die and any metal on it as ' +
 	'hot, relieve stored hydraulic energy and wear the protective equipment your plant requires. ' +
 	"The plant's procedures and local codes come first.";
+
+/**
+ * Items listed one by one in a digest, worst first; the rest are counted. A first run in a plant
+ * with years of backlog should give a readable mail, not thousands of lines.
+ */
+export const MAX_LISTED_ITEMS = 200;
 
 const FOOTER =
 	'You receive this because e-mail notices are switched on for your Castellan account. ' +
@@ -91,7 +100,7 @@ function groupByLevel(entries: readonly DigestEntry[]): [NoticeLevel, DigestEntr
 	for (const level of NOTICE_LEVELS) {
 		const inLevel = entries
 			.filter((e) => e.level === level)
-			.sort((a, b) => a.payload.dieNumber.localeCompare(b.payload.dieNumber));
+			.sort((a, b) => (a.dieNumber < b.dieNumber ? -1 : a.dieNumber > b.dieNumber ? 1 : 0));
 		if (inLevel.length) groups.push([level, inLevel]);
 	}
 	return groups;
@@ -124,6 +133,8 @@ export function composeDigest(entries: readonly DigestEntry[], options: DigestOp
 	const text: string[] = [title, '', intro, ''];
 	const html: string[] = [`<p style="margin:0 0 16px;">${escapeHtml(intro)}</p>`];
 
+	let budget = MAX_LISTED_ITEMS;
+	let omitted = 0;
 	for (const [level, list] of groups) {
 		const heading = `${NOTICE_LEVEL_LABELS[level]} (${list.length})`;
 		text.push(heading.toUpperCase());
@@ -131,7 +142,9 @@ export function composeDigest(entries: readonly DigestEntry[], options: DigestOp
 			`<h2 style="margin:20px 0 8px;font-size:16px;color:#2b3139;border-bottom:1px solid #d1d5db;padding-bottom:4px;">${escapeHtml(heading)}</h2>`,
 			'<table role="presentation" width="100%" cellpadding="0" cellspacing="0" style="border-collapse:collapse;font-size:14px;">'
 		);
-		for (const entry of list) {
+		const listed = list.slice(0, budget);
+		budget -= listed.length;
+		for (const entry of listed) {
 			const p = entry.payload;
 			const link = dieLink(options.origin, p.dieNumber);
 			const detail = describeEntry(p);
@@ -143,8 +156,23 @@ export function composeDigest(entries: readonly DigestEntry[], options: DigestOp
 				'</tr>'
 			);
 		}
-		text.push('');
 		html.push('</table>');
+		const more = list.length - listed.length;
+		if (more > 0) {
+			omitted += more;
+			const line = `… and ${formatShots(more)} more in this group.`;
+			text.push(line);
+			html.push(`<p style="margin:6px 0 0;color:#6b7280;">${escapeHtml(line)}</p>`);
+		}
+		text.push('');
+	}
+	if (omitted > 0) {
+		const home = `${options.origin.replace(/\/+$/, '')}${hasToolroomWork ? '/toolroom' : '/planner'}`;
+		const line = `Only the first ${MAX_LISTED_ITEMS} items are listed; Castellan shows them all:`;
+		text.push(`${line} ${home}`, '');
+		html.push(
+			`<p style="margin:16px 0 0;">${escapeHtml(line)} <a href="${escapeHtml(home)}" style="color:#b4530f;">${escapeHtml(home)}</a></p>`
+		);
 	}
 
 	if (hasToolroomWork) {

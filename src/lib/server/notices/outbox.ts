@@ -57,6 +57,11 @@ export async function writeOutbox(
 	// Kysely's connection lock keeps anything else on this handle out while the synchronous
 	// transaction runs; IMMEDIATE takes the write lock up front so two processes queue, not fail.
 	return db.connection().execute(async () => {
+		// Most items of a daily run are old news: a key probe is cheaper than an insert that the
+		// unique index turns away after the payload was serialised.
+		const known = raw.prepare<[string], { one: number }>(
+			'select 1 as one from notices where notice_key = ?'
+		);
 		const insertNotice = raw.prepare<unknown[], { id: number }>(
 			`insert into notices (notice_key, kind, level, die_id, subject, payload, created_at)
 			 values (?, ?, ?, ?, ?, ?, ?)
@@ -72,6 +77,7 @@ export async function writeOutbox(
 			let notices = 0;
 			let deliveries = 0;
 			for (const item of items) {
+				if (known.get(item.key)) continue;
 				const row = insertNotice.get(
 					item.key,
 					item.kind,

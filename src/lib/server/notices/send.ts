@@ -48,6 +48,7 @@ interface ClaimedRow {
 	attempts: number;
 	level: NoticeLevel;
 	subject: string;
+	die_number: string;
 	payload: string;
 }
 
@@ -66,29 +67,29 @@ async function claimDue(db: DB, at: string): Promise<Claim[]> {
 	const raw = rawHandle(db);
 	const lease = new Date(Date.parse(at) + CLAIM_LEASE_MS).toISOString();
 	return db.connection().execute(async () => {
-		const select = raw.prepare<[string], ClaimedRow>(
-			`select d.id, d.recipient, d.attempts, n.level, n.subject, n.payload
-			   from notice_deliveries d join notices n on n.id = d.notice_id
-			  where d.state = 'pending' and d.next_attempt_at <= ?
-			  order by d.recipient, d.id`
+		const recipients = raw.prepare<[string], { recipient: string }>(
+			`select distinct recipient from notice_deliveries
+			  where state = 'pending' and next_attempt_at <= ? order by recipient`
 		);
 		const claim = raw.prepare(
 			`update notice_deliveries set digest_id = ?, next_attempt_at = ?
-			  where id = ? and state = 'pending'`
+			  where recipient = ? and state = 'pending' and next_attempt_at <= ?`
 		);
-		const run = raw.transaction((): Claim[] => {
-			const byRecipient = new Map<string, Claim>();
-			for (const row of select.all(at)) {
-				let c = byRecipient.get(row.recipient);
-				if (!c) {
-					c = { digestId: randomUUID(), recipient: row.recipient, rows: [] };
-					byRecipient.set(row.recipient, c);
-				}
-				claim.run(c.digestId, lease, row.id);
-				c.rows.push(row);
-			}
-			return [...byRecipient.values()];
-		});
+		const claimed = raw.prepare<[string], ClaimedRow>(
+			`select d.id, d.recipient, d.attempts, n.level, n.subject, dies.number as die_number,
+			        n.payload
+			   from notice_deliveries d
+			   join notices n on n.id = d.notice_id
+			   join dies on dies.id = n.die_id
+			  where d.digest_id = ? order by d.id`
+		);
+		const run = raw.transaction((): Claim[] =>
+			recipients.all(at).map(({ recipient }) => {
+				const digestId = randomUUID();
+				claim.run(digestId, lease, recipient, at);
+				return { digestId, recipient, rows: claimed.all(digestId) };
+			})
+		);
 		return run.immediate();
 	});
 }
@@ -155,6 +156,20 @@ async function markFailed(
 	});
 }
 
+/** A claimed row as the digest reads it; a big digest lists only its worst items, so parse late. */
+function toDigestEntry(row: ClaimedRow): DigestEntry {
+	let payload: NoticePayload | undefined;
+	return {
+		level: row.level,
+		subject: row.subject,
+		dieNumber: row.die_number,
+		get payload() {
+			payload ??= JSON.parse(row.payload) as NoticePayload;
+			return payload;
+		}
+	};
+}
+
 /**
  * Sends every pending delivery whose time has come: one digest e-mail per recipient. Rows are
  * marked sent in one transaction once the relay accepted the mail; a failure leaves them pending
@@ -175,11 +190,7 @@ export async function sendPending(
 		let mail: ComposedMail;
 		let messageId: string;
 		try {
-			const entries: DigestEntry[] = claim.rows.map((r) => ({
-				level: r.level,
-				subject: r.subject,
-				payload: JSON.parse(r.payload) as NoticePayload
-			}));
+			const entries = claim.rows.map(toDigestEntry);
 			mail = composeDigest(entries, { origin: options.origin, asOf: at });
 			({ messageId } = await mailer.send({ to: claim.recipient, ...mail }));
 		} catch (error) {

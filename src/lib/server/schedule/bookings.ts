@@ -77,7 +77,7 @@ export async function createBooking(
 				cancelled_at: null,
 				cancelled_by: null,
 				cancel_reason: null,
-				notes: input.notes ?? null
+				notes: input.notes || null
 			})
 			.returning('id')
 			.executeTakeFirstOrThrow();

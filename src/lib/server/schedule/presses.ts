@@ -72,7 +72,7 @@ export function pressToForm(press: Press, system: UnitSystem): PressForm {
 				? undefined
 				: roundTo(us ? mmToIn(press.tie_bar_spacing_mm) : press.tie_bar_spacing_mm, 2),
 		status: press.status,
-		notes: press.notes
+		notes: press.notes ?? ''
 	};
 }
 
@@ -90,7 +90,7 @@ function formToRow(form: PressForm, system: UnitSystem) {
 		tie_bar_spacing_mm:
 			form.tieBarSpacing === undefined ? null : roundTo(us ? inToMm(form.tieBarSpacing) : form.tieBarSpacing, 1),
 		status: form.status,
-		notes: form.notes
+		notes: form.notes || null
 	};
 }
 

@@ -1,6 +1,13 @@
 import { apiShotEntrySchema } from '../../schemas/shots';
 import type { DB } from '../db/connect';
-import { MAX_BATCH, recordShots, type LedgerActor, type ShotInput, type ShotIssue } from './ledger';
+import {
+	isUnknownDieIssue,
+	MAX_BATCH,
+	recordShots,
+	type LedgerActor,
+	type ShotInput,
+	type ShotIssue
+} from './ledger';
 
 export interface IngestAnswer {
 	status: 201 | 400 | 404;
@@ -88,7 +95,7 @@ export async function ingestShotBody(
 	}
 	if (issues.length) {
 		issues.sort((a, b) => a.index - b.index);
-		if (single && issues.every((i) => i.code === 'unknown_die')) {
+		if (single && issues.every(isUnknownDieIssue)) {
 			return { status: 404, body: { error: issues[0].message } };
 		}
 		const rows = new Set(issues.map((i) => i.index)).size;

@@ -15,13 +15,17 @@ export interface ShotInput {
 	note?: string | null;
 }
 
-/** Why a row was refused; `code` lets callers pick a status (an unknown die is a 404). */
+/** Why a row was refused. */
 export interface ShotIssue {
 	index: number;
 	field: string;
 	message: string;
-	code?: 'unknown_die';
 }
+
+const UNKNOWN_DIE = 'There is no die ';
+/** True for the issue of a die that does not exist (or belongs to another owner): a 404 alone. */
+export const isUnknownDieIssue = (i: ShotIssue) =>
+	i.field === 'die' && i.message.startsWith(UNKNOWN_DIE);
 
 export interface LedgerActor {
 	userId: string | null;
@@ -197,8 +201,7 @@ function checkRows(
 	const correction = opts.source === 'correction';
 
 	inputs.forEach((input, index) => {
-		const issue = (field: string, message: string, code?: ShotIssue['code']) =>
-			issues.push(code ? { index, field, message, code } : { index, field, message });
+		const issue = (field: string, message: string) => issues.push({ index, field, message });
 		if (input === null || typeof input !== 'object') return issue('entry', 'Not an entry.');
 		const number = String(input.die ?? '')
 			.trim()
@@ -207,7 +210,7 @@ function checkRows(
 		const die = dies.get(number);
 		// Another owner's die is answered exactly like a missing one.
 		if (!die || (actor.customerId !== null && die.customer_id !== actor.customerId)) {
-			return issue('die', `There is no die ${number || '(blank)'}.`, 'unknown_die');
+			return issue('die', `${UNKNOWN_DIE}${number || '(blank)'}.`);
 		}
 
 		const shots = input.shots;

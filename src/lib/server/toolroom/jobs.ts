@@ -11,6 +11,7 @@ import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
 import type { DieStatus } from '../db/schema';
 import type { JobStatus } from '../db/schema-toolroom';
+import { sortWorstFirst, viewServiceTask } from '../dies/service-summary';
 import { nowIso } from '../time';
 import { canLeadToolroom, canWorkToolroom } from './access';
 
@@ -51,6 +52,21 @@ export async function listAssignees(db: DB) {
 		.where('role', 'in', ['toolmaker', 'toolroom_lead'])
 		.orderBy('name')
 		.execute();
+}
+
+/** The die's active service tasks with their due state, worst first (to link to a job). */
+export async function listDieServiceTasks(
+	db: DB,
+	die: { id: number; total_shots: number },
+	asOf = nowIso()
+) {
+	const rows = await db
+		.selectFrom('service_tasks')
+		.selectAll()
+		.where('die_id', '=', die.id)
+		.where('active', '=', 1)
+		.execute();
+	return sortWorstFirst(rows.map((t) => viewServiceTask(t, die.total_shots, asOf)));
 }
 
 async function checkAssignee(db: DB, userId: string): Promise<Refusal | null> {

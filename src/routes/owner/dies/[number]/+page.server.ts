@@ -1,25 +1,19 @@
 import { error } from '@sveltejs/kit';
-import { requireRole } from '$lib/server/auth/guard';
 import { getDb } from '$lib/server/db';
-import { dieLife, findDie } from '$lib/server/dies/die-detail';
-import { scopeOf } from '$lib/server/dies/scope';
+import { dieLife } from '$lib/server/dies/die-detail';
+import { findOwnerDie, getOwnerDieStory } from '$lib/server/owner/die-page';
+import { requireOwner } from '$lib/server/owner/guard';
+import { nowIso } from '$lib/server/time';
 import type { PageServerLoad } from './$types';
 
 // Another owner's die answers 404 — the same as a die that does not exist.
 export const load: PageServerLoad = async (event) => {
-	const user = requireRole(event, 'customer');
+	const { customerId } = requireOwner(event);
 	const db = getDb();
-	const die = await findDie(db, event.params.number, scopeOf(user));
+	const die = await findOwnerDie(db, customerId, event.params.number);
 	if (!die) error(404, { message: `You have no die ${event.params.number}.` });
-	const [life, halves] = await Promise.all([
-		dieLife(db, die),
-		db
-			.selectFrom('die_halves')
-			.select(['side', 'serial', 'shots', 'installed_at', 'removed_at', 'active'])
-			.where('die_id', '=', die.id)
-			.orderBy('active', 'desc')
-			.execute()
-	]);
+	const asOf = nowIso();
+	const [life, story] = await Promise.all([dieLife(db, die, asOf), getOwnerDieStory(db, die, asOf)]);
 	return {
 		die: {
 			number: die.number,
@@ -29,9 +23,10 @@ export const load: PageServerLoad = async (event) => {
 			alloyName: die.alloyName,
 			cavities: die.cavities,
 			totalShots: die.total_shots,
-			expectedLifeShots: die.expectedLifeShots
+			expectedLifeShots: die.expectedLifeShots,
+			retiredAt: die.retired_at
 		},
 		life,
-		halves
+		...story
 	};
 };

@@ -1,0 +1,43 @@
+import { error } from '@sveltejs/kit';
+import type { UnitSystem } from '../../calc/units';
+import type { DB } from '../db/connect';
+import { nowIso } from '../time';
+import { evaluateBooking } from './booking-checks';
+import { bookingPhase, getBooking } from './bookings';
+import { shotsNeededFor } from './die-facts';
+
+/**
+ * One booking for its page, with the checks run again against today's die and press (a die may
+ * have gone to the toolroom since it was booked). Ended and cancelled bookings are not re-checked.
+ */
+export async function loadBookingPage(db: DB, idParam: string, unitSystem: UnitSystem, now = nowIso()) {
+	const id = Number(idParam);
+	const booking = Number.isInteger(id) && id > 0 ? await getBooking(db, id, { customerId: null }) : undefined;
+	if (!booking) error(404, { message: 'There is no such booking.' });
+	const phase = bookingPhase(booking, now);
+	const shotsPlanned = shotsNeededFor(booking.parts, booking.cavities, booking.scrap_pct);
+	let checks = null;
+	if (phase === 'planned' || phase === 'running') {
+		const ev = await evaluateBooking(
+			db,
+			{
+				die: booking.dieNumber,
+				press: booking.pressName,
+				startsAt: booking.starts_at,
+				endsAt: booking.ends_at,
+				parts: booking.parts,
+				scrapPct: booking.scrap_pct,
+				shotsPerHour: booking.shots_per_hour
+			},
+			{ now, excludeBookingId: booking.id, unitSystem }
+		);
+		if (ev.ok) checks = { blocks: ev.blocks, warnings: ev.warnings };
+	}
+	return {
+		booking,
+		phase,
+		shotsPlanned,
+		pressHours: shotsPlanned / booking.shots_per_hour,
+		checks
+	};
+}

@@ -1,0 +1,88 @@
+import { fail } from '@sveltejs/kit';
+import { message, setError, superValidate } from 'sveltekit-superforms';
+import { zod4 } from 'sveltekit-superforms/adapters';
+import { env } from '$env/dynamic/private';
+import { inviteSchema, type InviteOutcome } from '$lib/schemas/owner';
+import { requireRole } from '$lib/server/auth/guard';
+import { getDb } from '$lib/server/db';
+import { readNoticeConfig } from '$lib/server/notices/config';
+import { deliverInvitation, type InvitationMailConfig } from '$lib/server/owner/invitation-mail';
+import {
+	createInvitation,
+	listInvitations,
+	renewInvitation,
+	withdrawInvitation
+} from '$lib/server/owner/invitations';
+import { readPlantName } from '$lib/server/owner/plant-name';
+import { listCustomers } from '$lib/server/settings/customers';
+import type { Actions, PageServerLoad } from './$types';
+
+function mailConfig(): InvitationMailConfig {
+	const notices = readNoticeConfig(env);
+	return {
+		smtpUrl: notices.smtpUrl,
+		from: notices.from,
+		origin: notices.origin,
+		plantName: readPlantName(env)
+	};
+}
+
+export const load: PageServerLoad = async (event) => {
+	requireRole(event, 'admin');
+	const db = getDb();
+	const [customers, invitations, form] = await Promise.all([
+		listCustomers(db),
+		listInvitations(db),
+		superValidate(zod4(inviteSchema), { errors: false })
+	]);
+	return { customers: customers.map((c) => ({ id: c.id, name: c.name })), invitations, form };
+};
+
+export const actions: Actions = {
+	create: async (event) => {
+		const admin = requireRole(event, 'admin');
+		const form = await superValidate(event.request, zod4(inviteSchema));
+		if (!form.valid) return fail(400, { form });
+		const db = getDb();
+		const created = await createInvitation(db, { ...form.data, invitedBy: admin.id });
+		if (!created.ok) return setError(form, created.field, created.message);
+		const delivery = await deliverInvitation(
+			db,
+			{ ...created, name: form.data.name },
+			mailConfig()
+		);
+		const outcome: InviteOutcome = {
+			email: created.email,
+			link: delivery.link,
+			sent: delivery.sent,
+			error: delivery.sent ? undefined : delivery.error,
+			replaced: created.replaced
+		};
+		return message(form, outcome);
+	},
+	renew: async (event) => {
+		const admin = requireRole(event, 'admin');
+		const id = Number((await event.request.formData()).get('id'));
+		if (!Number.isInteger(id) || id <= 0) return fail(400, { listError: 'No invitation given.' });
+		const db = getDb();
+		const renewed = await renewInvitation(db, id, admin.id);
+		if (!renewed.ok) return fail(404, { listError: renewed.message });
+		const delivery = await deliverInvitation(db, renewed, mailConfig());
+		const outcome: InviteOutcome = {
+			email: renewed.email,
+			link: delivery.link,
+			sent: delivery.sent,
+			error: delivery.sent ? undefined : delivery.error
+		};
+		return { renewed: outcome };
+	},
+	withdraw: async (event) => {
+		const admin = requireRole(event, 'admin');
+		const id = Number((await event.request.formData()).get('id'));
+		if (!Number.isInteger(id) || id <= 0) return fail(400, { listError: 'No invitation given.' });
+		if (!(await withdrawInvitation(getDb(), id, admin.id))) {
+			return fail(404, { listError: 'That invitation is already used, withdrawn or gone.' });
+		}
+		return { withdrawn: id };
+	}
+};

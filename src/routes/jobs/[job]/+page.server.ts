@@ -1,0 +1,185 @@
+import { error, fail, redirect } from '@sveltejs/kit';
+import { message, setError, superValidate } from 'sveltekit-superforms';
+import { zod4 } from 'sveltekit-superforms/adapters';
+import {
+	assignJobSchema,
+	cancelJobSchema,
+	closeJobSchema,
+	jobStatusSchema,
+	MAX_PHOTOS_PER_UPLOAD,
+	photoShareSchema
+} from '$lib/schemas/toolroom';
+import { requireRole } from '$lib/server/auth/guard';
+import { getDb } from '$lib/server/db';
+import { viewServiceTask } from '$lib/server/dies/service-summary';
+import { MAX_PHOTO_BYTES, MAX_PHOTO_PIXELS } from '$lib/server/photos/process-image';
+import { selectedFiles } from '$lib/server/photos/store';
+import { getUploadDir } from '$lib/server/photos/upload-dir';
+import {
+	canLeadToolroom,
+	canWorkToolroom,
+	TOOLROOM_READERS,
+	TOOLROOM_WORKERS
+} from '$lib/server/toolroom/access';
+import {
+	assignJob,
+	cancelJob,
+	closeJob,
+	getJob,
+	isActiveJob,
+	JOB_MOVES,
+	jobAgeDays,
+	listAssignees,
+	moveJob
+} from '$lib/server/toolroom/jobs';
+import { listJobPhotos, setPhotoShared, uploadPhotos } from '$lib/server/toolroom/photos';
+import { nowIso } from '$lib/server/time';
+import type { Actions, PageServerLoad } from './$types';
+
+async function loadJob(number: string) {
+	const job = await getJob(getDb(), number);
+	if (!job) error(404, { message: `There is no toolroom job ${number}.` });
+	return job;
+}
+
+export const load: PageServerLoad = async (event) => {
+	const user = requireRole(event, ...TOOLROOM_READERS);
+	const job = await loadJob(event.params.job);
+	const db = getDb();
+	const asOf = nowIso();
+	const [photos, assignees, closeForm, cancelForm, assignForm] = await Promise.all([
+		listJobPhotos(db, job.id),
+		listAssignees(db),
+		superValidate(zod4(closeJobSchema), { id: 'close' }),
+		superValidate(zod4(cancelJobSchema), { id: 'cancel' }),
+		superValidate({ assignedTo: job.assigned_to ?? '' }, zod4(assignJobSchema), { id: 'assign' })
+	]);
+	const active = isActiveJob(job.status);
+	return {
+		job,
+		tasks: job.tasks.map((t) => ({
+			...viewServiceTask(
+				{
+					id: t.id,
+					kind: t.kind,
+					interval_shots: t.intervalShots,
+					interval_days: t.intervalDays,
+					last_done_at: t.lastDoneAt,
+					last_done_shots: t.lastDoneShots
+				},
+				job.dieTotalShots,
+				asOf
+			),
+			doneAtShots: t.doneAtShots
+		})),
+		ageDays: jobAgeDays(job.opened_at, job.closed_at ?? asOf),
+		photos,
+		assignees,
+		closeForm,
+		cancelForm,
+		assignForm,
+		moves: active ? JOB_MOVES[job.status as keyof typeof JOB_MOVES] : [],
+		canWork: canWorkToolroom(user.role),
+		canLead: canLeadToolroom(user.role),
+		limits: {
+			maxFiles: MAX_PHOTOS_PER_UPLOAD,
+			maxBytes: MAX_PHOTO_BYTES,
+			maxMegapixels: MAX_PHOTO_PIXELS / 1e6
+		}
+	};
+};
+
+export const actions: Actions = {
+	status: async (event) => {
+		const user = requireRole(event, ...TOOLROOM_WORKERS);
+		const parsed = jobStatusSchema.safeParse(Object.fromEntries(await event.request.formData()));
+		if (!parsed.success) return fail(400, { statusError: 'Choose the new status.' });
+		const result = await moveJob(getDb(), {
+			number: event.params.job,
+			to: parsed.data.to,
+			actor: { userId: user.id, role: user.role }
+		});
+		if (!result.ok) return fail(result.status, { statusError: result.message });
+		return { statusMessage: 'Status changed.' };
+	},
+
+	assign: async (event) => {
+		const user = requireRole(event, ...TOOLROOM_WORKERS);
+		const form = await superValidate(event.request, zod4(assignJobSchema), { id: 'assign' });
+		if (!form.valid) return fail(400, { assignForm: form });
+		const result = await assignJob(getDb(), {
+			number: event.params.job,
+			assignedTo: form.data.assignedTo,
+			actor: { userId: user.id, role: user.role }
+		});
+		if (!result.ok) return setError(form, 'assignedTo', result.message, { status: result.status });
+		return message(form, 'Assignment saved.');
+	},
+
+	close: async (event) => {
+		const user = requireRole(event, ...TOOLROOM_WORKERS);
+		const form = await superValidate(event.request, zod4(closeJobSchema), { id: 'close' });
+		if (!form.valid) return fail(400, { closeForm: form });
+		const result = await closeJob(getDb(), {
+			number: event.params.job,
+			form: form.data,
+			actor: { userId: user.id, role: user.role }
+		});
+		if (!result.ok) return message(form, result.message, { status: result.status });
+		redirect(303, `/jobs/${event.params.job.toUpperCase()}`);
+	},
+
+	cancel: async (event) => {
+		const user = requireRole(event, ...TOOLROOM_WORKERS);
+		const form = await superValidate(event.request, zod4(cancelJobSchema), { id: 'cancel' });
+		if (!form.valid) return fail(400, { cancelForm: form });
+		const result = await cancelJob(getDb(), {
+			number: event.params.job,
+			reason: form.data.reason,
+			actor: { userId: user.id, role: user.role }
+		});
+		if (!result.ok) return message(form, result.message, { status: result.status });
+		redirect(303, `/jobs/${event.params.job.toUpperCase()}`);
+	},
+
+	upload: async (event) => {
+		const user = requireRole(event, ...TOOLROOM_WORKERS);
+		const job = await loadJob(event.params.job);
+		let data: FormData;
+		try {
+			data = await event.request.formData();
+		} catch {
+			// The body was cut off: over the server's size limit, or the connection dropped.
+			const upload = { ok: false, message: 'The upload did not arrive whole. Send fewer photos at once.', problems: [] };
+			return fail(413, { upload });
+		}
+		const result = await uploadPhotos(getDb(), {
+			target: { jobId: job.id },
+			files: selectedFiles(data.getAll('photos')),
+			caption: String(data.get('caption') ?? ''),
+			actor: { userId: user.id, role: user.role },
+			uploadDir: getUploadDir()
+		});
+		if (!result.ok) {
+			return fail(result.status, {
+				upload: { ok: false, message: result.message, problems: result.problems }
+			});
+		}
+		return { upload: { ok: true, message: result.message, problems: [] } };
+	},
+
+	share: async (event) => {
+		const user = requireRole(event, ...TOOLROOM_WORKERS);
+		const job = await loadJob(event.params.job);
+		const parsed = photoShareSchema.safeParse(Object.fromEntries(await event.request.formData()));
+		if (!parsed.success) return fail(400, { shareError: 'Unknown photo.' });
+		const result = await setPhotoShared(getDb(), {
+			publicId: parsed.data.photo,
+			shared: parsed.data.shared,
+			dieId: job.die_id,
+			actor: { userId: user.id, role: user.role }
+		});
+		if (!result.ok) return fail(result.status, { shareError: result.message });
+		return { shareMessage: parsed.data.shared ? 'Photo shared with the owner.' : 'Photo no longer shared.' };
+	}
+};

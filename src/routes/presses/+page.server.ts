@@ -1,0 +1,14 @@
+import { requireRole } from '$lib/server/auth/guard';
+import { getDb } from '$lib/server/db';
+import { listPresses } from '$lib/server/schedule/presses';
+import { BOOKING_EDITORS, PLANT_ROLES } from '$lib/roles';
+import type { PageServerLoad } from './$types';
+
+export const load: PageServerLoad = async (event) => {
+	const user = requireRole(event, ...PLANT_ROLES);
+	return {
+		presses: await listPresses(getDb()),
+		unitSystem: user.unitSystem,
+		canEdit: BOOKING_EDITORS.includes(user.role)
+	};
+};
