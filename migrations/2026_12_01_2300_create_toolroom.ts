@@ -6,7 +6,6 @@ import { sql, type Kysely } from 'kysely';
 
 const now = sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`;
 
-// eslint-disable-next-line @typescript-eslint/no-explicit-any
 export async function up(db: Kysely<any>): Promise<void> {
 	await db.schema
 		.createTable('toolroom_jobs')
@@ -181,7 +180,6 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.execute();
 }
 
-// eslint-disable-next-line @typescript-eslint/no-explicit-any
 export async function down(db: Kysely<any>): Promise<void> {
 	for (const table of [
 		'cooling_checks',

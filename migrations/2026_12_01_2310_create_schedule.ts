@@ -28,8 +28,13 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addCheckConstraint('press_bookings_rate_check', sql`shots_per_hour > 0`)
 		.execute();
 	// Window queries range over starts_at (bookings have a bounded length, so a window only needs
-	// the starts in [from − longest booking, to)); overlap checks look per die and per press.
-	await db.schema.createIndex('press_bookings_start').on('press_bookings').column('starts_at').execute();
+	// the starts in [from − longest booking, to)) and test ends_at from the same index entry;
+	// overlap checks look per die and per press.
+	await db.schema
+		.createIndex('press_bookings_window')
+		.on('press_bookings')
+		.columns(['starts_at', 'ends_at'])
+		.execute();
 	await db.schema
 		.createIndex('press_bookings_die')
 		.on('press_bookings')

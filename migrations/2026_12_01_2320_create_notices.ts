@@ -5,7 +5,6 @@ import { sql, type Kysely } from 'kysely';
 // one `notice_deliveries` row per (item, recipient) with its own state and back-off, and one
 // `notice_digests` row per e-mail the relay accepted.
 
-// eslint-disable-next-line @typescript-eslint/no-explicit-any
 export async function up(db: Kysely<any>): Promise<void> {
 	await db.schema
 		.createTable('notices')
@@ -39,10 +38,7 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addColumn('digest_id', 'text')
 		.addColumn('created_at', 'text', (c) => c.notNull())
 		.addColumn('sent_at', 'text')
-		.addCheckConstraint(
-			'notice_deliveries_state_check',
-			sql`state in ('pending','sent','failed')`
-		)
+		.addCheckConstraint('notice_deliveries_state_check', sql`state in ('pending','sent','failed')`)
 		.addUniqueConstraint('notice_deliveries_item_recipient', ['notice_id', 'recipient'])
 		.execute();
 	// The sender's one query: pending rows whose time has come. Partial, so the index stays the
@@ -50,11 +46,10 @@ export async function up(db: Kysely<any>): Promise<void> {
 	await sql`create index notice_deliveries_pending on notice_deliveries (next_attempt_at) where state = 'pending'`.execute(
 		db
 	);
-	await db.schema
-		.createIndex('notice_deliveries_digest')
-		.on('notice_deliveries')
-		.column('digest_id')
-		.execute();
+	// A sender finds its claimed rows by digest id; only pending rows are ever looked up so.
+	await sql`create index notice_deliveries_claim on notice_deliveries (digest_id) where state = 'pending'`.execute(
+		db
+	);
 
 	await db.schema
 		.createTable('notice_digests')
@@ -65,10 +60,13 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addColumn('message_id', 'text')
 		.addColumn('sent_at', 'text', (c) => c.notNull())
 		.execute();
-	await db.schema.createIndex('notice_digests_sent').on('notice_digests').column('sent_at').execute();
+	await db.schema
+		.createIndex('notice_digests_sent')
+		.on('notice_digests')
+		.column('sent_at')
+		.execute();
 }
 
-// eslint-disable-next-line @typescript-eslint/no-explicit-any
 export async function down(db: Kysely<any>): Promise<void> {
 	await db.schema.dropTable('notice_digests').execute();
 	await db.schema.dropTable('notice_deliveries').execute();

@@ -43,9 +43,7 @@ async function seedFleet(db: DB): Promise<void> {
 		expected_life_shots: number;
 	}[];
 	raw.transaction(() => {
-		raw
-			.prepare(`insert into customers (code, name) values ('BENCH', 'Bench Castings')`)
-			.run();
+		raw.prepare(`insert into customers (code, name) values ('BENCH', 'Bench Castings')`).run();
 		const user = raw.prepare(
 			`insert into users (id, email, name, role, password_hash) values (?, ?, ?, ?, 'x')`
 		);
@@ -72,7 +70,8 @@ async function seedFleet(db: DB): Promise<void> {
 			// by up to 30 %. Roughly a fifth of all tasks then stand at coming up or worse.
 			const share = () => (rand() < 0.9 ? rand() : 1 + rand() * 0.3);
 			const since = (interval: number) => Math.max(0, total - Math.floor(share() * interval));
-			const doneAt = (days: number) => new Date(Date.parse(NOW) - share() * days * DAY).toISOString();
+			const doneAt = (days: number) =>
+				new Date(Date.parse(NOW) - share() * days * DAY).toISOString();
 			task.run(id, 'stress_relief', 15_000, null, doneAt(60), since(15_000));
 			task.run(id, 'surface_inspection', 10_000, 30, doneAt(30), since(10_000));
 			task.run(id, 'cooling_flush', null, 90, doneAt(90), 0);
@@ -148,6 +147,8 @@ function isEntryPoint(): boolean {
 
 if (isEntryPoint()) {
 	for (const f of await run()) {
-		console.log(`${f.figure}: ${f.value.toFixed(1)} ${f.unit} (target ${f.target}) ${f.pass ? 'pass' : 'FAIL'}`);
+		console.log(
+			`${f.figure}: ${f.value.toFixed(1)} ${f.unit} (target ${f.target}) ${f.pass ? 'pass' : 'FAIL'}`
+		);
 	}
 }

@@ -32,8 +32,12 @@ try {
 	});
 	console.log(`Notice run at ${now.toISOString()} on ${databasePath()}`);
 	console.log(`  items standing      ${r.items}`);
-	console.log(`  new in the outbox   ${r.written} (${r.queued} deliveries, ${r.recipients} recipients)`);
-	console.log(`  digests sent        ${r.digests} (${r.sent} items) via ${config.smtpUrl.replace(/\/\/[^@/]*@/, '//')}`);
+	console.log(
+		`  new in the outbox   ${r.written} (${r.queued} deliveries, ${r.recipients} recipients)`
+	);
+	console.log(
+		`  digests sent        ${r.digests} (${r.sent} items) via ${config.smtpUrl.replace(/\/\/[^@/]*@/, '//')}`
+	);
 	console.log(`  left to retry       ${r.retrying}`);
 	console.log(`  marked failed       ${r.failed}`);
 	for (const error of r.errors) console.error(`  error: ${error}`);

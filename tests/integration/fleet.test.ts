@@ -60,7 +60,13 @@ beforeEach(async () => {
 	db = await openTestDatabase();
 	await db
 		.insertInto('users')
-		.values({ id: LEAD, email: 'lead@test', name: 'Lead', role: 'toolroom_lead', password_hash: 'x' })
+		.values({
+			id: LEAD,
+			email: 'lead@test',
+			name: 'Lead',
+			role: 'toolroom_lead',
+			password_hash: 'x'
+		})
 		.execute();
 	customerId = (
 		await db

@@ -8,7 +8,15 @@ import { startFakeMail, type FakeMail } from '../../fakes/mail/server';
 import { migrateToLatest, openDatabase, type DB } from '../../src/lib/server/db/connect';
 import { createMailer, type Mailer } from '../../src/lib/server/mail/transport';
 import { runNotices } from '../../src/lib/server/notices';
-import { deliveryStates, diesIn, mailFor, NOW, ORIGIN, seedPlant, TOOLROOM_RECIPIENTS } from './notices-support';
+import {
+	deliveryStates,
+	diesIn,
+	mailFor,
+	NOW,
+	ORIGIN,
+	seedPlant,
+	TOOLROOM_RECIPIENTS
+} from './notices-support';
 
 const run = promisify(execFile);
 
@@ -55,7 +63,10 @@ describe('two runs at once on one database file', () => {
 		const a = openDatabase(file);
 		const b = openDatabase(file);
 		const mailers: Mailer[] = [a, b].map(() =>
-			createMailer({ smtpUrl: `smtp://127.0.0.1:${mail.smtpPort}`, from: 'Castellan <c@plant.test>' })
+			createMailer({
+				smtpUrl: `smtp://127.0.0.1:${mail.smtpPort}`,
+				from: 'Castellan <c@plant.test>'
+			})
 		);
 		try {
 			const [ra, rb] = await Promise.all([

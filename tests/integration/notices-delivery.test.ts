@@ -67,7 +67,14 @@ describe('SMTP failures', () => {
 
 	it('leaves rows pending with the error while the relay is down, then sends them once it is back', async () => {
 		const down = await runNotices(db, { now: NOW, mailer: deadMailer, origin: ORIGIN });
-		expect(down).toMatchObject({ written: 4, queued: 8, digests: 0, sent: 0, retrying: 8, failed: 0 });
+		expect(down).toMatchObject({
+			written: 4,
+			queued: 8,
+			digests: 0,
+			sent: 0,
+			retrying: 8,
+			failed: 0
+		});
 		expect(down.errors).toHaveLength(2);
 		const rows = await db.selectFrom('notice_deliveries').selectAll().execute();
 		for (const row of rows) {
@@ -78,11 +85,19 @@ describe('SMTP failures', () => {
 		expect((await outboxHealth(db, NOW)).status).toBe('retrying');
 
 		// The relay is back, but the back-off has not run out: nothing goes yet.
-		const early = await runNotices(db, { now: at(NOW, BACKOFF_BASE_MS / 2), mailer, origin: ORIGIN });
+		const early = await runNotices(db, {
+			now: at(NOW, BACKOFF_BASE_MS / 2),
+			mailer,
+			origin: ORIGIN
+		});
 		expect(early).toMatchObject({ written: 0, digests: 0 });
 		expect(mail.messages()).toEqual([]);
 
-		const back = await runNotices(db, { now: at(NOW, BACKOFF_BASE_MS + 1), mailer, origin: ORIGIN });
+		const back = await runNotices(db, {
+			now: at(NOW, BACKOFF_BASE_MS + 1),
+			mailer,
+			origin: ORIGIN
+		});
 		expect(back).toMatchObject({ written: 0, digests: 2, sent: 8 });
 		for (const email of TOOLROOM_RECIPIENTS) {
 			const digests = mailFor(mail.messages(), email);
@@ -102,7 +117,12 @@ describe('SMTP failures', () => {
 	it('marks rows failed after the attempt limit, and an admin resend sends them', async () => {
 		let clock = NOW;
 		for (let attempt = 1; attempt <= 3; attempt++) {
-			const r = await runNotices(db, { now: clock, mailer: deadMailer, origin: ORIGIN, maxAttempts: 3 });
+			const r = await runNotices(db, {
+				now: clock,
+				mailer: deadMailer,
+				origin: ORIGIN,
+				maxAttempts: 3
+			});
 			expect(r.failed).toBe(attempt === 3 ? 8 : 0);
 			// Past each back-off, not so far that any die moves to a new state.
 			clock = at(clock, 3 * 3_600_000);
@@ -113,7 +133,9 @@ describe('SMTP failures', () => {
 		expect(health.lastError).toMatch(/could not be sent/);
 
 		// Failed rows stay put, however long the relay has been back.
-		expect(await runNotices(db, { now: clock, mailer, origin: ORIGIN })).toMatchObject({ digests: 0 });
+		expect(await runNotices(db, { now: clock, mailer, origin: ORIGIN })).toMatchObject({
+			digests: 0
+		});
 
 		const lead = await db
 			.selectFrom('notice_deliveries')
@@ -165,14 +187,21 @@ describe('restarts', () => {
 		try {
 			const resumed = await runNotices(after, { now: NOW, mailer: freshMailer, origin: ORIGIN });
 			expect(resumed).toMatchObject({ written: 0, digests: 2, sent: 8 });
-			expect(await runNotices(after, { now: NOW, mailer: freshMailer, origin: ORIGIN })).toMatchObject({
+			expect(
+				await runNotices(after, { now: NOW, mailer: freshMailer, origin: ORIGIN })
+			).toMatchObject({
 				digests: 0
 			});
 		} finally {
 			freshMailer.close();
 			await after.destroy();
 		}
-		expect(mail.messages().map((m) => m.to).sort()).toEqual(TOOLROOM_RECIPIENTS.map((e) => [e]));
+		expect(
+			mail
+				.messages()
+				.map((m) => m.to)
+				.sort()
+		).toEqual(TOOLROOM_RECIPIENTS.map((e) => [e]));
 	});
 
 	it('sends again after the lease when a process died while its mail was on the way', async () => {
@@ -181,14 +210,29 @@ describe('restarts', () => {
 		// The relay never answers this process: it claims the rows, then "dies" mid-send.
 		const hung = { send: () => new Promise<never>(() => {}) };
 		void runNotices(dying, { now: NOW, mailer: hung, origin: ORIGIN });
-		await expect.poll(async () => (await dying.selectFrom('notice_deliveries').select('digest_id').where('digest_id', 'is not', null).execute()).length).toBe(8);
+		await expect
+			.poll(
+				async () =>
+					(
+						await dying
+							.selectFrom('notice_deliveries')
+							.select('digest_id')
+							.where('digest_id', 'is not', null)
+							.execute()
+					).length
+			)
+			.toBe(8);
 
 		const other = openDatabase(file);
 		try {
 			// Within the lease another process leaves the claimed rows alone ...
-			expect(await sendPending(other, mailer, at(NOW, 60_000), { origin: ORIGIN })).toMatchObject({ digests: 0 });
+			expect(await sendPending(other, mailer, at(NOW, 60_000), { origin: ORIGIN })).toMatchObject({
+				digests: 0
+			});
 			// ... after it, they go out.
-			const late = await sendPending(other, mailer, at(NOW, CLAIM_LEASE_MS + 1), { origin: ORIGIN });
+			const late = await sendPending(other, mailer, at(NOW, CLAIM_LEASE_MS + 1), {
+				origin: ORIGIN
+			});
 			expect(late).toMatchObject({ digests: 2, sent: 8 });
 		} finally {
 			await other.destroy();

@@ -162,7 +162,11 @@ describe('runNotices', () => {
 describe('queueJobCompletedMail', () => {
 	it('tells the planners once that a die is ready again', async () => {
 		const closedAt = at(NOW, hours(1));
-		const job = { dieNumber: 'D-9003', jobNumber: 'TJ-00042', summary: 'Stress relieved & polished.' };
+		const job = {
+			dieNumber: 'D-9003',
+			jobNumber: 'TJ-00042',
+			summary: 'Stress relieved & polished.'
+		};
 		expect(await queueJobCompletedMail(db, job, closedAt)).toEqual({ queued: 1 });
 		expect(await queueJobCompletedMail(db, job, closedAt)).toEqual({ queued: 0 });
 

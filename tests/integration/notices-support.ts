@@ -43,7 +43,13 @@ export async function seedPlant(db: DB, now = NOW): Promise<Plant> {
 		.returning('id')
 		.executeTakeFirstOrThrow();
 
-	const users: [string, string, 'admin' | 'toolroom_lead' | 'toolmaker' | 'scheduler', number, number][] = [
+	const users: [
+		string,
+		string,
+		'admin' | 'toolroom_lead' | 'toolmaker' | 'scheduler',
+		number,
+		number
+	][] = [
 		['u-admin', 'admin@plant.test', 'admin', 1, 1],
 		['u-lead', 'lead@plant.test', 'toolroom_lead', 1, 1],
 		['u-maker', 'maker@plant.test', 'toolmaker', 1, 1],

@@ -249,11 +249,11 @@ describe('warnings, each with its message', () => {
 	test('the shots the die runs before the booking count (trailing rate)', async () => {
 		await runDaily(db, 'Z-1', 100);
 		await addTask(db, 'Z-1', { kind: 'stress_relief', intervalShots: 25_000, leftShots: 2_000 });
-		// The trailing window (NOW − 28 d, NOW] holds 27 of those days: 2700 / 28 = 96.4 shots a day,
-		// over the 6 d 22 h until the start ≈ 667 shots, leaving 1 333 of the 2 000: due mid-run.
+		// The roll-up dates each day at noon; all 28 days fall in (NOW − 28 d, NOW]: 100 shots a day
+		// over the 6 d 22 h until the start = 692 shots, leaving 1 308 of the 2 000: due mid-run.
 		const ev = await checks();
-		expect(ev.shotsBeforeStart).toBe(667);
-		expect(ev.warnings[0].message).toMatch(/after about 1,333 of the run's 2,000 shots/);
+		expect(ev.shotsBeforeStart).toBe(692);
+		expect(ev.warnings[0].message).toMatch(/after about 1,308 of the run's 2,000 shots/);
 		// Starting in 30 days, the interval is used up before the run.
 		const late = await checks({ startsAt: at(30, 6), endsAt: at(30, 22) });
 		expect(late.warnings[0].message).toBe(

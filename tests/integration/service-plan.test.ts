@@ -10,7 +10,11 @@ import {
 	updateTaskIntervals
 } from '../../src/lib/server/dies/service-plan';
 import { recordShots } from '../../src/lib/server/shots/ledger';
-import { taskIntervalsSchema, addTaskSchema, markDoneSchema } from '../../src/lib/schemas/service-plan';
+import {
+	taskIntervalsSchema,
+	addTaskSchema,
+	markDoneSchema
+} from '../../src/lib/schemas/service-plan';
 
 const LEAD = 'lead-0001';
 const CREATED = '2026-01-05T08:00:00.000Z';
@@ -32,7 +36,11 @@ async function taskOf(kind: string) {
 }
 
 async function auditActions() {
-	const rows = await db.selectFrom('audit_log').select(['action', 'die_id']).orderBy('id').execute();
+	const rows = await db
+		.selectFrom('audit_log')
+		.select(['action', 'die_id'])
+		.orderBy('id')
+		.execute();
 	return rows.filter((r) => r.action.startsWith('service.'));
 }
 
@@ -40,7 +48,13 @@ beforeEach(async () => {
 	db = await openTestDatabase();
 	await db
 		.insertInto('users')
-		.values({ id: LEAD, email: 'lead@test', name: 'Lead', role: 'toolroom_lead', password_hash: 'x' })
+		.values({
+			id: LEAD,
+			email: 'lead@test',
+			name: 'Lead',
+			role: 'toolroom_lead',
+			password_hash: 'x'
+		})
 		.execute();
 	const customer = await db
 		.insertInto('customers')
@@ -79,10 +93,15 @@ beforeEach(async () => {
 		shots: 1000,
 		countedAt: `2026-02-${String(i + 1).padStart(2, '0')}T22:00:00.000Z`
 	}));
-	const result = await recordShots(db, rows, { userId: LEAD, tokenId: null, customerId: null }, {
-		source: 'manual',
-		now: NOW
-	});
+	const result = await recordShots(
+		db,
+		rows,
+		{ userId: LEAD, tokenId: null, customerId: null },
+		{
+			source: 'manual',
+			now: NOW
+		}
+	);
 	expect(result.ok).toBe(true);
 });
 
@@ -116,7 +135,11 @@ describe('service plan of a die', () => {
 
 describe('editing intervals', () => {
 	it('rejects a task with neither a shot nor a day interval, with a clear message', () => {
-		const parsed = taskIntervalsSchema.safeParse({ taskId: 1, intervalShots: '', intervalDays: '' });
+		const parsed = taskIntervalsSchema.safeParse({
+			taskId: 1,
+			intervalShots: '',
+			intervalDays: ''
+		});
 		expect(parsed.success).toBe(false);
 		expect(parsed.error!.issues[0].message).toBe('Give an interval in shots, in days, or both.');
 	});
@@ -130,8 +153,16 @@ describe('editing intervals', () => {
 		expect(days.error!.issues[0].message).toMatch(/5 years/);
 		const fraction = taskIntervalsSchema.safeParse({ taskId: 1, intervalShots: '1500.5' });
 		expect(fraction.error!.issues[0].message).toBe('Enter whole shots.');
-		const ok = taskIntervalsSchema.safeParse({ taskId: 1, intervalShots: '20000', intervalDays: '' });
-		expect(ok.success && ok.data).toEqual({ taskId: 1, intervalShots: 20000, intervalDays: undefined });
+		const ok = taskIntervalsSchema.safeParse({
+			taskId: 1,
+			intervalShots: '20000',
+			intervalDays: ''
+		});
+		expect(ok.success && ok.data).toEqual({
+			taskId: 1,
+			intervalShots: 20000,
+			intervalDays: undefined
+		});
 	});
 
 	it('saves new intervals, recomputes the state and audits the change', async () => {
@@ -148,13 +179,21 @@ describe('editing intervals', () => {
 		expect(after.intervalShots).toBe(20_000);
 		expect(after.intervalDays).toBe(180);
 		expect(after.state).toBe('on_track'); // 16 000 / 20 000 = 80 %
-		expect(await auditActions()).toEqual([{ action: 'service.intervals', die_id: (await die()).id }]);
+		expect(await auditActions()).toEqual([
+			{ action: 'service.intervals', die_id: (await die()).id }
+		]);
 	});
 
 	it('refuses a task of another die and changes nothing', async () => {
 		const relief = await taskOf('stress_relief');
 		const other = { ...(await die()), id: 9999 };
-		const result = await updateTaskIntervals(db, other, { taskId: relief.id, intervalShots: 500 }, LEAD, NOW);
+		const result = await updateTaskIntervals(
+			db,
+			other,
+			{ taskId: relief.id, intervalShots: 500 },
+			LEAD,
+			NOW
+		);
 		expect(result).toMatchObject({ ok: false, status: 404 });
 		expect((await taskOf('stress_relief')).intervalShots).toBe(15_000);
 		expect(await auditActions()).toEqual([]);
@@ -248,7 +287,9 @@ describe('marking a task done', () => {
 	});
 
 	it('rejects a malformed or impossible date in the schema', () => {
-		expect(markDoneSchema.safeParse({ taskId: 1, doneOn: '10/03/2026', shots: 5 }).success).toBe(false);
+		expect(markDoneSchema.safeParse({ taskId: 1, doneOn: '10/03/2026', shots: 5 }).success).toBe(
+			false
+		);
 		const feb30 = markDoneSchema.safeParse({ taskId: 1, doneOn: '2026-02-30', shots: 5 });
 		expect(feb30.error!.issues[0].message).toBe('That is not a calendar date.');
 	});
@@ -270,7 +311,14 @@ describe('marking a task done', () => {
 describe('adding and deactivating tasks', () => {
 	it('takes a task off the plan, then adds that kind again counting from now', async () => {
 		const flush = await taskOf('cooling_flush');
-		const off = await deactivateServiceTask(db, await die(), flush.id, 'Circuit plugged for good', LEAD, NOW);
+		const off = await deactivateServiceTask(
+			db,
+			await die(),
+			flush.id,
+			'Circuit plugged for good',
+			LEAD,
+			NOW
+		);
 		expect(off.ok).toBe(true);
 		let plan = await listServicePlan(db, await die(), 0, NOW);
 		expect(plan.tasks.some((t) => t.kind === 'cooling_flush')).toBe(false);

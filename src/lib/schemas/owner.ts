@@ -21,7 +21,11 @@ export const inviteSchema = z.object({
 		.number({ error: 'Choose the customer.' })
 		.int()
 		.positive('Choose the customer.'),
-	name: z.string().trim().min(2, 'Enter the person’s name.').max(100, 'Keep it under 100 characters.'),
+	name: z
+		.string()
+		.trim()
+		.min(2, 'Enter the person’s name.')
+		.max(100, 'Keep it under 100 characters.'),
 	email: z.string().trim().toLowerCase().email('Enter a valid e-mail address.').max(200)
 });
 export type InviteForm = z.infer<typeof inviteSchema>;
@@ -51,13 +55,19 @@ export const acceptInviteSchema = z
 
 /** One toolroom job's owner summary and whether the owner sees it. */
 export const shareJobSchema = z.object({
-	job: z.string().trim().regex(/^TJ-\d{5,}$/, 'No job given.'),
+	job: z
+		.string()
+		.trim()
+		.regex(/^TJ-\d{5,}$/, 'No job given.'),
 	ownerSummary: z.string().trim().max(1000, 'Keep the summary under 1000 characters.').default(''),
 	shared: z.preprocess((v) => v === 'on' || v === 'true' || v === true, z.boolean())
 });
 
 /** One photo shown to or hidden from the owner. */
 export const sharePhotoSchema = z.object({
-	photo: z.string().trim().regex(/^[A-Za-z0-9_-]{8,64}$/, 'No photo given.'),
+	photo: z
+		.string()
+		.trim()
+		.regex(/^[A-Za-z0-9_-]{8,64}$/, 'No photo given.'),
 	shared: z.preprocess((v) => v === 'on' || v === 'true' || v === true, z.boolean())
 });

@@ -57,7 +57,13 @@ export type TaskIntervalsForm = z.infer<typeof taskIntervalsSchema>;
 
 export const addTaskSchema = z
 	.object({
-		kind: z.enum(SERVICE_KINDS, { error: 'Choose the kind of service.' }),
+		// A string, not an enum, so the form starts on "Choose…" rather than the first kind.
+		kind: z
+			.string({ error: 'Choose the kind of service.' })
+			.refine(
+				(v) => (SERVICE_KINDS as readonly string[]).includes(v),
+				'Choose the kind of service.'
+			),
 		intervalShots,
 		intervalDays
 	})

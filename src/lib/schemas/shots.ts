@@ -6,7 +6,7 @@ export const SHOT_SOURCE_LABELS: Record<(typeof SHOT_SOURCES)[number], string> =
 	csv: 'CSV upload',
 	api: 'API',
 	correction: 'Correction',
-	seed: 'Opening data'
+	seed: 'Imported'
 };
 
 /** `YYYY-MM-DDTHH:MM` as a datetime-local input sends it (read as UTC). */
@@ -80,9 +80,12 @@ export function pressRunShots(v: Pick<PressRunForm, 'shots' | 'counterStart' | '
 
 /** A correcting entry: signed, with a mandatory reason. */
 export const correctionSchema = z.object({
+	// Optional in the schema only so the field starts empty; the refine makes it required.
 	shots: z
 		.number({ error: 'Enter the correction in shots (negative to take shots off).' })
 		.int('Enter whole shots.')
+		.optional()
+		.refine((n) => n !== undefined, 'Enter the correction in shots (negative to take shots off).')
 		.refine((n) => n !== 0, 'A correction must change the count (not 0).'),
 	countedAt: z
 		.string()

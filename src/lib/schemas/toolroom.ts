@@ -19,16 +19,27 @@ export const MAX_PHOTOS_PER_UPLOAD = 10;
 const blankToUndefined = (v: unknown) =>
 	v === '' || v === null || v === undefined ? undefined : v;
 
+// Null as well as empty: an untouched field comes back from the client as null.
 const optionalText = (max: number) =>
 	z
 		.string()
 		.trim()
 		.max(max, `Keep it under ${max} characters.`)
-		.optional()
+		.nullish()
 		.transform((v) => (v ? v : null));
 
 const optionalNumber = <T extends z.ZodType<number>>(schema: T) =>
 	z.preprocess(blankToUndefined, schema.optional()).transform((v) => (v ?? null) as number | null);
+
+/**
+ * A number the user must type: nullable so forms start empty rather than at 0 (superforms'
+ * default for a number), and refused when left empty.
+ */
+const requiredNumber = <T extends z.ZodType<number>>(schema: T, message: string) =>
+	schema
+		.nullable()
+		.refine((v) => v !== null, message)
+		.transform((v) => v as number);
 
 const halfSchema = z.enum(['cover', 'ejector'], { error: 'Choose the half.' });
 
@@ -68,10 +79,13 @@ export const closeJobSchema = z
 			.trim()
 			.min(3, 'Record the work done.')
 			.max(4000, 'Keep it under 4000 characters.'),
-		hours: z.coerce
-			.number({ error: 'Enter the hours worked, e.g. 2.5.' })
-			.min(0, 'Hours cannot be negative.')
-			.max(500, 'More than 500 hours on one job is not plausible; split it.'),
+		hours: requiredNumber(
+			z.coerce
+				.number({ error: 'Enter the hours worked, e.g. 2.5.' })
+				.min(0, 'Hours cannot be negative.')
+				.max(500, 'More than 500 hours on one job is not plausible; split it.'),
+			'Enter the hours worked, e.g. 2.5.'
+		),
 		partsUsed: optionalText(2000),
 		billableToOwner: z.boolean().default(false),
 		ownerSummary: optionalText(2000),
@@ -103,15 +117,15 @@ export const inspectionSchema = z.object({
 		.int('Whole shots.')
 		.min(0, 'Shots cannot be negative.')
 		.max(100_000_000, 'That many shots is not plausible.'),
-	// Nullable so that no grade is preselected on the form: the toolmaker chooses one.
-	grade: z.coerce
-		.number({ error: 'Choose a surface grade.' })
-		.int('Choose a surface grade.')
-		.min(0, 'Choose a surface grade from 0 to 4.')
-		.max(4, 'Choose a surface grade from 0 to 4.')
-		.nullable()
-		.refine((v) => v !== null, 'Choose a surface grade.')
-		.transform((v) => v as number),
+	// No grade is preselected: the toolmaker chooses one.
+	grade: requiredNumber(
+		z.coerce
+			.number({ error: 'Choose a surface grade.' })
+			.int('Choose a surface grade.')
+			.min(0, 'Choose a surface grade from 0 to 4.')
+			.max(4, 'Choose a surface grade from 0 to 4.'),
+		'Choose a surface grade.'
+	),
 	longestCrackMm: optionalNumber(
 		z.coerce
 			.number({ error: 'Enter the longest crack in mm, or leave it empty.' })
@@ -132,38 +146,57 @@ export const circuitSchema = z.object({
 		.min(1, 'Label the circuit as it is marked on the die, e.g. “C1 core”.')
 		.max(40, 'Keep it under 40 characters.'),
 	coolant: z.enum(['water', 'oil'], { error: 'Choose water or oil.' }),
-	channelDiameterMm: z.coerce
-		.number({ error: 'Enter the channel diameter in mm.' })
-		.gt(0, 'The diameter must be more than 0 mm.')
-		.max(80, 'More than 80 mm is not plausible for a die cooling channel.'),
-	nominalFlowLpm: z.coerce
-		.number({ error: 'Enter the nominal flow in L/min.' })
-		.gt(0, 'The nominal flow must be more than 0 L/min.')
-		.max(500, 'More than 500 L/min is not plausible for one circuit.')
+	channelDiameterMm: requiredNumber(
+		z.coerce
+			.number({ error: 'Enter the channel diameter in mm.' })
+			.gt(0, 'The diameter must be more than 0 mm.')
+			.max(80, 'More than 80 mm is not plausible for a die cooling channel.'),
+		'Enter the channel diameter in mm.'
+	),
+	nominalFlowLpm: requiredNumber(
+		z.coerce
+			.number({ error: 'Enter the nominal flow in L/min.' })
+			.gt(0, 'The nominal flow must be more than 0 L/min.')
+			.max(500, 'More than 500 L/min is not plausible for one circuit.'),
+		'Enter the nominal flow in L/min.'
+	)
 });
 export type CircuitForm = z.infer<typeof circuitSchema>;
 
 export const coolingCheckSchema = z.object({
 	circuitId: z.coerce.number({ error: 'Choose the circuit.' }).int().positive('Choose the circuit.'),
-	measuredFlowLpm: z.coerce
-		.number({ error: 'Enter the measured flow in L/min.' })
-		.min(0, 'Flow cannot be negative.')
-		.max(1000, 'More than 1000 L/min is not plausible.'),
-	inletC: z.coerce
-		.number({ error: 'Enter the inlet temperature in °C.' })
-		.min(1, 'Inlet temperature must be at least 1 °C.')
-		.max(350, 'More than 350 °C is not plausible.'),
-	outletC: z.coerce
-		.number({ error: 'Enter the outlet temperature in °C.' })
-		.min(1, 'Outlet temperature must be at least 1 °C.')
-		.max(350, 'More than 350 °C is not plausible.'),
+	measuredFlowLpm: requiredNumber(
+		z.coerce
+			.number({ error: 'Enter the measured flow in L/min.' })
+			.min(0, 'Flow cannot be negative.')
+			.max(1000, 'More than 1000 L/min is not plausible.'),
+		'Enter the measured flow in L/min.'
+	),
+	inletC: requiredNumber(
+		z.coerce
+			.number({ error: 'Enter the inlet temperature in °C.' })
+			.min(1, 'Inlet temperature must be at least 1 °C.')
+			.max(350, 'More than 350 °C is not plausible.'),
+		'Enter the inlet temperature in °C.'
+	),
+	outletC: requiredNumber(
+		z.coerce
+			.number({ error: 'Enter the outlet temperature in °C.' })
+			.min(1, 'Outlet temperature must be at least 1 °C.')
+			.max(350, 'More than 350 °C is not plausible.'),
+		'Enter the outlet temperature in °C.'
+	),
 	supplyPressureBar: optionalNumber(
 		z.coerce
 			.number({ error: 'Enter the supply pressure in bar, or leave it empty.' })
 			.min(0, 'Pressure cannot be negative.')
 			.max(60, 'More than 60 bar is not plausible for a cooling supply.')
 	),
-	leakTest: z.enum(['pass', 'fail'], { error: 'Record the leak test: pass or fail.' }),
+	leakTest: z
+		.enum(['pass', 'fail'], { error: 'Record the leak test: pass or fail.' })
+		.nullable()
+		.refine((v) => v !== null, 'Record the leak test: pass or fail.')
+		.transform((v) => v as 'pass' | 'fail'),
 	notes: optionalText(2000),
 	oilDensityKgM3: optionalNumber(
 		z.coerce

@@ -1,10 +1,25 @@
 import { requireRole } from '$lib/server/auth/guard';
 import { getDb } from '$lib/server/db';
 import { listServiceAttention } from '$lib/server/dies/attention';
+import { summariseOpenJobs } from '$lib/server/toolroom/board';
+import { listWeakCircuits } from '$lib/server/toolroom/cooling';
+import { listRisingSurfaces } from '$lib/server/toolroom/inspections';
 import type { PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
 	requireRole(event, 'toolroom_lead', 'toolmaker', 'admin');
-	const attention = await listServiceAttention(getDb());
-	return { attention: attention.slice(0, 200), attentionTotal: attention.length };
+	const db = getDb();
+	const [attention, jobs, rising, weakCircuits] = await Promise.all([
+		listServiceAttention(db),
+		summariseOpenJobs(db),
+		listRisingSurfaces(db),
+		listWeakCircuits(db)
+	]);
+	return {
+		attention: attention.slice(0, 200),
+		attentionTotal: attention.length,
+		jobs,
+		rising: rising.slice(0, 30),
+		weakCircuits: weakCircuits.slice(0, 30)
+	};
 };

@@ -45,7 +45,7 @@ export function kaplanMeier(
 	let atRisk = events.length;
 	let survival = 1;
 	const steps: KaplanMeierStep[] = [];
-	for (let i = 0; i < events.length; ) {
+	for (let i = 0; i < events.length;) {
 		const age = events[i].shots;
 		let failed = 0;
 		let leaving = 0;

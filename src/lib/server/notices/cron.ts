@@ -63,12 +63,12 @@ function deliverOnce(state: NoticeCron): Promise<void> {
  * Starts the notice job in this server process: the daily run on NOTICE_CRON (default 06:00
  * server time) and the delivery tick. Once per process; never while building; not at all when
  * NOTICE_CRON=off. A bad expression is reported and leaves the server running without the job.
- * Returns whether the job is running.
+ * Returns whether the job is running. `source` is the environment (tests pass their own).
  */
-export function startNoticeCron(): boolean {
+export function startNoticeCron(source: Record<string, string | undefined> = env): boolean {
 	if (building) return false;
 	if (holder[STATE]) return true;
-	const config = readNoticeConfig(env);
+	const config = readNoticeConfig(source);
 	if (config.cron === null) {
 		console.log('Castellan notices: off (NOTICE_CRON=off).');
 		return false;
@@ -87,7 +87,10 @@ export function startNoticeCron(): boolean {
 	};
 	holder[STATE] = state;
 	state.tasks.push(
-		cron.schedule(config.cron, () => runOnce(state), { name: 'castellan-notices', noOverlap: true }),
+		cron.schedule(config.cron, () => runOnce(state), {
+			name: 'castellan-notices',
+			noOverlap: true
+		}),
 		cron.schedule(DELIVERY_TICK, () => deliverOnce(state), {
 			name: 'castellan-notice-delivery',
 			noOverlap: true

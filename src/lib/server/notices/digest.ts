@@ -60,7 +60,8 @@ function shotsWord(n: number): string {
 }
 
 function daysWord(n: number): string {
-	const d = Math.abs(Math.round(n));
+	const d = Math.floor(Math.abs(n));
+	if (d === 0) return 'under a day';
 	return `${d} day${d === 1 ? '' : 's'}`;
 }
 
@@ -68,7 +69,9 @@ function daysWord(n: number): string {
 export function describeEntry(payload: NoticePayload): string {
 	switch (payload.kind) {
 		case 'service': {
-			const parts = [`${serviceKindLabel(payload.taskKind)}: ${pct(payload.fraction)} of its interval`];
+			const parts = [
+				`${serviceKindLabel(payload.taskKind)}: ${pct(payload.fraction)} of its interval`
+			];
 			if (payload.shotsRemaining !== null) {
 				parts.push(
 					payload.shotsRemaining >= 0
@@ -119,7 +122,10 @@ function subjectOf(groups: [NoticeLevel, DigestEntry[]][], count: number, single
  * link to its die. Plain text and HTML carry the same content; every value is escaped in the
  * HTML. Nothing but die facts goes in: no tokens, no account data.
  */
-export function composeDigest(entries: readonly DigestEntry[], options: DigestOptions): ComposedMail {
+export function composeDigest(
+	entries: readonly DigestEntry[],
+	options: DigestOptions
+): ComposedMail {
 	if (entries.length === 0) throw new Error('A digest needs at least one item.');
 	const groups = groupByLevel(entries);
 	const subject = subjectOf(groups, entries.length, entries[0]);

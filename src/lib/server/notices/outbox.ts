@@ -125,7 +125,8 @@ export async function queueJobCompletedMail(
 		.select(['dies.id', 'dies.number', 'dies.part_name', 'customers.name as customer_name'])
 		.where('dies.number', '=', dieNumber)
 		.executeTakeFirst();
-	if (!die) throw new Error(`No die ${dieNumber}: the completion mail for ${jobNumber} was not queued.`);
+	if (!die)
+		throw new Error(`No die ${dieNumber}: the completion mail for ${jobNumber} was not queued.`);
 	const closedAt = toStoredInstant(now);
 	const item: NoticeItem = {
 		key: `job:${jobNumber}:${closedAt}`,

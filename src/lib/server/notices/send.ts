@@ -81,7 +81,7 @@ async function claimDue(db: DB, at: string): Promise<Claim[]> {
 			   from notice_deliveries d
 			   join notices n on n.id = d.notice_id
 			   join dies on dies.id = n.die_id
-			  where d.digest_id = ? order by d.id`
+			  where d.digest_id = ? and d.state = 'pending' order by d.id`
 		);
 		const run = raw.transaction((): Claim[] =>
 			recipients.all(at).map(({ recipient }) => {

@@ -118,7 +118,11 @@ export interface MonthRow {
  * counted backwards from the kept total (as the chart does), so the last row always shows the
  * total the register shows.
  */
-export async function monthlyLedger(db: DB, dieId: number, totalShots: number): Promise<MonthRow[]> {
+export async function monthlyLedger(
+	db: DB,
+	dieId: number,
+	totalShots: number
+): Promise<MonthRow[]> {
 	const rows = await db
 		.selectFrom('shot_daily')
 		.select([
@@ -133,7 +137,12 @@ export async function monthlyLedger(db: DB, dieId: number, totalShots: number): 
 	let running = totalShots;
 	const result: MonthRow[] = [];
 	for (const r of rows) {
-		result.push({ month: r.month, shots: Number(r.shots), daysRun: Number(r.daysRun), totalAtEnd: running });
+		result.push({
+			month: r.month,
+			shots: Number(r.shots),
+			daysRun: Number(r.daysRun),
+			totalAtEnd: running
+		});
 		running -= Number(r.shots);
 	}
 	return result.reverse();

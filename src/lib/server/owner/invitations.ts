@@ -61,8 +61,13 @@ export async function createInvitation(
 			.select(['id', 'name'])
 			.where('id', '=', input.customerId)
 			.executeTakeFirst();
-		if (!customer) return { ok: false, field: 'customerId', message: 'Choose the customer.' } as const;
-		const user = await trx.selectFrom('users').select('id').where('email', '=', email).executeTakeFirst();
+		if (!customer)
+			return { ok: false, field: 'customerId', message: 'Choose the customer.' } as const;
+		const user = await trx
+			.selectFrom('users')
+			.select('id')
+			.where('email', '=', email)
+			.executeTakeFirst();
 		if (user) {
 			return {
 				ok: false,
@@ -130,7 +135,8 @@ export async function renewInvitation(db: DB, id: number, actorId: string, now =
 			.where('invitations.id', '=', id)
 			.executeTakeFirst();
 		if (!row) return { ok: false, message: 'There is no such invitation.' } as const;
-		if (row.used_at) return { ok: false, message: `${row.email} has already set a password.` } as const;
+		if (row.used_at)
+			return { ok: false, message: `${row.email} has already set a password.` } as const;
 		const token = newInviteToken();
 		const expiresAt = new Date(Date.parse(now) + INVITATION_TTL_HOURS * HOUR_MS).toISOString();
 		await trx
@@ -237,7 +243,13 @@ export async function findInvitationByToken(db: DB, token: string, now = nowIso(
 	if (!row) return undefined;
 	const state = invitationState(row, now);
 	return state === 'open'
-		? { state, email: row.email, name: row.name, customerName: row.customerName, expiresAt: row.expires_at }
+		? {
+				state,
+				email: row.email,
+				name: row.name,
+				customerName: row.customerName,
+				expiresAt: row.expires_at
+			}
 		: { state };
 }
 
@@ -249,10 +261,12 @@ const REFUSALS: Record<Exclude<InvitationState, 'open'> | 'unknown', string> = {
 	unknown: 'This invitation link is not valid. Ask the plant for a new one.',
 	used: 'This invitation link has already been used. Sign in with the password you set.',
 	expired: 'This invitation link has expired. Ask the plant to send you a new one.',
-	withdrawn: 'This invitation link was withdrawn or replaced by a newer one. Use the newest e-mail, or ask the plant.'
+	withdrawn:
+		'This invitation link was withdrawn or replaced by a newer one. Use the newest e-mail, or ask the plant.'
 };
 
-export const refusalMessage = (state: Exclude<InvitationState, 'open'> | 'unknown') => REFUSALS[state];
+export const refusalMessage = (state: Exclude<InvitationState, 'open'> | 'unknown') =>
+	REFUSALS[state];
 
 /**
  * Uses the link: creates the `customer` user with the chosen password and marks the invitation
@@ -264,7 +278,8 @@ export async function acceptInvitation(
 	password: string,
 	now = nowIso()
 ): Promise<AcceptResult> {
-	if (!token || token.length > 100) return { ok: false, reason: 'unknown', message: REFUSALS.unknown };
+	if (!token || token.length > 100)
+		return { ok: false, reason: 'unknown', message: REFUSALS.unknown };
 	try {
 		return await db.transaction().execute(async (trx) => {
 			const row = await trx
@@ -305,7 +320,8 @@ export async function acceptInvitation(
 			return {
 				ok: false,
 				reason: 'account_exists',
-				message: 'There is already an account for this address. Sign in instead, or ask the plant to reset your password.'
+				message:
+					'There is already an account for this address. Sign in instead, or ask the plant to reset your password.'
 			};
 		}
 		throw error;

@@ -118,13 +118,7 @@ export async function loadOwnerDies(
 		db
 			.selectFrom('toolroom_jobs as j')
 			.innerJoin('dies', 'dies.id', 'j.die_id')
-			.select([
-				'j.die_id as dieId',
-				'j.kind',
-				'j.closed_at',
-				'j.owner_summary',
-				'j.summary_shared'
-			])
+			.select(['j.die_id as dieId', 'j.kind', 'j.closed_at', 'j.owner_summary', 'j.summary_shared'])
 			.where('dies.customer_id', '=', customerId)
 			.where('j.id', '=', (eb) =>
 				eb
@@ -255,8 +249,7 @@ export function pageOwnerDies(rows: OwnerDieRow[], query: OwnerDieQuery) {
 				r.number.toLowerCase().includes(needle) ||
 				r.partName.toLowerCase().includes(needle) ||
 				(r.partNumber ?? '').toLowerCase().includes(needle)) &&
-			(query.status === '' ||
-				(query.status === 'retired') === (r.status === 'retired'))
+			(query.status === '' || (query.status === 'retired') === (r.status === 'retired'))
 	);
 	const dir = query.dir === 'desc' ? -1 : 1;
 	const sorted = filtered.sort(

@@ -47,17 +47,28 @@ export async function listSharing(db: DB, dieId: number) {
 	return { jobs, photos };
 }
 
-export type SharingResult = { ok: true; message: string } | { ok: false; status: 400 | 404; message: string };
+export type SharingResult =
+	{ ok: true; message: string } | { ok: false; status: 400 | 404; message: string };
 
 /** Sets a job's owner summary and whether the owner sees it; a blank summary cannot be shared. */
 export async function setJobSharing(
 	db: DB,
-	input: { dieId: number; jobNumber: string; ownerSummary: string; shared: boolean; actorId: string },
+	input: {
+		dieId: number;
+		jobNumber: string;
+		ownerSummary: string;
+		shared: boolean;
+		actorId: string;
+	},
 	at = nowIso()
 ): Promise<SharingResult> {
 	const summary = input.ownerSummary.trim();
 	if (input.shared && !summary) {
-		return { ok: false, status: 400, message: 'Write the summary for the owner before sharing it.' };
+		return {
+			ok: false,
+			status: 400,
+			message: 'Write the summary for the owner before sharing it.'
+		};
 	}
 	return db.transaction().execute(async (trx) => {
 		const job = await trx
@@ -66,7 +77,12 @@ export async function setJobSharing(
 			.where('number', '=', input.jobNumber.toUpperCase())
 			.where('die_id', '=', input.dieId)
 			.executeTakeFirst();
-		if (!job) return { ok: false, status: 404, message: `This die has no job ${input.jobNumber}.` } as const;
+		if (!job)
+			return {
+				ok: false,
+				status: 404,
+				message: `This die has no job ${input.jobNumber}.`
+			} as const;
 		await trx
 			.updateTable('toolroom_jobs')
 			.set({ owner_summary: summary || null, summary_shared: input.shared ? 1 : 0, updated_at: at })
@@ -122,7 +138,9 @@ export async function setPhotoSharing(
 			},
 			at
 		);
-		const message = input.shared ? 'The photo is shared with the owner.' : 'The photo is hidden from the owner.';
+		const message = input.shared
+			? 'The photo is shared with the owner.'
+			: 'The photo is hidden from the owner.';
 		return { ok: true, message } as const;
 	});
 }

@@ -5,10 +5,20 @@
  */
 import pdfmake from 'pdfmake';
 import { formatShots } from '../../format';
-import { DIE_STATUS_FOR_OWNERS, SERVICE_STATE_LABELS, jobKindLabel, serviceKindLabel } from '../../labels';
+import {
+	DIE_STATUS_FOR_OWNERS,
+	SERVICE_STATE_LABELS,
+	jobKindLabel,
+	serviceKindLabel
+} from '../../labels';
 import type { OwnerStatement, StatementDie } from './statement';
 
-const STANDARD_FONTS = ['Helvetica', 'Helvetica-Bold', 'Helvetica-Oblique', 'Helvetica-BoldOblique'];
+const STANDARD_FONTS = [
+	'Helvetica',
+	'Helvetica-Bold',
+	'Helvetica-Oblique',
+	'Helvetica-BoldOblique'
+];
 
 pdfmake.setFonts({
 	Helvetica: {
@@ -24,7 +34,13 @@ pdfmake.setLocalAccessPolicy((path) => STANDARD_FONTS.includes(path));
 
 // The standard fonts encode WinAnsi only; these are the characters it has above Latin-1's ASCII.
 const WIN_ANSI_EXTRA = new Set('€‚ƒ„…†‡ˆ‰Š‹ŒŽ‘’“”•–—˜™š›œžŸ');
-const REPLACEMENTS: Record<string, string> = { '≥': '>=', '≤': '<=', '→': '->', '−': '-', '\u2009': ' ' };
+const REPLACEMENTS: Record<string, string> = {
+	'≥': '>=',
+	'≤': '<=',
+	'→': '->',
+	'−': '-',
+	'\u2009': ' '
+};
 
 /** Text the standard fonts can show: other characters become a close ASCII form or '?'. */
 export function toWinAnsi(text: string): string {
@@ -55,9 +71,15 @@ function lastServiceText(d: StatementDie): string {
 }
 
 function dieTable(dies: StatementDie[]) {
-	const header = ['Die', 'Part', 'Status', 'Shots', 'Life used', 'Projected replacement', 'Last service'].map(
-		(h) => ({ text: h, style: 'th' })
-	);
+	const header = [
+		'Die',
+		'Part',
+		'Status',
+		'Shots',
+		'Life used',
+		'Projected replacement',
+		'Last service'
+	].map((h) => ({ text: h, style: 'th' }));
 	const body = dies.map((d) => [
 		{ text: t(d.number), bold: true },
 		t(d.partNumber ? `${d.partName}\n${d.partNumber}` : d.partName),
@@ -97,7 +119,9 @@ function serviceHistory(d: StatementDie) {
 				? [
 						{
 							ul: s.summaries.map((m) =>
-								t(`${m.date} · ${jobKindLabel(m.kind)}${m.billable ? ' (billable)' : ''}: ${m.text}`)
+								t(
+									`${m.date} · ${jobKindLabel(m.kind)}${m.billable ? ' (billable)' : ''}: ${m.text}`
+								)
 							),
 							fontSize: 8.5,
 							margin: [6, 2, 0, 0]
@@ -133,7 +157,9 @@ function summaryBlock(s: OwnerStatement) {
 					cell('Service due or overdue', String(tt.serviceDue)),
 					cell(
 						'Next projected replacement',
-						tt.nextReplacement ? `${tt.nextReplacement.number} on ${tt.nextReplacement.date}` : 'None projected'
+						tt.nextReplacement
+							? `${tt.nextReplacement.number} on ${tt.nextReplacement.date}`
+							: 'None projected'
 					),
 					cell('Dies on this statement', String(tt.dies))
 				]
@@ -145,7 +171,10 @@ function summaryBlock(s: OwnerStatement) {
 }
 
 /** The statement as PDF bytes. `plantName` heads it; `asOf` is the statement date. */
-export async function renderStatementPdf(statement: OwnerStatement, plantName: string): Promise<Buffer> {
+export async function renderStatementPdf(
+	statement: OwnerStatement,
+	plantName: string
+): Promise<Buffer> {
 	const date = statement.asOf.slice(0, 10);
 	const owner = `${statement.customer.name} (${statement.customer.code})`;
 	const doc = {

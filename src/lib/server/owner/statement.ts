@@ -67,7 +67,12 @@ export async function getOwnerStatement(
 	]);
 	const services = new Map<number, StatementService>();
 	for (const j of jobs) {
-		const s = services.get(j.dieId) ?? { jobsDone: 0, billable: 0, lastDoneAt: null, summaries: [] };
+		const s = services.get(j.dieId) ?? {
+			jobsDone: 0,
+			billable: 0,
+			lastDoneAt: null,
+			summaries: []
+		};
 		s.jobsDone++;
 		if (j.billable_to_owner === 1) s.billable++;
 		s.lastDoneAt ??= j.closed_at;

@@ -1,6 +1,6 @@
 import { sql } from 'kysely';
 import { addDaysToDate } from '../../calc/dates';
-import { TRAILING_RATE_DAYS, type AlloyFamily } from '../../calc/life';
+import type { AlloyFamily } from '../../calc/life';
 import { projectServiceDue } from '../../calc/service';
 import type { BoardQuery } from '../../schemas/schedule';
 import type { DB } from '../db/connect';
@@ -9,8 +9,9 @@ import type { DieScope } from '../dies/register';
 import { viewServiceTask } from '../dies/service-summary';
 import { nowIso } from '../time';
 import { chamberChecks, dieClampRequirement } from './booking-checks';
-import { bookingPhase, listBookingsInWindow, windowBounds } from './bookings';
-import type { DieFacts } from './die-facts';
+import { bookingPhase, windowBounds } from './bookings';
+import { MAX_BOOKING_DAYS } from '../../schemas/schedule';
+import { trailingShotsPerDay, type DieFacts } from './die-facts';
 import { findPressByName, listPressOptions } from './presses';
 import { listOpenToolroomJobs } from './toolroom-hook';
 
@@ -65,6 +66,25 @@ export async function loadBoardFilters(db: DB, scope: DieScope) {
 		listPressOptions(db)
 	]);
 	return { owners, presses };
+}
+
+/**
+ * The board's lean booking query: only what a bar shows (the die rows carry the rest). The
+ * lower bound on starts_at comes from the longest booking allowed, so the (starts_at, ends_at)
+ * index answers the window without reading other rows.
+ */
+async function listBoardBookings(db: DB, start: string, end: string) {
+	const earliest = new Date(Date.parse(start) - MAX_BOOKING_DAYS * DAY_MS).toISOString();
+	return db
+		.selectFrom('press_bookings as b')
+		.innerJoin('machines', 'machines.id', 'b.machine_id')
+		.select(['b.id', 'b.die_id', 'machines.name as pressName', 'b.starts_at', 'b.ends_at', 'b.order_ref', 'b.parts', 'b.cancelled_at'])
+		.where('b.starts_at', '>=', earliest)
+		.where('b.starts_at', '<', end)
+		.where('b.ends_at', '>', start)
+		.where('b.cancelled_at', 'is', null)
+		.orderBy('b.starts_at')
+		.execute();
 }
 
 interface DieBase {
@@ -139,10 +159,9 @@ export async function loadBoard(db: DB, query: BoardQuery, scope: DieScope, now 
 	}
 	const index = new Map(dies.map((d, i) => [d.id, i]));
 	const ids = dies.map((d) => d.id);
-	const rateFrom = addDaysToDate(today, -TRAILING_RATE_DAYS);
 
 	const [bookings, jobs, tasks, rates] = await Promise.all([
-		listBookingsInWindow(db, { start, end }, scope),
+		listBoardBookings(db, start, end),
 		listOpenToolroomJobs(db, ids),
 		ids.length
 			? db
@@ -152,18 +171,13 @@ export async function loadBoard(db: DB, query: BoardQuery, scope: DieScope, now 
 					.where('die_id', 'in', ids)
 					.execute()
 			: Promise.resolve([]),
-		ids.length
-			? db
-					.selectFrom('shot_daily')
-					.select(['die_id', sql<number>`sum(shots)`.as('shots')])
-					.where('die_id', 'in', ids)
-					.where('day', '>', rateFrom)
-					.groupBy('die_id')
-					.execute()
-			: Promise.resolve([])
+		trailingShotsPerDay(
+			db,
+			dies.map((d) => ({ id: d.id, totalShots: d.total_shots, expectedLifeShots: d.expectedLife })),
+			now
+		)
 	]);
 
-	const perDay = new Map(rates.map((r) => [r.die_id, Math.max(0, Number(r.shots)) / TRAILING_RATE_DAYS]));
 	const totals = new Map(dies.map((d) => [d.id, d.total_shots]));
 	const service: BoardServiceRow[] = [];
 	for (const t of tasks) {
@@ -174,7 +188,7 @@ export async function loadBoard(db: DB, query: BoardQuery, scope: DieScope, now 
 			intervalDays: t.interval_days,
 			shotsSinceDone: view.shotsSinceDone,
 			daysSinceDone: Math.max(0, (Date.parse(now) - Date.parse(t.last_done_at)) / DAY_MS),
-			shotsPerDay: perDay.get(t.die_id) ?? 0,
+			shotsPerDay: rates.get(t.die_id) ?? 0,
 			asOf: now
 		});
 		if (due === null || due >= to) continue;

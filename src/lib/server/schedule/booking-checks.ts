@@ -91,7 +91,7 @@ export function dieClampRequirement(die: Pick<DieFacts, 'process' | 'family' | '
 	};
 }
 
-interface Clash {
+export interface Clash {
 	id: number;
 	starts_at: string;
 	ends_at: string;
@@ -136,31 +136,43 @@ export async function findClashes(
 const span = (c: { starts_at: string; ends_at: string }) =>
 	`from ${formatDateTime(c.starts_at)} to ${formatDateTime(c.ends_at)}`;
 
+export interface PlannedRun {
+	starts_at: string;
+	ends_at: string;
+	parts: number;
+	scrap_pct: number;
+}
+
 /**
  * Shots the die takes between now and the booking's start: the trailing rate over that time or
  * the planned shots of its bookings in between, whichever is larger (a die booked solid runs at
- * its bookings' rate; an unbooked die keeps its recent pace).
+ * its bookings' rate; an unbooked die keeps its recent pace). `runs` are the die's other
+ * bookings; only the part of each between now and the start counts.
  */
-async function projectShotsBeforeStart(db: DB, die: DieFacts, startMs: number, nowMs: number, excludeId?: number) {
+export function projectShotsBeforeStart(die: DieFacts, startMs: number, nowMs: number, runs: readonly PlannedRun[]) {
 	if (startMs <= nowMs) return 0;
 	const trailing = (die.shotsPerDay * (startMs - nowMs)) / DAY_MS;
-	const between = await db
+	let booked = 0;
+	for (const b of runs) {
+		const s = Date.parse(b.starts_at);
+		const e = Date.parse(b.ends_at);
+		const inside = Math.max(0, Math.min(e, startMs) - Math.max(s, nowMs));
+		if (inside > 0) booked += (shotsNeededFor(b.parts, die.cavities, b.scrap_pct) * inside) / (e - s);
+	}
+	return Math.round(Math.max(trailing, booked));
+}
+
+async function listRunsBetween(db: DB, dieId: number, nowMs: number, startMs: number, excludeId?: number) {
+	if (startMs <= nowMs) return [];
+	return db
 		.selectFrom('press_bookings')
 		.select(['starts_at', 'ends_at', 'parts', 'scrap_pct'])
-		.where('die_id', '=', die.id)
+		.where('die_id', '=', dieId)
 		.where('cancelled_at', 'is', null)
 		.where('ends_at', '>', new Date(nowMs).toISOString())
 		.where('starts_at', '<', new Date(startMs).toISOString())
 		.$if(excludeId !== undefined, (q) => q.where('id', '!=', excludeId!))
 		.execute();
-	let booked = 0;
-	for (const b of between) {
-		const s = Date.parse(b.starts_at);
-		const e = Date.parse(b.ends_at);
-		const inside = Math.max(0, Math.min(e, startMs) - Math.max(s, nowMs));
-		booked += (shotsNeededFor(b.parts, die.cavities, b.scrap_pct) * inside) / (e - s);
-	}
-	return Math.round(Math.max(trailing, booked));
 }
 
 function statusChecks(die: DieFacts, jobNumbers: string[]): BookingCheck[] {
@@ -282,46 +294,45 @@ function serviceChecks(
 	return checks;
 }
 
-/**
- * Every check of a booking, each with a plain message. Blocking: die retired, held or in the
- * toolroom; die or press already booked; press down; clamping force too small; die or alloy on
- * the wrong chamber type. Warnings: a service task comes due, the order outruns the die's
- * remaining life, an unusual rate, or a window too short for the shots.
- */
-export async function evaluateBooking(db: DB, draft: BookingDraft, options: CheckOptions = {}): Promise<Evaluation> {
-	const now = options.now ?? nowIso();
-	const scope = options.scope ?? { customerId: null };
-	const units = options.unitSystem ?? 'metric';
-	const [die, press] = await Promise.all([
-		loadDieFacts(db, draft.die, scope, now),
-		findPressByName(db, draft.press)
-	]);
-	if (!die) return { ok: false, field: 'die', message: `There is no die ${draft.die.toUpperCase()}.` };
-	if (!press) return { ok: false, field: 'press', message: `There is no press ${draft.press}.` };
+export interface AssessInput {
+	draft: BookingDraft;
+	die: DieFacts;
+	press: Press;
+	/** Numbers of the die's open toolroom jobs. */
+	jobNumbers: string[];
+	dieClashes: Clash[];
+	pressClashes: Clash[];
+	shotsBeforeStart: number;
+	now: string;
+	scope: DieScope;
+	units: UnitSystem;
+}
 
+export type Assessment = Extract<Evaluation, { ok: true }>;
+
+/**
+ * Every check of a booking, each with a plain message, from facts already loaded. Blocking: die
+ * retired, held or in the toolroom; die or press already booked; press down; clamping force too
+ * small; die or alloy on the wrong chamber type. Warnings: a service task comes due, the order
+ * outruns the die's remaining life, an unusual rate, or a window too short for the shots.
+ */
+export function assessBooking(input: AssessInput): Assessment {
+	const { draft, die, press, now, scope, units, shotsBeforeStart } = input;
 	const startMs = Date.parse(draft.startsAt);
 	const endMs = Date.parse(draft.endsAt);
-	const nowMs = Date.parse(now);
 	const shotsPerHour = draft.shotsPerHour ?? defaultShotsPerHour(die.family);
 	const shotsNeeded = shotsNeededFor(draft.parts, die.cavities, draft.scrapPct);
 	const { requiredKn, metalPressureBar } = dieClampRequirement(die);
 
-	const [jobs, dieClashes, pressClashes, shotsBeforeStart] = await Promise.all([
-		die.status === 'in_toolroom' ? listOpenToolroomJobs(db, [die.id]) : Promise.resolve([]),
-		findClashes(db, { dieId: die.id }, draft.startsAt, draft.endsAt, options.excludeBookingId),
-		findClashes(db, { machineId: press.id }, draft.startsAt, draft.endsAt, options.excludeBookingId),
-		projectShotsBeforeStart(db, die, startMs, nowMs, options.excludeBookingId)
-	]);
-
-	const checks: BookingCheck[] = [...statusChecks(die, jobs.map((j) => j.number))];
-	for (const c of dieClashes) {
+	const checks: BookingCheck[] = [...statusChecks(die, input.jobNumbers)];
+	for (const c of input.dieClashes) {
 		checks.push({
 			code: 'die_double_booked',
 			level: 'block',
 			message: `${die.number} is already booked on ${c.pressName} ${span(c)} (order ${c.order_ref}).`
 		});
 	}
-	for (const c of pressClashes) {
+	for (const c of input.pressClashes) {
 		// Another owner's die and order stay private from a customer-bound caller.
 		const visible = scope.customerId === null || scope.customerId === c.dieCustomerId;
 		checks.push({
@@ -400,4 +411,36 @@ export async function evaluateBooking(db: DB, draft: BookingDraft, options: Chec
 		blocks: checks.filter((c) => c.level === 'block'),
 		warnings: checks.filter((c) => c.level === 'warn')
 	};
+}
+
+/** Loads what the checks need for one booking and runs them (the form, the API, one booking page). */
+export async function evaluateBooking(db: DB, draft: BookingDraft, options: CheckOptions = {}): Promise<Evaluation> {
+	const now = options.now ?? nowIso();
+	const scope = options.scope ?? { customerId: null };
+	const [die, press] = await Promise.all([
+		loadDieFacts(db, draft.die, scope, now),
+		findPressByName(db, draft.press)
+	]);
+	if (!die) return { ok: false, field: 'die', message: `There is no die ${draft.die.toUpperCase()}.` };
+	if (!press) return { ok: false, field: 'press', message: `There is no press ${draft.press}.` };
+	const startMs = Date.parse(draft.startsAt);
+	const nowMs = Date.parse(now);
+	const [jobs, dieClashes, pressClashes, runs] = await Promise.all([
+		die.status === 'in_toolroom' ? listOpenToolroomJobs(db, [die.id]) : Promise.resolve([]),
+		findClashes(db, { dieId: die.id }, draft.startsAt, draft.endsAt, options.excludeBookingId),
+		findClashes(db, { machineId: press.id }, draft.startsAt, draft.endsAt, options.excludeBookingId),
+		listRunsBetween(db, die.id, nowMs, startMs, options.excludeBookingId)
+	]);
+	return assessBooking({
+		draft,
+		die,
+		press,
+		jobNumbers: jobs.map((j) => j.number),
+		dieClashes,
+		pressClashes,
+		shotsBeforeStart: projectShotsBeforeStart(die, startMs, nowMs, runs),
+		now,
+		scope,
+		units: options.unitSystem ?? 'metric'
+	});
 }

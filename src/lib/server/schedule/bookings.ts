@@ -187,6 +187,7 @@ function bookingsQuery(db: DB, scope: DieScope) {
 			'dies.number as dieNumber',
 			'dies.part_name as partName',
 			'dies.cavities',
+			'dies.customer_id as dieCustomerId',
 			'customers.code as customerCode',
 			'customers.name as customerName',
 			'machines.name as pressName',

@@ -1,9 +1,9 @@
 import { sql } from 'kysely';
-import { lifeStatus, TYPICAL_SHOTS_PER_HOUR, type AlloyFamily } from '../../calc/life';
+import { addDaysToDate } from '../../calc/dates';
+import { lifeStatus, TRAILING_RATE_DAYS, TYPICAL_SHOTS_PER_HOUR, type AlloyFamily } from '../../calc/life';
 import { checkOrder } from '../../calc/order-check';
 import type { DB } from '../db/connect';
 import type { DieProcess, DieStatus, ServiceTask } from '../db/schema';
-import { recentDailyShots } from '../dies/die-detail';
 import type { DieScope } from '../dies/register';
 
 /** What the booking checks and the order check need to know about one die. */
@@ -22,7 +22,7 @@ export interface DieFacts {
 	status: DieStatus;
 	totalShots: number;
 	expectedLifeShots: number;
-	/** Trailing 28-day shot rate, shots per day. */
+	/** Trailing 28-day shot rate, shots per day (calc/life). */
 	shotsPerDay: number;
 	/** The reason given with the die's latest change of state, if any. */
 	statusReason: string | null;
@@ -32,14 +32,77 @@ export interface DieFacts {
 	>[];
 }
 
-/** A die by number within the caller's scope, with its service tasks and shot rate. */
-export async function loadDieFacts(
+const DAY_MS = 86_400_000;
+const NOON_MS = DAY_MS / 2;
+
+/**
+ * Trailing shot rates of many dies at once, from the daily roll-up. The roll-up dates each day at
+ * noon, so the days whose noon falls in (asOf − 28 d, asOf] are summed in SQL and the sum handed
+ * to `lifeStatus` — the same window and rate as the die page, without reading every day row.
+ */
+export async function trailingShotsPerDay(
 	db: DB,
-	number: string,
-	scope: DieScope,
+	dies: readonly { id: number; totalShots: number; expectedLifeShots: number }[],
 	asOf: string
-): Promise<DieFacts | null> {
-	const die = await db
+): Promise<Map<number, number>> {
+	const rates = new Map<number, number>();
+	if (dies.length === 0) return rates;
+	const asOfMs = Date.parse(asOf);
+	const windowStart = asOfMs - TRAILING_RATE_DAYS * DAY_MS;
+	// First day whose noon is after the window start; last day whose noon is not after asOf.
+	const firstNoon = new Date(windowStart - NOON_MS).toISOString().slice(0, 10);
+	const first = Date.parse(firstNoon) + NOON_MS > windowStart ? firstNoon : addDaysToDate(firstNoon, 1);
+	const lastNoon = new Date(asOfMs - NOON_MS).toISOString().slice(0, 10);
+	const rows = await db
+		.selectFrom('shot_daily')
+		.select(['die_id', sql<number>`sum(shots)`.as('shots')])
+		.where(
+			'die_id',
+			'in',
+			dies.map((d) => d.id)
+		)
+		.where('day', '>=', first)
+		.where('day', '<=', lastNoon)
+		.groupBy('die_id')
+		.execute();
+	const sums = new Map(rows.map((r) => [r.die_id, Number(r.shots)]));
+	for (const d of dies) {
+		const sum = sums.get(d.id) ?? 0;
+		rates.set(
+			d.id,
+			lifeStatus({
+				totalShots: d.totalShots,
+				expectedLifeShots: d.expectedLifeShots,
+				recentShots: sum === 0 ? [] : [{ at: `${lastNoon}T12:00:00.000Z`, shots: sum }],
+				asOf
+			}).shotsPerDay
+		);
+	}
+	return rates;
+}
+
+function reasonFrom(detail: string | undefined, status: DieStatus): string | null {
+	if (!detail) return null;
+	try {
+		const parsed = JSON.parse(detail) as { to?: string; reason?: unknown };
+		// A reason belongs to the state it led to; an older change says nothing about today.
+		if (parsed.to !== status || typeof parsed.reason !== 'string') return null;
+		return parsed.reason.trim() || null;
+	} catch {
+		return null;
+	}
+}
+
+/** Die facts for many dies, by id, in a handful of queries (the planner re-checks in bulk). */
+export async function loadDieFactsByIds(
+	db: DB,
+	ids: readonly number[],
+	asOf: string
+): Promise<Map<number, DieFacts>> {
+	const result = new Map<number, DieFacts>();
+	if (ids.length === 0) return result;
+	const list = [...new Set(ids)];
+	const dies = await db
 		.selectFrom('dies')
 		.innerJoin('alloys', 'alloys.id', 'dies.alloy_id')
 		.innerJoin('customers', 'customers.id', 'dies.customer_id')
@@ -59,64 +122,78 @@ export async function loadDieFacts(
 			'dies.total_shots',
 			sql<number>`coalesce(dies.expected_life_shots, alloys.expected_life_shots)`.as('expectedLife')
 		])
-		.where('dies.number', '=', number.trim().toUpperCase())
-		.$if(scope.customerId !== null, (q) => q.where('dies.customer_id', '=', scope.customerId!))
-		.executeTakeFirst();
-	if (!die) return null;
-	const [tasks, recent, lastStatus] = await Promise.all([
+		.where('dies.id', 'in', list)
+		.execute();
+	const stopped = dies.filter((d) => d.status === 'held' || d.status === 'in_toolroom').map((d) => d.id);
+	const [tasks, rates, reasons] = await Promise.all([
 		db
 			.selectFrom('service_tasks')
-			.select(['id', 'kind', 'interval_shots', 'interval_days', 'last_done_at', 'last_done_shots'])
-			.where('die_id', '=', die.id)
+			.select(['id', 'die_id', 'kind', 'interval_shots', 'interval_days', 'last_done_at', 'last_done_shots'])
+			.where('die_id', 'in', list)
 			.where('active', '=', 1)
 			.execute(),
-		recentDailyShots(db, die.id, asOf),
-		db
-			.selectFrom('audit_log')
-			.select('detail')
-			.where('die_id', '=', die.id)
-			.where('action', '=', 'die.status')
-			.orderBy('id', 'desc')
-			.limit(1)
-			.executeTakeFirst()
+		trailingShotsPerDay(
+			db,
+			dies.map((d) => ({ id: d.id, totalShots: d.total_shots, expectedLifeShots: d.expectedLife })),
+			asOf
+		),
+		stopped.length
+			? db
+					.selectFrom('audit_log')
+					.select(['die_id', 'detail'])
+					.where('action', '=', 'die.status')
+					.where('id', 'in', (eb) =>
+						eb
+							.selectFrom('audit_log')
+							.select((e) => e.fn.max('id').as('id'))
+							.where('action', '=', 'die.status')
+							.where('die_id', 'in', stopped)
+							.groupBy('die_id')
+					)
+					.execute()
+			: Promise.resolve([])
 	]);
-	const life = lifeStatus({
-		totalShots: die.total_shots,
-		expectedLifeShots: die.expectedLife,
-		recentShots: recent,
-		asOf
-	});
-	return {
-		id: die.id,
-		number: die.number,
-		partName: die.part_name,
-		customerId: die.customer_id,
-		customerCode: die.customerCode,
-		family: die.family,
-		alloyCode: die.alloyCode,
-		process: die.process,
-		cavities: die.cavities,
-		projectedAreaCm2: die.projected_area_cm2,
-		hasSlides: die.has_slides === 1,
-		status: die.status,
-		totalShots: die.total_shots,
-		expectedLifeShots: die.expectedLife,
-		shotsPerDay: life.shotsPerDay,
-		statusReason: reasonFrom(lastStatus?.detail, die.status),
-		tasks
-	};
+	const reasonByDie = new Map(reasons.map((r) => [r.die_id, r.detail]));
+	for (const d of dies) {
+		result.set(d.id, {
+			id: d.id,
+			number: d.number,
+			partName: d.part_name,
+			customerId: d.customer_id,
+			customerCode: d.customerCode,
+			family: d.family,
+			alloyCode: d.alloyCode,
+			process: d.process,
+			cavities: d.cavities,
+			projectedAreaCm2: d.projected_area_cm2,
+			hasSlides: d.has_slides === 1,
+			status: d.status,
+			totalShots: d.total_shots,
+			expectedLifeShots: d.expectedLife,
+			shotsPerDay: rates.get(d.id) ?? 0,
+			statusReason: reasonFrom(reasonByDie.get(d.id) ?? undefined, d.status),
+			tasks: []
+		});
+	}
+	for (const t of tasks) result.get(t.die_id)?.tasks.push(t);
+	return result;
 }
 
-function reasonFrom(detail: string | undefined, status: DieStatus): string | null {
-	if (!detail) return null;
-	try {
-		const parsed = JSON.parse(detail) as { to?: string; reason?: unknown };
-		// A reason belongs to the state it led to; an older change says nothing about today.
-		if (parsed.to !== status || typeof parsed.reason !== 'string') return null;
-		return parsed.reason.trim() || null;
-	} catch {
-		return null;
-	}
+/** A die by number within the caller's scope, with its service tasks and shot rate. */
+export async function loadDieFacts(
+	db: DB,
+	number: string,
+	scope: DieScope,
+	asOf: string
+): Promise<DieFacts | null> {
+	const die = await db
+		.selectFrom('dies')
+		.select('id')
+		.where('number', '=', number.trim().toUpperCase())
+		.$if(scope.customerId !== null, (q) => q.where('customer_id', '=', scope.customerId!))
+		.executeTakeFirst();
+	if (!die) return null;
+	return (await loadDieFactsByIds(db, [die.id], asOf)).get(die.id) ?? null;
 }
 
 /** Middle of the usual production range for the family (NADCA FAQ), shots per hour. */

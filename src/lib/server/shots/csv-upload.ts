@@ -284,10 +284,17 @@ export async function previewShotCsv(
 		const refused = new Set<number>();
 		for (const issue of result.issues) {
 			refused.add(issue.index);
-			verdict.set(candidates[issue.index].row, {
+			const row = candidates[issue.index].row;
+			// A derived key means nothing to the person who wrote the file; say what it stands for.
+			const derived = issue.field === 'key' && !parsed.rows[row].key;
+			verdict.set(row, {
 				status: 'wrong',
-				column: LEDGER_TO_COLUMN[issue.field] ?? issue.field,
-				reason: issue.message
+				column: derived ? null : (LEDGER_TO_COLUMN[issue.field] ?? issue.field),
+				reason: derived
+					? /twice/.test(issue.message)
+						? 'Repeats an earlier row of this file (same die, time, count and press).'
+						: 'The same reading was already counted for another die.'
+					: issue.message
 			});
 		}
 		candidates = candidates.filter((_, i) => !refused.has(i));

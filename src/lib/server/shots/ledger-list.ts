@@ -31,6 +31,8 @@ export interface ShotListPage {
 }
 
 const MAX_DIES_PER_SEARCH = 500;
+/** Up to this many dies, each die's index is sought and the rows merged (bench-register.ts). */
+const FEW_DIES = 8;
 /** Rows in one CSV export; a wider span is exported in date slices. */
 export const SHOT_EXPORT_LIMIT = 100_000;
 
@@ -108,9 +110,12 @@ export async function listShotEntries(
 			'e.idem_key as key',
 			'e.created_at as createdAt'
 		]);
-	if (dieIds) {
-		q =
-			dieIds.length === 1 ? q.where('e.die_id', '=', dieIds[0]) : q.where('e.die_id', 'in', dieIds);
+	if (dieIds && dieIds.length <= FEW_DIES) {
+		q = q.where('e.die_id', 'in', dieIds);
+	} else if (dieIds) {
+		// Many dies: seeking each and sorting all their rows costs more than walking the time index
+		// and keeping theirs; the unary + stops SQLite from choosing the die index.
+		q = q.where(sql<boolean>`+e.die_id in (${sql.join(dieIds)})`);
 	}
 	if (query.source) q = q.where('e.source', '=', query.source);
 	if (machine) q = q.where('e.machine_id', '=', machine.id);

@@ -244,8 +244,13 @@ function checkRows(
 		}
 		if (correction) {
 			if (shots === 0) return issue('shots', 'A correction must change the count (not 0).');
-		} else if (shots <= 0) {
-			return issue('shots', 'Shots must be a positive whole number.');
+		} else if (shots === 0) {
+			return issue('shots', 'Zero shots counts nothing; leave the entry out.');
+		} else if (shots < 0) {
+			return issue(
+				'shots',
+				'Shots must be a positive whole number; a correction (toolroom lead) takes shots off.'
+			);
 		}
 		if (Math.abs(shots) > MAX_SHOTS_PER_ENTRY) {
 			return issue(

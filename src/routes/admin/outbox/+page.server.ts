@@ -2,7 +2,12 @@ import { fail } from '@sveltejs/kit';
 import { requireRole } from '$lib/server/auth/guard';
 import { writeAudit } from '$lib/server/audit';
 import { getDb } from '$lib/server/db';
-import { listOutbox, outboxHealth, resendAllFailed, resendDelivery } from '$lib/server/notices/admin';
+import {
+	listOutbox,
+	outboxHealth,
+	resendAllFailed,
+	resendDelivery
+} from '$lib/server/notices/admin';
 import { sendNoticesSoon } from '$lib/server/notices/cron';
 import { NOTICE_LEVEL_LABELS } from '$lib/server/notices/types';
 import { outboxQuerySchema, resendSchema } from './schema';
@@ -33,9 +38,15 @@ export const actions: Actions = {
 		if (!parsed.success) return fail(400, { error: 'No outbox row given.' });
 		const db = getDb();
 		if (!(await resendDelivery(db, parsed.data.id))) {
-			return fail(404, { error: 'That row does not exist or has not failed; nothing was changed.' });
+			return fail(404, {
+				error: 'That row does not exist or has not failed; nothing was changed.'
+			});
 		}
-		await writeAudit(db, { userId: admin.id, action: 'notice.resend', detail: { id: parsed.data.id } });
+		await writeAudit(db, {
+			userId: admin.id,
+			action: 'notice.resend',
+			detail: { id: parsed.data.id }
+		});
 		sendNoticesSoon();
 		return { done: 'Queued again; it goes out with the next send.' };
 	},

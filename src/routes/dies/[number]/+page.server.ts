@@ -35,11 +35,19 @@ export const load: PageServerLoad = async (event) => {
 	const [story, plan, statusForm] = await Promise.all([
 		getDieStory(db, die, asOf),
 		listServicePlan(db, die, life.shotsPerDay, asOf),
-		superValidate(zod4(dieStatusSchema))
+		// Start on "Choose…", not on the schema's first state.
+		superValidate({ status: '' as DieStatus, reason: '' }, zod4(dieStatusSchema), { errors: false })
 	]);
 	const needsService = plan.tasks.filter((t) => t.state !== 'on_track').length;
+	// The soonest projected date, which need not be the worst task now (a short calendar interval
+	// can fall due before a task further through a long one).
+	const nextDue =
+		[...plan.tasks]
+			.filter((t) => t.projectedDue !== null)
+			.sort((a, b) => a.projectedDue!.localeCompare(b.projectedDue!))[0] ?? null;
 	return {
 		tasks: plan.tasks.slice(0, OVERVIEW_TASKS),
+		nextDue,
 		taskCount: plan.tasks.length,
 		needsService,
 		halves: story.halves,

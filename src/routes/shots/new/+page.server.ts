@@ -30,7 +30,7 @@ export const load: PageServerLoad = async (event) => {
 	const form = await superValidate(
 		{
 			die,
-			machine: p.get('machine') || (counted === undefined ? summary?.lastPress : undefined) || '',
+			machine: p.get('machine') || summary?.lastPress || '',
 			countedAt: (counted === undefined && p.get('countedAt')) || nowLocal(),
 			shots: counted === undefined ? wholeNumber(p.get('shots')) : undefined,
 			counterStart: counted === undefined ? wholeNumber(p.get('counterStart')) : undefined,

@@ -35,14 +35,22 @@ export const load: PageServerLoad = async (event) => {
 		plan.tasks.map(async (t) => {
 			const [intervals, done, off] = await Promise.all([
 				superValidate(
-					{ taskId: t.id, intervalShots: t.intervalShots ?? undefined, intervalDays: t.intervalDays ?? undefined },
+					{
+						taskId: t.id,
+						intervalShots: t.intervalShots ?? undefined,
+						intervalDays: t.intervalDays ?? undefined
+					},
 					zod4(taskIntervalsSchema),
 					{ id: `intervals-${t.id}`, errors: false }
 				),
-				superValidate({ taskId: t.id, doneOn: today, shots: die.total_shots }, zod4(markDoneSchema), {
-					id: `done-${t.id}`,
-					errors: false
-				}),
+				superValidate(
+					{ taskId: t.id, doneOn: today, shots: die.total_shots },
+					zod4(markDoneSchema),
+					{
+						id: `done-${t.id}`,
+						errors: false
+					}
+				),
 				superValidate({ taskId: t.id, reason: '' }, zod4(deactivateTaskSchema), {
 					id: `off-${t.id}`,
 					errors: false
@@ -65,7 +73,8 @@ export const load: PageServerLoad = async (event) => {
 // eslint-disable-next-line @typescript-eslint/no-explicit-any
 function answer(form: SuperValidated<any>, result: PlanResult) {
 	if (result.ok) return message(form, result.message);
-	if (result.field) return setError(form, result.field as never, result.message, { status: result.status });
+	if (result.field)
+		return setError(form, result.field as never, result.message, { status: result.status });
 	return message(form, result.message, { status: result.status });
 }
 

@@ -59,13 +59,14 @@ export const actions: Actions = {
 		const user = requireRole(event, ...DIE_EDITORS);
 		const die = await loadPlantDie(event.params.number);
 		const form = await superValidate(event.request, zod4(correctionSchema));
-		if (!form.valid) return fail(400, { form });
+		const shots = form.data.shots;
+		if (!form.valid || shots === undefined) return fail(400, { form });
 		const result = await recordShots(
 			getDb(),
 			[
 				{
 					die: die.number,
-					shots: form.data.shots,
+					shots,
 					countedAt: form.data.countedAt || undefined,
 					note: form.data.reason
 				}
@@ -80,7 +81,7 @@ export const actions: Actions = {
 			return setError(form, field, issue.message);
 		}
 		const total = result.dies[0]?.totalShots ?? die.total_shots;
-		const signed = `${form.data.shots > 0 ? '+' : '−'}${formatShots(Math.abs(form.data.shots))}`;
+		const signed = `${shots > 0 ? '+' : '−'}${formatShots(Math.abs(shots))}`;
 		return message(form, `Correction ${signed} shots posted. Die total now ${formatShots(total)}.`);
 	}
 };

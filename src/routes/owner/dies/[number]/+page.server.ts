@@ -11,9 +11,12 @@ export const load: PageServerLoad = async (event) => {
 	const { customerId } = requireOwner(event);
 	const db = getDb();
 	const die = await findOwnerDie(db, customerId, event.params.number);
-	if (!die) error(404, { message: `You have no die ${event.params.number}.` });
+	if (!die) error(404, { message: 'This die is not among your tooling.' });
 	const asOf = nowIso();
-	const [life, story] = await Promise.all([dieLife(db, die, asOf), getOwnerDieStory(db, die, asOf)]);
+	const [life, story] = await Promise.all([
+		dieLife(db, die, asOf),
+		getOwnerDieStory(db, die, asOf)
+	]);
 	return {
 		die: {
 			number: die.number,

@@ -10,7 +10,7 @@ export const GET: RequestHandler = async (event) => {
 	const { customerId } = requireOwner(event);
 	const db = getDb();
 	const die = await findOwnerDie(db, customerId, event.params.number);
-	if (!die) error(404, { message: `You have no die ${event.params.number}.` });
+	if (!die) error(404, { message: 'This die is not among your tooling.' });
 	const months = await monthlyLedger(db, die.id, die.total_shots);
 	return csvResponse(
 		`${die.number}-shots-by-month.csv`,

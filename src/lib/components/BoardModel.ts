@@ -1,0 +1,114 @@
+// Turns the board's compact JSON (GET /api/v1/board) into rows the timeline and the phone list
+// draw. Runs in the browser once per fetch; linear in the size of the answer.
+import type { BoardData } from '$lib/server/schedule/board';
+
+export type { BoardData };
+
+const DAY_MS = 86_400_000;
+const WEEKDAYS = ['Su', 'Mo', 'Tu', 'We', 'Th', 'Fr', 'Sa'];
+
+export interface BoardBooking {
+	id: number;
+	press: string;
+	start: string;
+	end: string;
+	startMs: number;
+	endMs: number;
+	order: string;
+	parts: number;
+	phase: string;
+}
+export interface BoardJob {
+	number: string;
+	kind: string;
+	status: string;
+	openedAt: string;
+	fromMs: number;
+}
+export interface BoardService {
+	day: string;
+	dayMs: number;
+	kind: string;
+	state: string;
+}
+export interface BoardRow {
+	index: number;
+	number: string;
+	part: string;
+	owner: string;
+	family: string;
+	status: string;
+	lifeUsedPct: number;
+	bookings: BoardBooking[];
+	jobs: BoardJob[];
+	service: BoardService[];
+}
+export interface BoardDay {
+	iso: string;
+	label: string;
+	weekday: string;
+	weekend: boolean;
+	monday: boolean;
+	today: boolean;
+}
+export interface BoardModel {
+	fromMs: number;
+	toMs: number;
+	nowMs: number;
+	days: BoardDay[];
+	rows: BoardRow[];
+}
+
+export function buildBoardModel(data: BoardData, nowMs = Date.now()): BoardModel {
+	const fromMs = Date.parse(data.from);
+	const toMs = Date.parse(data.to);
+	const days: BoardDay[] = [];
+	for (let t = fromMs; t < toMs; t += DAY_MS) {
+		const d = new Date(t);
+		const iso = d.toISOString().slice(0, 10);
+		days.push({
+			iso,
+			label: d.getUTCDate() === 1 || t === fromMs ? `${d.getUTCDate()} ${d.toLocaleString('en-GB', { month: 'short', timeZone: 'UTC' })}` : String(d.getUTCDate()),
+			weekday: WEEKDAYS[d.getUTCDay()],
+			weekend: d.getUTCDay() === 0 || d.getUTCDay() === 6,
+			monday: d.getUTCDay() === 1,
+			today: iso === data.today
+		});
+	}
+	const rows: BoardRow[] = data.dies.rows.map(([number, part, owner, family, status, lifeUsedPct], index) => ({
+		index,
+		number,
+		part,
+		owner,
+		family,
+		status,
+		lifeUsedPct,
+		bookings: [],
+		jobs: [],
+		service: []
+	}));
+	for (const [id, die, press, start, end, order, parts, phase] of data.bookings.rows) {
+		rows[die]?.bookings.push({
+			id,
+			press,
+			start,
+			end,
+			startMs: Date.parse(start),
+			endMs: Date.parse(end),
+			order,
+			parts,
+			phase
+		});
+	}
+	for (const [die, number, kind, status, openedAt] of data.jobs.rows) {
+		rows[die]?.jobs.push({ number, kind, status, openedAt, fromMs: Date.parse(openedAt) });
+	}
+	for (const [die, day, kind, state] of data.service.rows) {
+		rows[die]?.service.push({ day, dayMs: Date.parse(day), kind, state });
+	}
+	return { fromMs, toMs, nowMs, days, rows };
+}
+
+/** True when the die has anything in the window (for the phone list, which skips free dies). */
+export const hasActivity = (row: BoardRow) =>
+	row.bookings.length > 0 || row.jobs.length > 0 || row.service.length > 0;

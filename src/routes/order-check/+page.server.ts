@@ -1,0 +1,36 @@
+import { setError, superValidate } from 'sveltekit-superforms';
+import { zod4 } from 'sveltekit-superforms/adapters';
+import { orderCheckQuerySchema } from '$lib/schemas/schedule';
+import { requireRole } from '$lib/server/auth/guard';
+import { getDb } from '$lib/server/db';
+import { runOrderCheck } from '$lib/server/schedule/order-check';
+import { listPressOptions } from '$lib/server/schedule/presses';
+import type { PageServerLoad } from './$types';
+
+// A GET form: the question stays in the URL, so a check can be bookmarked or sent on.
+export const load: PageServerLoad = async (event) => {
+	const user = requireRole(event, 'scheduler', 'admin', 'toolroom_lead');
+	const db = getDb();
+	const asked = event.url.searchParams.has('parts');
+	const [form, presses] = await Promise.all([
+		asked
+			? superValidate(event.url, zod4(orderCheckQuerySchema))
+			: superValidate(
+					{ die: (event.url.searchParams.get('die') ?? '').toUpperCase().slice(0, 20), scrapPct: 2 },
+					zod4(orderCheckQuerySchema),
+					{ errors: false }
+				),
+		listPressOptions(db)
+	]);
+	let answer = null;
+	if (asked && form.valid) {
+		if (!form.data.die) {
+			setError(form, 'die', 'Enter the die number, e.g. D-0107.');
+		} else {
+			const result = await runOrderCheck(db, form.data, { customerId: null });
+			if (result.ok) answer = result.answer;
+			else setError(form, result.field, result.message);
+		}
+	}
+	return { form, presses, answer, unitSystem: user.unitSystem };
+};

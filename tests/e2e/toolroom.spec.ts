@@ -1,0 +1,153 @@
+import { createJimp } from '@jimp/core';
+import jpeg from '@jimp/js-jpeg';
+import { expect, test, type Browser } from '@playwright/test';
+import { signIn, type Account } from './support';
+
+// The toolroom journey on D-0102 (ready, A380, no demo toolroom data). D-0104 and D-0106 are
+// also reserved for this file; no other spec uses them.
+const DIE = 'D-0102';
+const Jimp = createJimp({ formats: [jpeg] });
+
+/** A small generated "surface" photo, so the test needs no binary fixture. */
+async function surfacePhoto(seed: number): Promise<Buffer> {
+	const width = 320;
+	const height = 240;
+	const data = Buffer.alloc(width * height * 4);
+	for (let y = 0; y < height; y++) {
+		for (let x = 0; x < width; x++) {
+			const i = (y * width + x) * 4;
+			const v = 110 + ((x * 7 + y * 13 + seed * 31) % 40);
+			data[i] = v;
+			data[i + 1] = v;
+			data[i + 2] = v + 8;
+			data[i + 3] = 255;
+		}
+	}
+	return new Jimp({ data, width, height }).getBuffer('image/jpeg', { quality: 85 });
+}
+
+async function pageAs(browser: Browser, who: Account) {
+	const context = await browser.newContext();
+	const page = await context.newPage();
+	await signIn(page, who);
+	return page;
+}
+
+test('a toolmaker opens a job, adds photos, inspects, checks cooling and closes the job', async ({
+	browser
+}, info) => {
+	test.setTimeout(120_000);
+
+	// The lead defines the cooling circuit the toolmaker will check.
+	const lead = await pageAs(browser, 'toolroom_lead');
+	await lead.goto(`/dies/${DIE}/cooling`);
+	await lead.getByLabel('Label on the die').fill('C1 e2e');
+	await lead.getByLabel('Coolant').selectOption('water');
+	await lead.getByLabel('Channel diameter, mm').fill('10');
+	await lead.getByLabel('Nominal flow, L/min').fill('20');
+	await lead.getByRole('button', { name: 'Add circuit' }).click();
+	await expect(lead.getByText('Circuit C1 e2e added.')).toBeVisible();
+	await lead.context().close();
+
+	const page = await pageAs(browser, 'toolmaker');
+
+	// Open a job from the die's surface-inspection service task.
+	await page.goto(`/dies/${DIE}/jobs`);
+	await expect(page.getByText('Before you start work on the die')).toBeVisible();
+	const taskRow = page.getByRole('listitem').filter({ hasText: 'Surface inspection' });
+	await taskRow.getByRole('link', { name: 'Open a job for this task' }).click();
+	await expect(page.getByLabel('Kind of job')).toHaveValue('surface_inspection');
+	await expect(page.getByRole('checkbox', { name: /Surface inspection/ })).toBeChecked();
+	await page.getByLabel('Zone (optional)').fill('gate side');
+	await page.getByLabel('What is wrong or what to do').fill('Scheduled surface inspection, e2e run');
+	await page.getByRole('button', { name: 'Open job' }).click();
+	await expect(page).toHaveURL(/\/jobs\/TJ-\d{5}$/);
+	const jobUrl = page.url();
+	await expect(page.getByText('In toolroom')).toBeVisible();
+
+	// Two photos at once, with the upload progress shown.
+	await page
+		.getByLabel('Choose photos')
+		.setInputFiles([
+			{ name: 'gate-1.jpg', mimeType: 'image/jpeg', buffer: await surfacePhoto(1) },
+			{ name: 'gate-2.jpg', mimeType: 'image/jpeg', buffer: await surfacePhoto(2) }
+		]);
+	await page.getByRole('button', { name: 'Upload photos' }).click();
+	const progress = page.getByRole('progressbar', { name: 'Photo upload' });
+	await expect(progress).toBeVisible();
+	await expect(progress).toHaveAttribute('aria-valuenow', '100');
+	await expect(page.getByText('2 photos added.')).toBeVisible();
+	await expect(page.getByRole('heading', { name: 'Photos (2)' })).toBeVisible();
+	await expect(page.locator('img[src^="/photos/"][src$="/thumb"]')).toHaveCount(2);
+	const thumb = await page.locator('img[src$="/thumb"]').first().getAttribute('src');
+	const served = await page.request.get(thumb!);
+	expect(served.status()).toBe(200);
+	expect(served.headers()['content-type']).toBe('image/jpeg');
+	expect(served.headers()['cache-control']).toContain('private');
+	await page.screenshot({ path: info.outputPath('job-photos.png'), fullPage: true });
+
+	// A surface inspection at grade 2.
+	await page.goto(`/dies/${DIE}/surface`);
+	await page.getByLabel('Zone', { exact: true }).fill('gate side');
+	await page.getByText('Local crack network, tight').click();
+	await page.getByRole('button', { name: 'Record inspection' }).click();
+	await expect(page.getByText(/Inspection recorded: grade 2/)).toBeVisible();
+	await expect(
+		page.getByRole('row').filter({ hasText: 'gate side' }).getByText('Grade 2')
+	).toBeVisible();
+
+	// A cooling check at 70 % of nominal flow is flagged.
+	await page.goto(`/dies/${DIE}/cooling`);
+	await page.getByLabel('Measured flow, L/min').fill('14');
+	await page.getByLabel('Inlet, °C').fill('30');
+	await page.getByLabel('Outlet, °C').fill('36');
+	await page.getByLabel('Leak test').selectOption('pass');
+	await page.getByRole('button', { name: 'Record check' }).click();
+	await expect(page.getByText(/70 % of nominal — below 80 %, flagged as weak/)).toBeVisible();
+	await expect(
+		page.getByRole('row').filter({ hasText: 'C1 e2e' }).first().getByText('70 % — weak flow')
+	).toBeVisible();
+	await page.screenshot({ path: info.outputPath('cooling-check.png'), fullPage: true });
+
+	// Close the job: the die is ready again and its service task done.
+	await page.goto(jobUrl);
+	await page.getByLabel('Findings').fill('Tight local network at the gate, longest crack about 3 mm');
+	await page.getByLabel('Work done').fill('Inspected, photographed, light polish');
+	await page.getByLabel('Hours worked').fill('1.5');
+	await page.getByLabel('Summary for the owner').fill('Surface inspected; die back in service.');
+	await page.getByRole('button', { name: 'Close job as done' }).click();
+	await expect(page.getByRole('heading', { name: 'Closed' })).toBeVisible();
+	await expect(page.getByText('Ready', { exact: true })).toBeVisible();
+	const taskLine = page.getByRole('row').filter({ hasText: 'Surface inspection' });
+	await expect(taskLine.getByText(/Done by this job at [\d,]+ shots/)).toBeVisible();
+	await expect(taskLine.getByText('On track')).toBeVisible();
+
+	await page.goto(`/dies/${DIE}/jobs`);
+	await expect(
+		page.getByRole('region', { name: DIE }).getByText('Ready', { exact: true })
+	).toBeVisible();
+	await expect(
+		page.getByRole('listitem').filter({ hasText: 'Surface inspection' }).getByText('On track')
+	).toBeVisible();
+	await page.screenshot({ path: info.outputPath('die-jobs-after.png'), fullPage: true });
+});
+
+test('a planner reads jobs but has no toolroom forms; a customer cannot fetch an unshared photo', async ({
+	browser
+}) => {
+	const planner = await pageAs(browser, 'scheduler');
+	await planner.goto('/jobs');
+	await expect(planner.getByRole('heading', { level: 1, name: 'Toolroom jobs' })).toBeVisible();
+	await planner.goto('/dies/D-0104/jobs');
+	await expect(planner.getByRole('heading', { name: 'Job history' })).toBeVisible();
+	await expect(planner.getByRole('button', { name: 'Open job' })).toHaveCount(0);
+	await planner.goto('/dies/D-0104/cooling');
+	await expect(planner.getByRole('button', { name: 'Record check' })).toHaveCount(0);
+	await planner.context().close();
+
+	const customer = await pageAs(browser, 'customer');
+	const res = await customer.request.get('/photos/AAAAAAAAAAAAAAAAAAAAAA/full');
+	expect(res.status()).toBe(404);
+	const toolroom = await customer.goto('/jobs');
+	expect(toolroom?.status()).toBe(403);
+});

@@ -1,0 +1,135 @@
+import { afterAll, afterEach, beforeEach, describe, expect, it } from 'vitest';
+import { crackTrend } from '../../src/lib/calc/crack-trend';
+import { inspectionSchema } from '../../src/lib/schemas/toolroom';
+import { closePhotoPool } from '../../src/lib/server/photos/worker-pool';
+import {
+	findComparePhotos,
+	getSurfaceOverview,
+	listRisingSurfaces,
+	recordInspection
+} from '../../src/lib/server/toolroom/inspections';
+import { asFile, makeJpeg, makeUploadDir, setUpPlant, type ToolroomPlant } from '../fixtures/toolroom';
+
+let plant: ToolroomPlant;
+let uploads: Awaited<ReturnType<typeof makeUploadDir>>;
+
+beforeEach(async () => {
+	plant = await setUpPlant();
+	uploads = await makeUploadDir();
+});
+afterEach(async () => {
+	await uploads.remove();
+});
+afterAll(async () => {
+	await closePhotoPool();
+});
+
+async function inspect(
+	values: { half?: 'cover' | 'ejector'; zone: string; shotsAt: number; grade: number; crack?: number },
+	files: File[] = [],
+	dieId = plant.dieId
+) {
+	const form = inspectionSchema.parse({
+		half: values.half ?? 'cover',
+		zone: values.zone,
+		shotsAt: values.shotsAt,
+		grade: values.grade,
+		longestCrackMm: values.crack ?? ''
+	});
+	const result = await recordInspection(plant.db, {
+		dieId,
+		form,
+		files,
+		actor: plant.toolmaker,
+		uploadDir: uploads.dir
+	});
+	if (!result.ok) throw new Error(result.message);
+	return result;
+}
+
+describe('surface inspections', () => {
+	it('records grade, zone, shots and photos, and shows the latest grade per zone', async () => {
+		const photo = await makeJpeg();
+		const result = await inspect({ zone: 'Gate side', shotsAt: 4000, grade: 1 }, [asFile(photo, 'a.jpg')]);
+		expect(result).toMatchObject({ ok: true, photos: 1 });
+		await inspect({ zone: 'gate side ', shotsAt: 8000, grade: 2, crack: 4.5 });
+		await inspect({ half: 'ejector', zone: 'Core 1', shotsAt: 8000, grade: 0 });
+
+		const overview = await getSurfaceOverview(plant.db, { id: plant.dieId, total_shots: 12_000 });
+		// Zones compare trimmed and case-blind, so both gate-side entries are one zone.
+		expect(overview.zones.map((z) => [z.half, z.count, z.latest.grade, z.latest.shotsAt])).toEqual([
+			['cover', 2, 2, 8000],
+			['ejector', 1, 0, 8000]
+		]);
+		expect(overview.zones[0].latest.longestCrackMm).toBe(4.5);
+		// Two shot counts are too few for a trend.
+		expect(overview.zones[0].trend.slopePerShot).toBeNull();
+		expect(overview.timeline.map((t) => [t.shotsAt, t.photos.length])).toEqual([
+			[4000, 1],
+			[8000, 0]
+		]);
+		const audit = await plant.db.selectFrom('audit_log').select('action').where('action', '=', 'surface.inspect').execute();
+		expect(audit).toHaveLength(3);
+	});
+
+	it('projects the shots to the repair grade from the least-squares trend of the zone', async () => {
+		// Grade 1 at 2 000, 1 at 6 000, 2 at 10 000: slope 1/8000 per shot.
+		await inspect({ zone: 'gate', shotsAt: 2000, grade: 1 });
+		await inspect({ zone: 'gate', shotsAt: 6000, grade: 1 });
+		await inspect({ zone: 'gate', shotsAt: 10_000, grade: 2 });
+		const expected = crackTrend([
+			{ shots: 2000, grade: 1 },
+			{ shots: 6000, grade: 1 },
+			{ shots: 10_000, grade: 2 }
+		]);
+		const overview = await getSurfaceOverview(plant.db, { id: plant.dieId, total_shots: 12_000 });
+		const zone = overview.zones[0];
+		expect(zone.trend).toEqual(expected);
+		expect(zone.trend.slopePerShot).toBeCloseTo(1 / 8000, 12);
+		// Hand check: mean shots 6000, mean grade 4/3, so grade = 7/12 + shots/8000; grade 3 at
+		// 19 333.3 shots, rounded up to 19 334 — 7 334 shots after the die's 12 000.
+		expect(zone.trend.projectedShotsAtRepair).toBe(19_334);
+		expect(zone.shotsToRepair).toBe(7334);
+		expect(zone.rising).toBe(true);
+
+		const rising = await listRisingSurfaces(plant.db);
+		expect(rising).toEqual([
+			expect.objectContaining({ dieNumber: 'T-0001', zone: 'gate', grade: 2, shotsToRepair: 7334 })
+		]);
+	});
+
+	it('lists a zone at the repair grade even without a trend, and leaves flat zones and retired dies out', async () => {
+		await inspect({ zone: 'runner', shotsAt: 1000, grade: 3 });
+		await inspect({ zone: 'flat', shotsAt: 1000, grade: 1 });
+		await inspect({ zone: 'flat', shotsAt: 5000, grade: 1 });
+		await inspect({ zone: 'flat', shotsAt: 9000, grade: 1 });
+		await inspect({ zone: 'gate', shotsAt: 100, grade: 1 }, [], plant.otherDieId);
+		await inspect({ zone: 'gate', shotsAt: 200, grade: 2 }, [], plant.otherDieId);
+		await inspect({ zone: 'gate', shotsAt: 300, grade: 3 }, [], plant.otherDieId);
+		await plant.db.updateTable('dies').set({ status: 'retired' }).where('id', '=', plant.otherDieId).execute();
+
+		const rising = await listRisingSurfaces(plant.db);
+		expect(rising.map((r) => [r.dieNumber, r.zone, r.grade])).toEqual([['T-0001', 'runner', 3]]);
+	});
+
+	it('finds two photos of this die for side-by-side comparison, and none of another die', async () => {
+		const photo = await makeJpeg();
+		await inspect({ zone: 'gate', shotsAt: 2000, grade: 1 }, [asFile(photo, 'a.jpg')]);
+		await inspect({ zone: 'gate', shotsAt: 9000, grade: 3 }, [asFile(photo, 'b.jpg')]);
+		await inspect({ zone: 'gate', shotsAt: 100, grade: 0 }, [asFile(photo, 'c.jpg')], plant.otherDieId);
+		const rows = await plant.db
+			.selectFrom('photos')
+			.innerJoin('surface_inspections', 'surface_inspections.id', 'photos.inspection_id')
+			.select(['photos.public_id', 'surface_inspections.shots_at'])
+			.orderBy('photos.id')
+			.execute();
+		const [a, b, other] = rows.map((r) => r.public_id);
+
+		const pair = await findComparePhotos(plant.db, plant.dieId, [b, a]);
+		expect(pair.map((p) => [p.grade, p.shotsAt])).toEqual([
+			[3, 9000],
+			[1, 2000]
+		]);
+		expect(await findComparePhotos(plant.db, plant.dieId, [other, 'not an id'])).toEqual([]);
+	});
+});
