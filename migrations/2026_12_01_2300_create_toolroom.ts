@@ -118,10 +118,7 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addColumn('uploaded_at', 'text', (c) => c.notNull())
 		.addColumn('caption', 'text')
 		.addColumn('shared_with_owner', 'integer', (c) => c.notNull().defaultTo(0))
-		.addCheckConstraint(
-			'photos_owner_check',
-			sql`(job_id is null) <> (inspection_id is null)`
-		)
+		.addCheckConstraint('photos_owner_check', sql`(job_id is null) <> (inspection_id is null)`)
 		.addCheckConstraint('photos_source_check', sql`source_type in ('jpeg','png')`)
 		.execute();
 	await db.schema.createIndex('photos_job').on('photos').column('job_id').execute();

@@ -3,7 +3,6 @@ import { sql, type Kysely } from 'kysely';
 // Frozen in time: never edit a migration that has shipped; add a new one instead.
 // Press bookings. Presses are the `machines` table of the foundation migration.
 
-// eslint-disable-next-line @typescript-eslint/no-explicit-any
 export async function up(db: Kysely<any>): Promise<void> {
 	await db.schema
 		.createTable('press_bookings')
@@ -47,7 +46,6 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.execute();
 }
 
-// eslint-disable-next-line @typescript-eslint/no-explicit-any
 export async function down(db: Kysely<any>): Promise<void> {
 	await db.schema.dropTable('press_bookings').execute();
 }

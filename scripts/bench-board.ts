@@ -49,16 +49,25 @@ const FAMILY_OF: Record<string, 'zinc' | 'magnesium' | 'aluminium' | 'copper'> =
 	CW617N: 'copper'
 };
 
-export async function seedPlant(db: DB): Promise<{ dies: number; bookings: number; entries: number }> {
+export async function seedPlant(
+	db: DB
+): Promise<{ dies: number; bookings: number; entries: number }> {
 	const raw = rawHandle(db);
 	const rand = random(7);
 	const alloys = raw.prepare('select id, code from alloys').all() as { id: number; code: string }[];
 	let bookings = 0;
 	raw.transaction(() => {
 		const customer = raw.prepare('insert into customers (code, name) values (?, ?)');
-		for (let c = 1; c <= 12; c++) customer.run(`C${String(c).padStart(2, '0')}`, `Bench owner ${c}`);
-		raw.prepare(`insert into users (id, email, name, role, password_hash) values ('b-plan', 'p@b.test', 'P', 'scheduler', 'x')`).run();
-		const machine = raw.prepare('insert into machines (name, chamber, clamp_force_kn) values (?, ?, ?)');
+		for (let c = 1; c <= 12; c++)
+			customer.run(`C${String(c).padStart(2, '0')}`, `Bench owner ${c}`);
+		raw
+			.prepare(
+				`insert into users (id, email, name, role, password_hash) values ('b-plan', 'p@b.test', 'P', 'scheduler', 'x')`
+			)
+			.run();
+		const machine = raw.prepare(
+			'insert into machines (name, chamber, clamp_force_kn) values (?, ?, ?)'
+		);
 		for (let m = 0; m < 12; m++) machine.run(`HC-${m}`, 'hot', 800 + m * 350);
 		for (let m = 0; m < 18; m++) machine.run(`CC-${m}`, 'cold', 2500 + m * 900);
 		const die = raw.prepare(
@@ -78,13 +87,24 @@ export async function seedPlant(db: DB): Promise<{ dies: number; bookings: numbe
 			`insert into press_bookings (die_id, machine_id, starts_at, ends_at, order_ref, parts, scrap_pct,
 			   shots_per_hour, created_by, created_at) values (?, ?, ?, ?, ?, ?, 2, ?, 'b-plan', ?)`
 		);
-		const hasJobs = raw.prepare(`select 1 from sqlite_master where type = 'table' and name = 'toolroom_jobs'`).get();
+		const hasJobs = raw
+			.prepare(`select 1 from sqlite_master where type = 'table' and name = 'toolroom_jobs'`)
+			.get();
 		const now = Date.parse(NOW);
 		for (let i = 0; i < DIES; i++) {
 			const alloy = alloys[i % alloys.length];
 			const family = FAMILY_OF[alloy.code] ?? 'aluminium';
 			const hot = family === 'zinc' || (family === 'magnesium' && i % 2 === 0);
-			const status = i % 50 === 0 ? 'retired' : i % 33 === 0 ? 'in_toolroom' : i % 97 === 0 ? 'held' : i % 3 ? 'ready' : 'running';
+			const status =
+				i % 50 === 0
+					? 'retired'
+					: i % 33 === 0
+						? 'in_toolroom'
+						: i % 97 === 0
+							? 'held'
+							: i % 3
+								? 'ready'
+								: 'running';
 			const total = Math.round(5_000 + rand() * 90_000);
 			const id = Number(
 				die.run(
@@ -118,24 +138,45 @@ export async function seedPlant(db: DB): Promise<{ dies: number; bookings: numbe
 				const hours = 8 * (1 + Math.floor(rand() * 4));
 				const start = new Date(Math.floor(t / HOUR) * HOUR).toISOString();
 				const end = new Date(Math.floor(t / HOUR) * HOUR + hours * HOUR).toISOString();
-				booking.run(id, machineId, start, end, `SO-${bookings}`, 1000 + Math.round(rand() * 9000), hot ? 300 : 120, start);
+				booking.run(
+					id,
+					machineId,
+					start,
+					end,
+					`SO-${bookings}`,
+					1000 + Math.round(rand() * 9000),
+					hot ? 300 : 120,
+					start
+				);
 				bookings++;
 				t += (14 + rand() * 14) * DAY;
 			}
 		}
 	})();
 	// The trailing shot rate comes from the ledger's daily roll-up, written the one way it is written.
-	const numbers = raw.prepare(`select number from dies where status != 'retired'`).all() as { number: string }[];
+	const numbers = raw.prepare(`select number from dies where status != 'retired'`).all() as {
+		number: string;
+	}[];
 	const rows: ShotInput[] = [];
 	for (const { number } of numbers) {
 		for (let d = 1; d <= 30; d++) {
-			rows.push({ die: number, shots: 200 + Math.round(rand() * 1500), countedAt: new Date(Date.parse(NOW) - d * DAY + 2 * HOUR).toISOString() });
+			rows.push({
+				die: number,
+				shots: 200 + Math.round(rand() * 1500),
+				countedAt: new Date(Date.parse(NOW) - d * DAY + 2 * HOUR).toISOString()
+			});
 		}
 	}
 	let entries = 0;
 	for (let k = 0; k < rows.length; k += 5000) {
-		const result = await recordShots(db, rows.slice(k, k + 5000), { userId: null, tokenId: null, customerId: null }, { source: 'seed', now: NOW });
-		if (!result.ok) throw new Error(`Bench ledger refused: ${JSON.stringify(result.issues.slice(0, 2))}`);
+		const result = await recordShots(
+			db,
+			rows.slice(k, k + 5000),
+			{ userId: null, tokenId: null, customerId: null },
+			{ source: 'seed', now: NOW }
+		);
+		if (!result.ok)
+			throw new Error(`Bench ledger refused: ${JSON.stringify(result.issues.slice(0, 2))}`);
 		entries += result.accepted;
 	}
 	return { dies: DIES, bookings, entries };
@@ -233,6 +274,8 @@ function isEntryPoint(): boolean {
 
 if (isEntryPoint()) {
 	for (const f of await run()) {
-		console.log(`${f.figure}: ${f.value.toFixed(1)} ${f.unit} (target ${f.target}) ${f.pass ? 'pass' : 'FAIL'}`);
+		console.log(
+			`${f.figure}: ${f.value.toFixed(1)} ${f.unit} (target ${f.target}) ${f.pass ? 'pass' : 'FAIL'}`
+		);
 	}
 }

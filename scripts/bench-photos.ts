@@ -67,18 +67,56 @@ async function seedJob(db: DB): Promise<number> {
 	await db.insertInto('customers').values({ code: 'BENCH', name: 'Bench Castings' }).execute();
 	await db
 		.insertInto('users')
-		.values({ id: 'bench-maker', email: 'maker@bench.test', name: 'Maker', role: 'toolmaker', customer_id: null, password_hash: 'x' })
+		.values({
+			id: 'bench-maker',
+			email: 'maker@bench.test',
+			name: 'Maker',
+			role: 'toolmaker',
+			customer_id: null,
+			password_hash: 'x'
+		})
 		.execute();
 	const alloy = await db.selectFrom('alloys').select('id').executeTakeFirstOrThrow();
 	const die = await db
 		.insertInto('dies')
-		.values({ number: 'B-0001', part_name: 'Bench part', customer_id: 1, alloy_id: alloy.id, process: 'cold_chamber', cavities: 1, projected_area_cm2: 100 })
+		.values({
+			number: 'B-0001',
+			part_name: 'Bench part',
+			customer_id: 1,
+			alloy_id: alloy.id,
+			process: 'cold_chamber',
+			cavities: 1,
+			projected_area_cm2: 100
+		})
 		.returning('id')
 		.executeTakeFirstOrThrow();
 	const at = new Date().toISOString();
 	const job = await db
 		.insertInto('toolroom_jobs')
-		.values({ number: 'TJ-90001', die_id: die.id, kind: 'repair', half: 'cover', description: 'Bench', source: 'die', die_shots_at_open: 0, opened_at: at, updated_at: at, opened_by: 'bench-maker', zone: null, assigned_to: null, notice_id: null, closed_at: null, closed_by: null, die_shots_at_close: null, findings: null, work_done: null, hours: null, parts_used: null, owner_summary: null, cancel_reason: null })
+		.values({
+			number: 'TJ-90001',
+			die_id: die.id,
+			kind: 'repair',
+			half: 'cover',
+			description: 'Bench',
+			source: 'die',
+			die_shots_at_open: 0,
+			opened_at: at,
+			updated_at: at,
+			opened_by: 'bench-maker',
+			zone: null,
+			assigned_to: null,
+			notice_id: null,
+			closed_at: null,
+			closed_by: null,
+			die_shots_at_close: null,
+			findings: null,
+			work_done: null,
+			hours: null,
+			parts_used: null,
+			owner_summary: null,
+			cancel_reason: null
+		})
 		.returning('id')
 		.executeTakeFirstOrThrow();
 	return job.id;
@@ -157,7 +195,13 @@ export async function run(): Promise<Figure[]> {
 		);
 		const ratio = uploadMs / bareMs;
 		return [
-			{ figure: 'photos: bare jimp decode-resize-encode, 12 MP', value: bareMs, unit: 'ms', target: 'reference', pass: true },
+			{
+				figure: 'photos: bare jimp decode-resize-encode, 12 MP',
+				value: bareMs,
+				unit: 'ms',
+				target: 'reference',
+				pass: true
+			},
 			{
 				figure: 'photos: upload path per photo, 12 MP',
 				value: uploadMs,

@@ -2,9 +2,17 @@
 // a few runs in the past, and one booking that went bad when its die went to the toolroom.
 // Every booking except that last one goes through the same checks as the booking form.
 import type { DB } from '../../src/lib/server/db/connect';
-import { chamberChecks, dieClampRequirement, findClashes } from '../../src/lib/server/schedule/booking-checks';
+import {
+	chamberChecks,
+	dieClampRequirement,
+	findClashes
+} from '../../src/lib/server/schedule/booking-checks';
 import { createBooking } from '../../src/lib/server/schedule/bookings';
-import { defaultShotsPerHour, loadDieFacts, type DieFacts } from '../../src/lib/server/schedule/die-facts';
+import {
+	defaultShotsPerHour,
+	loadDieFacts,
+	type DieFacts
+} from '../../src/lib/server/schedule/die-facts';
 
 const HOUR_MS = 3_600_000;
 const DAY_MS = 24 * HOUR_MS;
@@ -13,7 +21,10 @@ const KEEP_FREE = new Set(['D-0107', 'D-0119', 'D-0129', 'D-0135', 'D-0140']);
 const HORIZON_DAYS = 35;
 const CHANGEOVER_H = 6;
 
-function fits(die: DieFacts, press: { name: string; chamber: 'hot' | 'cold'; clamp_force_kn: number }) {
+function fits(
+	die: DieFacts,
+	press: { name: string; chamber: 'hot' | 'cold'; clamp_force_kn: number }
+) {
 	const blocked = chamberChecks(die, press as never).some((c) => c.level === 'block');
 	return !blocked && dieClampRequirement(die).requiredKn <= press.clamp_force_kn;
 }
@@ -32,10 +43,19 @@ export interface ScheduleSeedSummary {
 
 /** Adds the demo bookings; call after the demo plant (dies, presses, ledger) is in place. */
 export async function seedScheduleDemo(db: DB, now: Date): Promise<ScheduleSeedSummary> {
-	const planner = await db.selectFrom('users').select('id').where('role', '=', 'scheduler').executeTakeFirst();
+	const planner = await db
+		.selectFrom('users')
+		.select('id')
+		.where('role', '=', 'scheduler')
+		.executeTakeFirst();
 	const actor = { userId: planner?.id ?? null, tokenId: null, customerId: null };
 	const nowIso = now.toISOString();
-	const presses = await db.selectFrom('machines').selectAll().where('status', '=', 'available').orderBy('name').execute();
+	const presses = await db
+		.selectFrom('machines')
+		.selectAll()
+		.where('status', '=', 'available')
+		.orderBy('name')
+		.execute();
 	const numbers = await db
 		.selectFrom('dies')
 		.select('number')
@@ -121,7 +141,9 @@ export async function seedScheduleDemo(db: DB, now: Date): Promise<ScheduleSeedS
 		.where('number', 'not in', [...KEEP_FREE])
 		.orderBy('number')
 		.executeTakeFirst();
-	const facts = stranded ? await loadDieFacts(db, stranded.number, { customerId: null }, nowIso) : null;
+	const facts = stranded
+		? await loadDieFacts(db, stranded.number, { customerId: null }, nowIso)
+		: null;
 	const press = facts ? presses.find((p) => fits(facts, p)) : undefined;
 	for (let day = 3; stranded && press && day < HORIZON_DAYS; day++) {
 		const startsAt = new Date(firstShift + day * DAY_MS).toISOString();

@@ -7,7 +7,11 @@ import { createJimp } from '@jimp/core';
 import jpeg from '@jimp/js-jpeg';
 import type { DB } from '../../src/lib/server/db/connect';
 import { closePhotoPool } from '../../src/lib/server/photos/worker-pool';
-import { closeJobSchema, coolingCheckSchema, type OpenJobForm } from '../../src/lib/schemas/toolroom';
+import {
+	closeJobSchema,
+	coolingCheckSchema,
+	type OpenJobForm
+} from '../../src/lib/schemas/toolroom';
 import { addCircuit, recordCheck } from '../../src/lib/server/toolroom/cooling';
 import { recordInspection } from '../../src/lib/server/toolroom/inspections';
 import { closeJob, moveJob, openJob, type Actor } from '../../src/lib/server/toolroom/jobs';
@@ -72,10 +76,17 @@ export async function drawSurfaceImage(seed: number, grade: number): Promise<Buf
 			angle += (rand() - 0.5) * 0.5;
 			x += Math.cos(angle);
 			y += Math.sin(angle);
-			for (let t = -thick; t <= thick; t++) darken(x + t * Math.sin(angle), y - t * Math.cos(angle), c.depth);
+			for (let t = -thick; t <= thick; t++)
+				darken(x + t * Math.sin(angle), y - t * Math.cos(angle), c.depth);
 			// Heat checks branch at steep angles, which builds the network.
 			if (rand() < 0.015 * grade) {
-				queue.push({ x, y, angle: angle + (rand() < 0.5 ? 1.3 : -1.3), length: c.length * 0.5, depth: c.depth * 0.8 });
+				queue.push({
+					x,
+					y,
+					angle: angle + (rand() < 0.5 ? 1.3 : -1.3),
+					length: c.length * 0.5,
+					depth: c.depth * 0.8
+				});
 			}
 		}
 	}
@@ -108,10 +119,15 @@ export async function seedToolroomDemo(
 	uploadDir: string = path.resolve(process.env.UPLOAD_DIR || './data/uploads')
 ): Promise<ToolroomSeedSummary> {
 	const users = await db.selectFrom('users').select(['id', 'role']).execute();
-	const lead: Actor = { userId: users.find((u) => u.role === 'toolroom_lead')!.id, role: 'toolroom_lead' };
+	const lead: Actor = {
+		userId: users.find((u) => u.role === 'toolroom_lead')!.id,
+		role: 'toolroom_lead'
+	};
 	const maker: Actor = { userId: users.find((u) => u.role === 'toolmaker')!.id, role: 'toolmaker' };
 	const dies = new Map(
-		(await db.selectFrom('dies').select(['id', 'number', 'total_shots', 'status']).execute()).map((d) => [d.number, d])
+		(await db.selectFrom('dies').select(['id', 'number', 'total_shots', 'status']).execute()).map(
+			(d) => [d.number, d]
+		)
 	);
 	const die = (number: string) => {
 		const d = dies.get(number);
@@ -119,25 +135,128 @@ export async function seedToolroomDemo(
 		return d;
 	};
 	const daysAgo = (days: number, hour = 9) =>
-		new Date(Date.parse(now.toISOString().slice(0, 10)) - days * DAY + hour * 3_600_000).toISOString();
-	const summary: ToolroomSeedSummary = { jobs: 0, inspections: 0, photos: 0, circuits: 0, checks: 0 };
+		new Date(
+			Date.parse(now.toISOString().slice(0, 10)) - days * DAY + hour * 3_600_000
+		).toISOString();
+	const summary: ToolroomSeedSummary = {
+		jobs: 0,
+		inspections: 0,
+		photos: 0,
+		circuits: 0,
+		checks: 0
+	};
 	let seed = 4100;
 
 	// Surface inspections: D-0131's gate side gets worse shot by shot; a few other zones and dies.
-	const inspections: { die: string; half: 'cover' | 'ejector'; zone: string; fraction: number; grade: number; crack: number | null; days: number; photo: boolean; notes?: string }[] = [
-		{ die: 'D-0131', half: 'cover', zone: 'gate side', fraction: 0.55, grade: 1, crack: 0.8, days: 210, photo: true },
-		{ die: 'D-0131', half: 'cover', zone: 'gate side', fraction: 0.7, grade: 1, crack: 1.5, days: 150, photo: true },
-		{ die: 'D-0131', half: 'cover', zone: 'gate side', fraction: 0.84, grade: 2, crack: 3, days: 80, photo: true },
-		{ die: 'D-0131', half: 'cover', zone: 'gate side', fraction: 0.97, grade: 2, crack: 4.5, days: 12, photo: true, notes: 'Network spreading towards the overflow; plan a repair at the next change.' },
-		{ die: 'D-0131', half: 'ejector', zone: 'core 2', fraction: 0.7, grade: 0, crack: null, days: 150, photo: false },
-		{ die: 'D-0131', half: 'ejector', zone: 'core 2', fraction: 0.97, grade: 1, crack: 0.5, days: 12, photo: true },
-		{ die: 'D-0120', half: 'cover', zone: 'runner', fraction: 0.9, grade: 1, crack: 1, days: 30, photo: true },
-		{ die: 'D-0125', half: 'cover', zone: 'cavity 1, boss', fraction: 0.8, grade: 2, crack: 2.5, days: 45, photo: true },
-		{ die: 'D-0138', half: 'ejector', zone: 'gate side', fraction: 0.9, grade: 3, crack: 7, days: 20, photo: true, notes: 'Open network across the sealing face.' }
+	const inspections: {
+		die: string;
+		half: 'cover' | 'ejector';
+		zone: string;
+		fraction: number;
+		grade: number;
+		crack: number | null;
+		days: number;
+		photo: boolean;
+		notes?: string;
+	}[] = [
+		{
+			die: 'D-0131',
+			half: 'cover',
+			zone: 'gate side',
+			fraction: 0.55,
+			grade: 1,
+			crack: 0.8,
+			days: 210,
+			photo: true
+		},
+		{
+			die: 'D-0131',
+			half: 'cover',
+			zone: 'gate side',
+			fraction: 0.7,
+			grade: 1,
+			crack: 1.5,
+			days: 150,
+			photo: true
+		},
+		{
+			die: 'D-0131',
+			half: 'cover',
+			zone: 'gate side',
+			fraction: 0.84,
+			grade: 2,
+			crack: 3,
+			days: 80,
+			photo: true
+		},
+		{
+			die: 'D-0131',
+			half: 'cover',
+			zone: 'gate side',
+			fraction: 0.97,
+			grade: 2,
+			crack: 4.5,
+			days: 12,
+			photo: true,
+			notes: 'Network spreading towards the overflow; plan a repair at the next change.'
+		},
+		{
+			die: 'D-0131',
+			half: 'ejector',
+			zone: 'core 2',
+			fraction: 0.7,
+			grade: 0,
+			crack: null,
+			days: 150,
+			photo: false
+		},
+		{
+			die: 'D-0131',
+			half: 'ejector',
+			zone: 'core 2',
+			fraction: 0.97,
+			grade: 1,
+			crack: 0.5,
+			days: 12,
+			photo: true
+		},
+		{
+			die: 'D-0120',
+			half: 'cover',
+			zone: 'runner',
+			fraction: 0.9,
+			grade: 1,
+			crack: 1,
+			days: 30,
+			photo: true
+		},
+		{
+			die: 'D-0125',
+			half: 'cover',
+			zone: 'cavity 1, boss',
+			fraction: 0.8,
+			grade: 2,
+			crack: 2.5,
+			days: 45,
+			photo: true
+		},
+		{
+			die: 'D-0138',
+			half: 'ejector',
+			zone: 'gate side',
+			fraction: 0.9,
+			grade: 3,
+			crack: 7,
+			days: 20,
+			photo: true,
+			notes: 'Open network across the sealing face.'
+		}
 	];
 	for (const ins of inspections) {
 		const d = die(ins.die);
-		const files = ins.photo ? [photoFile(await drawSurfaceImage(seed++, ins.grade), 'surface.jpg')] : [];
+		const files = ins.photo
+			? [photoFile(await drawSurfaceImage(seed++, ins.grade), 'surface.jpg')]
+			: [];
 		const result = await recordInspection(db, {
 			dieId: d.id,
 			form: {
@@ -161,19 +280,97 @@ export async function seedToolroomDemo(
 	}
 
 	// Cooling circuits and checks; C1 on D-0120 has dropped to 65 % of nominal (scale build-up).
-	const circuits: { die: string; half: 'cover' | 'ejector'; label: string; coolant: 'water' | 'oil'; d: number; nominal: number; flows: number[]; inlet: number; rise: number; oil?: [number, number, number] }[] = [
-		{ die: 'D-0120', half: 'cover', label: 'C1 cavity', coolant: 'water', d: 10, nominal: 18, flows: [17.6, 15.1, 11.7], inlet: 28, rise: 6 },
-		{ die: 'D-0120', half: 'ejector', label: 'E1 core', coolant: 'water', d: 8, nominal: 12, flows: [11.8, 11.2], inlet: 28, rise: 5 },
-		{ die: 'D-0113', half: 'cover', label: 'C1', coolant: 'water', d: 12, nominal: 24, flows: [23.5, 22.8], inlet: 25, rise: 7 },
-		{ die: 'D-0113', half: 'ejector', label: 'E1', coolant: 'water', d: 12, nominal: 24, flows: [24.1], inlet: 25, rise: 6 },
-		{ die: 'D-0131', half: 'cover', label: 'Oil 1', coolant: 'oil', d: 12, nominal: 30, flows: [28.5, 27.9], inlet: 160, rise: 9, oil: [850, 4.2, 2350] },
-		{ die: 'D-0138', half: 'cover', label: 'C1 gate', coolant: 'water', d: 10, nominal: 16, flows: [15.2], inlet: 30, rise: 8 }
+	const circuits: {
+		die: string;
+		half: 'cover' | 'ejector';
+		label: string;
+		coolant: 'water' | 'oil';
+		d: number;
+		nominal: number;
+		flows: number[];
+		inlet: number;
+		rise: number;
+		oil?: [number, number, number];
+	}[] = [
+		{
+			die: 'D-0120',
+			half: 'cover',
+			label: 'C1 cavity',
+			coolant: 'water',
+			d: 10,
+			nominal: 18,
+			flows: [17.6, 15.1, 11.7],
+			inlet: 28,
+			rise: 6
+		},
+		{
+			die: 'D-0120',
+			half: 'ejector',
+			label: 'E1 core',
+			coolant: 'water',
+			d: 8,
+			nominal: 12,
+			flows: [11.8, 11.2],
+			inlet: 28,
+			rise: 5
+		},
+		{
+			die: 'D-0113',
+			half: 'cover',
+			label: 'C1',
+			coolant: 'water',
+			d: 12,
+			nominal: 24,
+			flows: [23.5, 22.8],
+			inlet: 25,
+			rise: 7
+		},
+		{
+			die: 'D-0113',
+			half: 'ejector',
+			label: 'E1',
+			coolant: 'water',
+			d: 12,
+			nominal: 24,
+			flows: [24.1],
+			inlet: 25,
+			rise: 6
+		},
+		{
+			die: 'D-0131',
+			half: 'cover',
+			label: 'Oil 1',
+			coolant: 'oil',
+			d: 12,
+			nominal: 30,
+			flows: [28.5, 27.9],
+			inlet: 160,
+			rise: 9,
+			oil: [850, 4.2, 2350]
+		},
+		{
+			die: 'D-0138',
+			half: 'cover',
+			label: 'C1 gate',
+			coolant: 'water',
+			d: 10,
+			nominal: 16,
+			flows: [15.2],
+			inlet: 30,
+			rise: 8
+		}
 	];
 	for (const c of circuits) {
 		const d = die(c.die);
 		const added = await addCircuit(db, {
 			dieId: d.id,
-			form: { half: c.half, label: c.label, coolant: c.coolant, channelDiameterMm: c.d, nominalFlowLpm: c.nominal },
+			form: {
+				half: c.half,
+				label: c.label,
+				coolant: c.coolant,
+				channelDiameterMm: c.d,
+				nominalFlowLpm: c.nominal
+			},
 			actor: lead,
 			at: daysAgo(200)
 		});
@@ -189,7 +386,10 @@ export async function seedToolroomDemo(
 					outletC: c.inlet + c.rise * (c.flows[0] / flow),
 					supplyPressureBar: c.coolant === 'oil' ? 4 : 5.5,
 					leakTest: 'pass',
-					notes: i === c.flows.length - 1 && flow / c.nominal < 0.8 ? 'Flow down; flush and descale at the next change.' : '',
+					notes:
+						i === c.flows.length - 1 && flow / c.nominal < 0.8
+							? 'Flow down; flush and descale at the next change.'
+							: '',
 					oilDensityKgM3: c.oil?.[0] ?? '',
 					oilViscosityMpaS: c.oil?.[1] ?? '',
 					oilSpecificHeatJKgK: c.oil?.[2] ?? ''
@@ -204,8 +404,22 @@ export async function seedToolroomDemo(
 
 	// Jobs. Historic ones are opened without moving the die and without service tasks, so the
 	// scenario's die states and due tasks stay as they are.
-	const closeForm = (findings: string, work: string, hours: number, summaryText: string, shared: boolean) =>
-		closeJobSchema.parse({ findings, workDone: work, hours, partsUsed: '', billableToOwner: hours > 4, ownerSummary: summaryText, summaryShared: shared });
+	const closeForm = (
+		findings: string,
+		work: string,
+		hours: number,
+		summaryText: string,
+		shared: boolean
+	) =>
+		closeJobSchema.parse({
+			findings,
+			workDone: work,
+			hours,
+			partsUsed: '',
+			billableToOwner: hours > 4,
+			ownerSummary: summaryText,
+			summaryShared: shared
+		});
 	const job = async (
 		number: string,
 		form: Partial<OpenJobForm> & { description: string },
@@ -215,7 +429,16 @@ export async function seedToolroomDemo(
 		const d = die(number);
 		const opened = await openJob(db, {
 			dieId: d.id,
-			form: { kind: 'repair', half: 'cover', zone: null, assignedTo: maker.userId, serviceTaskIds: [], dieToToolroom: false, noticeId: undefined, ...form },
+			form: {
+				kind: 'repair',
+				half: 'cover',
+				zone: null,
+				assignedTo: maker.userId,
+				serviceTaskIds: [],
+				dieToToolroom: false,
+				noticeId: undefined,
+				...form
+			},
 			actor,
 			at: daysAgo(openedDaysAgo, 7)
 		});
@@ -224,25 +447,138 @@ export async function seedToolroomDemo(
 		return { ...opened, die: d };
 	};
 
-	const historic: [string, Partial<OpenJobForm> & { description: string }, number, number, Parameters<typeof closeForm>, boolean][] = [
-		['D-0103', { kind: 'repair', half: 'cover', zone: 'parting line', description: 'Flash along the parting line at the lower corner.' }, 140, 2, ['Parting line worn at the lower corner, 0.1 mm step.', 'Welded and re-machined the corner, spotted both halves.', 6, 'Parting line repaired; flash gone on the first 200 shots.', true], true],
-		['D-0113', { kind: 'modification', half: 'ejector', zone: 'cavity 2', description: 'Owner asked for a deeper part-number stamp.' }, 95, 1, ['Insert stamp 0.3 mm deep.', 'Re-cut stamp to 0.6 mm, polished.', 2.5, 'Part-number stamp deepened as requested.', true], false],
-		['D-0125', { kind: 'repair', half: 'cover', zone: 'cavity 1, boss', description: 'Soldering on the boss core, parts sticking.' }, 60, 3, ['Aluminium soldered on the boss core; draft worn.', 'Cleaned, polished, re-nitrided the core tip.', 9, 'Core cleaned and surface-treated; sticking resolved.', false], false],
-		['D-0138', { kind: 'repair', half: 'ejector', zone: 'gate side', description: 'Heat checking at the gate marks the casting.' }, 25, 4, ['Grade 3 network at the gate, 7 mm longest crack.', 'Ground out, TIG welded with H13 filler, re-polished; stress relieved.', 14, 'Gate area repaired by welding; the die runs again.', true], false]
+	const historic: [
+		string,
+		Partial<OpenJobForm> & { description: string },
+		number,
+		number,
+		Parameters<typeof closeForm>,
+		boolean
+	][] = [
+		[
+			'D-0103',
+			{
+				kind: 'repair',
+				half: 'cover',
+				zone: 'parting line',
+				description: 'Flash along the parting line at the lower corner.'
+			},
+			140,
+			2,
+			[
+				'Parting line worn at the lower corner, 0.1 mm step.',
+				'Welded and re-machined the corner, spotted both halves.',
+				6,
+				'Parting line repaired; flash gone on the first 200 shots.',
+				true
+			],
+			true
+		],
+		[
+			'D-0113',
+			{
+				kind: 'modification',
+				half: 'ejector',
+				zone: 'cavity 2',
+				description: 'Owner asked for a deeper part-number stamp.'
+			},
+			95,
+			1,
+			[
+				'Insert stamp 0.3 mm deep.',
+				'Re-cut stamp to 0.6 mm, polished.',
+				2.5,
+				'Part-number stamp deepened as requested.',
+				true
+			],
+			false
+		],
+		[
+			'D-0125',
+			{
+				kind: 'repair',
+				half: 'cover',
+				zone: 'cavity 1, boss',
+				description: 'Soldering on the boss core, parts sticking.'
+			},
+			60,
+			3,
+			[
+				'Aluminium soldered on the boss core; draft worn.',
+				'Cleaned, polished, re-nitrided the core tip.',
+				9,
+				'Core cleaned and surface-treated; sticking resolved.',
+				false
+			],
+			false
+		],
+		[
+			'D-0138',
+			{
+				kind: 'repair',
+				half: 'ejector',
+				zone: 'gate side',
+				description: 'Heat checking at the gate marks the casting.'
+			},
+			25,
+			4,
+			[
+				'Grade 3 network at the gate, 7 mm longest crack.',
+				'Ground out, TIG welded with H13 filler, re-polished; stress relieved.',
+				14,
+				'Gate area repaired by welding; the die runs again.',
+				true
+			],
+			false
+		]
 	];
 	for (const [number, form, openedAgo, tookDays, close, withPhotos] of historic) {
 		const opened = await job(number, form, openedAgo);
-		const jobRow = await db.selectFrom('toolroom_jobs').select('id').where('number', '=', opened.number).executeTakeFirstOrThrow();
-		await moveJob(db, { number: opened.number, to: 'in_progress', actor: maker, at: daysAgo(openedAgo, 8) });
+		const jobRow = await db
+			.selectFrom('toolroom_jobs')
+			.select('id')
+			.where('number', '=', opened.number)
+			.executeTakeFirstOrThrow();
+		await moveJob(db, {
+			number: opened.number,
+			to: 'in_progress',
+			actor: maker,
+			at: daysAgo(openedAgo, 8)
+		});
 		if (withPhotos) {
-			const files = [photoFile(await drawSurfaceImage(seed++, 2), 'before.jpg'), photoFile(await drawSurfaceImage(seed++, 0), 'after.jpg')];
-			const uploaded = await uploadPhotos(db, { target: { jobId: jobRow.id }, files, actor: maker, uploadDir, caption: 'Parting line, before and after', at: daysAgo(openedAgo - tookDays, 11) });
+			const files = [
+				photoFile(await drawSurfaceImage(seed++, 2), 'before.jpg'),
+				photoFile(await drawSurfaceImage(seed++, 0), 'after.jpg')
+			];
+			const uploaded = await uploadPhotos(db, {
+				target: { jobId: jobRow.id },
+				files,
+				actor: maker,
+				uploadDir,
+				caption: 'Parting line, before and after',
+				at: daysAgo(openedAgo - tookDays, 11)
+			});
 			if (!uploaded.ok) throw new Error(`Demo job photos: ${uploaded.message}`);
 			summary.photos += uploaded.count;
-			const shared = await db.selectFrom('photos').select('public_id').where('job_id', '=', jobRow.id).execute();
-			for (const p of shared) await setPhotoShared(db, { publicId: p.public_id, shared: true, actor: lead, at: daysAgo(openedAgo - tookDays, 12) });
+			const shared = await db
+				.selectFrom('photos')
+				.select('public_id')
+				.where('job_id', '=', jobRow.id)
+				.execute();
+			for (const p of shared)
+				await setPhotoShared(db, {
+					publicId: p.public_id,
+					shared: true,
+					actor: lead,
+					at: daysAgo(openedAgo - tookDays, 12)
+				});
 		}
-		const closed = await closeJob(db, { number: opened.number, form: closeForm(...close), actor: maker, at: daysAgo(openedAgo - tookDays, 16) });
+		const closed = await closeJob(db, {
+			number: opened.number,
+			form: closeForm(...close),
+			actor: maker,
+			at: daysAgo(openedAgo - tookDays, 16)
+		});
 		if (!closed.ok) throw new Error(`Demo close ${opened.number}: ${closed.message}`);
 		// Back-date the shot counts, and record that the die was in the toolroom meanwhile.
 		const shotsThen = Math.round(opened.die.total_shots * (1 - openedAgo / 600));
@@ -255,11 +591,39 @@ export async function seedToolroomDemo(
 
 	// Open jobs on the board: D-0119 is in the toolroom already, D-0109 is held awaiting the owner,
 	// D-0131 runs on while replacement ejector pins are on order.
-	await job('D-0119', { kind: 'stress_relief', half: 'both', description: 'Stress relief cycle and full surface inspection before the next run.', dieToToolroom: true }, 6);
-	const pins = await job('D-0131', { kind: 'repair', half: 'ejector', zone: 'ejector pins 4–7', description: 'Four ejector pins galled; replace at the next die change.' }, 9);
+	await job(
+		'D-0119',
+		{
+			kind: 'stress_relief',
+			half: 'both',
+			description: 'Stress relief cycle and full surface inspection before the next run.',
+			dieToToolroom: true
+		},
+		6
+	);
+	const pins = await job(
+		'D-0131',
+		{
+			kind: 'repair',
+			half: 'ejector',
+			zone: 'ejector pins 4–7',
+			description: 'Four ejector pins galled; replace at the next die change.'
+		},
+		9
+	);
 	await moveJob(db, { number: pins.number, to: 'in_progress', actor: maker, at: daysAgo(8) });
 	await moveJob(db, { number: pins.number, to: 'waiting_parts', actor: maker, at: daysAgo(8, 15) });
-	await job('D-0109', { kind: 'modification', half: 'cover', zone: 'cavity 1', description: 'Porosity complaint: add an overflow at the far end if the owner agrees.', assignedTo: '' }, 3);
+	await job(
+		'D-0109',
+		{
+			kind: 'modification',
+			half: 'cover',
+			zone: 'cavity 1',
+			description: 'Porosity complaint: add an overflow at the far end if the owner agrees.',
+			assignedTo: ''
+		},
+		3
+	);
 
 	await closePhotoPool();
 	return summary;

@@ -59,19 +59,19 @@ test('a toolmaker opens a job, adds photos, inspects, checks cooling and closes 
 	await expect(page.getByLabel('Kind of job')).toHaveValue('surface_inspection');
 	await expect(page.getByRole('checkbox', { name: /Surface inspection/ })).toBeChecked();
 	await page.getByLabel('Zone (optional)').fill('gate side');
-	await page.getByLabel('What is wrong or what to do').fill('Scheduled surface inspection, e2e run');
+	await page
+		.getByLabel('What is wrong or what to do')
+		.fill('Scheduled surface inspection, e2e run');
 	await page.getByRole('button', { name: 'Open job' }).click();
 	await expect(page).toHaveURL(/\/jobs\/TJ-\d{5}$/);
 	const jobUrl = page.url();
 	await expect(page.getByText('In toolroom')).toBeVisible();
 
 	// Two photos at once, with the upload progress shown.
-	await page
-		.getByLabel('Choose photos')
-		.setInputFiles([
-			{ name: 'gate-1.jpg', mimeType: 'image/jpeg', buffer: await surfacePhoto(1) },
-			{ name: 'gate-2.jpg', mimeType: 'image/jpeg', buffer: await surfacePhoto(2) }
-		]);
+	await page.getByLabel('Choose photos').setInputFiles([
+		{ name: 'gate-1.jpg', mimeType: 'image/jpeg', buffer: await surfacePhoto(1) },
+		{ name: 'gate-2.jpg', mimeType: 'image/jpeg', buffer: await surfacePhoto(2) }
+	]);
 	await page.getByRole('button', { name: 'Upload photos' }).click();
 	const progress = page.getByRole('progressbar', { name: 'Photo upload' });
 	await expect(progress).toBeVisible();
@@ -111,7 +111,9 @@ test('a toolmaker opens a job, adds photos, inspects, checks cooling and closes 
 
 	// Close the job: the die is ready again and its service task done.
 	await page.goto(jobUrl);
-	await page.getByLabel('Findings').fill('Tight local network at the gate, longest crack about 3 mm');
+	await page
+		.getByLabel('Findings')
+		.fill('Tight local network at the gate, longest crack about 3 mm');
 	await page.getByLabel('Work done').fill('Inspected, photographed, light polish');
 	await page.getByLabel('Hours worked').fill('1.5');
 	await page.getByLabel('Summary for the owner').fill('Surface inspected; die back in service.');

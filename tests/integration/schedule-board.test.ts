@@ -2,18 +2,37 @@ import { beforeEach, describe, expect, test } from 'vitest';
 import type { DB } from '../../src/lib/server/db/connect';
 import { boardQuerySchema } from '../../src/lib/schemas/schedule';
 import { listBookingsAtRisk } from '../../src/lib/server/schedule/at-risk';
-import { BOARD_BOOKING_COLUMNS, BOARD_DIE_COLUMNS, loadBoard, startOfWeek } from '../../src/lib/server/schedule/board';
+import {
+	BOARD_BOOKING_COLUMNS,
+	BOARD_DIE_COLUMNS,
+	loadBoard,
+	startOfWeek
+} from '../../src/lib/server/schedule/board';
 import { bookingRefusal } from '../../src/lib/server/schedule/api';
-import { createBooking, listBookingsInWindow, windowBounds } from '../../src/lib/server/schedule/bookings';
+import {
+	createBooking,
+	listBookingsInWindow,
+	windowBounds
+} from '../../src/lib/server/schedule/bookings';
 import { evaluateBooking } from '../../src/lib/server/schedule/booking-checks';
-import { actor, addTask, at, dieId, draft, NOW, openScheduleDb, runDaily } from './schedule-support';
+import {
+	actor,
+	addTask,
+	at,
+	dieId,
+	draft,
+	NOW,
+	openScheduleDb,
+	runDaily
+} from './schedule-support';
 
 let db: DB;
 beforeEach(async () => {
 	db = await openScheduleDb();
 });
 
-const board = (q: Record<string, string> = {}) => loadBoard(db, boardQuerySchema.parse(q), { customerId: null }, NOW);
+const board = (q: Record<string, string> = {}) =>
+	loadBoard(db, boardQuerySchema.parse(q), { customerId: null }, NOW);
 const book = async (over: Parameters<typeof draft>[0] = {}) => {
 	const r = await createBooking(db, draft(over), actor, { confirm: true, now: NOW });
 	if (!r.ok) throw new Error(JSON.stringify(r));
@@ -31,10 +50,21 @@ describe('board query shape', () => {
 		expect(b.dies.columns).toEqual(BOARD_DIE_COLUMNS);
 		expect(b.bookings.columns).toEqual(BOARD_BOOKING_COLUMNS);
 		// Retired dies are not on the board; the rest in number order.
-		expect(b.dies.rows.map((r) => r[0])).toEqual(['A-1', 'BIG-1', 'CU-1', 'HELD-1', 'MG-1', 'TR-1', 'Z-1', 'ZC-1']);
+		expect(b.dies.rows.map((r) => r[0])).toEqual([
+			'A-1',
+			'BIG-1',
+			'CU-1',
+			'HELD-1',
+			'MG-1',
+			'TR-1',
+			'Z-1',
+			'ZC-1'
+		]);
 		const z = b.dies.rows.findIndex((r) => r[0] === 'Z-1');
 		expect(b.dies.rows[z]).toEqual(['Z-1', 'Part Z-1', 'ACME', 'zinc', 'ready', 20]);
-		expect(b.bookings.rows).toEqual([[id, z, 'HC-20', at(7, 6), at(7, 22), 'PO-1', 4000, 'planned']]);
+		expect(b.bookings.rows).toEqual([
+			[id, z, 'HC-20', at(7, 6), at(7, 22), 'PO-1', 4000, 'planned']
+		]);
 	});
 
 	test('the default window starts on the Monday of this week', () => {
@@ -51,28 +81,56 @@ describe('board query shape', () => {
 
 	test('bookings outside the window and cancelled ones are left out', async () => {
 		await book({ startsAt: at(40, 6), endsAt: at(40, 22), orderRef: 'LATER' });
-		const r = await createBooking(db, draft({ orderRef: 'GONE' }), actor, { confirm: true, now: NOW });
+		const r = await createBooking(db, draft({ orderRef: 'GONE' }), actor, {
+			confirm: true,
+			now: NOW
+		});
 		if (!r.ok) throw new Error('not booked');
-		await db.updateTable('press_bookings').set({ cancelled_at: NOW }).where('id', '=', r.id).execute();
+		await db
+			.updateTable('press_bookings')
+			.set({ cancelled_at: NOW })
+			.where('id', '=', r.id)
+			.execute();
 		expect((await board()).bookings.rows).toEqual([]);
 		expect((await board({ days: '56' })).bookings.rows.map((b) => b[5])).toEqual(['LATER']);
 	});
 
 	test('filters by owner, alloy family and press (dies that fit the press)', async () => {
 		expect((await board({ owner: 'BOLT' })).dies.rows.map((r) => r[0])).toEqual(['BIG-1']);
-		expect((await board({ family: 'zinc' })).dies.rows.map((r) => r[0])).toEqual(['HELD-1', 'TR-1', 'Z-1', 'ZC-1']);
+		expect((await board({ family: 'zinc' })).dies.rows.map((r) => r[0])).toEqual([
+			'HELD-1',
+			'TR-1',
+			'Z-1',
+			'ZC-1'
+		]);
 		// CC-40 (cold, 3 923 kN): cold-chamber dies whose requirement it meets; A-1 needs 4 500 kN
 		// (600 cm² × 600 bar / 100 × 1.25 with slides), BIG-1 9 240 kN.
 		const cc40 = await board({ press: 'CC-40' });
 		expect(cc40.press).toEqual({ name: 'CC-40', chamber: 'cold', clampKn: 3923 });
 		expect(cc40.dies.rows.map((r) => r[0])).toEqual(['CU-1', 'MG-1', 'ZC-1']);
-		expect((await board({ press: 'CC-160' })).dies.rows.map((r) => r[0])).toEqual(['A-1', 'BIG-1', 'CU-1', 'MG-1', 'ZC-1']);
-		expect((await board({ press: 'HC-20' })).dies.rows.map((r) => r[0])).toEqual(['HELD-1', 'TR-1', 'Z-1']);
+		expect((await board({ press: 'CC-160' })).dies.rows.map((r) => r[0])).toEqual([
+			'A-1',
+			'BIG-1',
+			'CU-1',
+			'MG-1',
+			'ZC-1'
+		]);
+		expect((await board({ press: 'HC-20' })).dies.rows.map((r) => r[0])).toEqual([
+			'HELD-1',
+			'TR-1',
+			'Z-1'
+		]);
 	});
 
 	test('a customer-bound caller sees only its own dies and their bookings', async () => {
 		await book();
-		const bolt = (await db.selectFrom('customers').select('id').where('code', '=', 'BOLT').executeTakeFirstOrThrow()).id;
+		const bolt = (
+			await db
+				.selectFrom('customers')
+				.select('id')
+				.where('code', '=', 'BOLT')
+				.executeTakeFirstOrThrow()
+		).id;
 		const b = await loadBoard(db, boardQuerySchema.parse({}), { customerId: bolt }, NOW);
 		expect(b.dies.rows.map((r) => r[0])).toEqual(['BIG-1']);
 		expect(b.bookings.rows).toEqual([]);
@@ -135,7 +193,11 @@ describe('planned runs before the start', () => {
 	test('shots of the die’s earlier bookings count when larger than its recent pace', async () => {
 		// 4 000 parts on 2 cavities = 2 000 shots on day 2.
 		await book({ startsAt: at(2, 6), endsAt: at(2, 22) });
-		const ev = await evaluateBooking(db, draft({ startsAt: at(7, 6), endsAt: at(7, 22), orderRef: 'PO-2' }), { now: NOW });
+		const ev = await evaluateBooking(
+			db,
+			draft({ startsAt: at(7, 6), endsAt: at(7, 22), orderRef: 'PO-2' }),
+			{ now: NOW }
+		);
 		expect(ev.ok && ev.shotsBeforeStart).toBe(2000);
 	});
 });
@@ -143,13 +205,32 @@ describe('planned runs before the start', () => {
 describe('planner: booked orders blocked or at risk', () => {
 	test('a booked die that has since gone to the toolroom is listed as blocked, first', async () => {
 		await addTask(db, 'A-1', { kind: 'stress_relief', intervalShots: 15_000, leftShots: 100 });
-		await book({ die: 'A-1', press: 'CC-160', shotsPerHour: 100, parts: 500, startsAt: at(3, 6), endsAt: at(3, 22) });
+		await book({
+			die: 'A-1',
+			press: 'CC-160',
+			shotsPerHour: 100,
+			parts: 500,
+			startsAt: at(3, 6),
+			endsAt: at(3, 22)
+		});
 		await book({ startsAt: at(5, 6), endsAt: at(5, 22) });
 		await book({ startsAt: at(20, 6), endsAt: at(20, 22), orderRef: 'FAR' });
-		expect((await listBookingsAtRisk(db, 14, NOW)).map((r) => r.booking.dieNumber)).toEqual(['A-1']);
-		await db.updateTable('dies').set({ status: 'in_toolroom' }).where('number', '=', 'Z-1').execute();
+		expect((await listBookingsAtRisk(db, 14, NOW)).map((r) => r.booking.dieNumber)).toEqual([
+			'A-1'
+		]);
+		await db
+			.updateTable('dies')
+			.set({ status: 'in_toolroom' })
+			.where('number', '=', 'Z-1')
+			.execute();
 		const risk = await listBookingsAtRisk(db, 14, NOW);
-		expect(risk.map((r) => [r.booking.dieNumber, r.blocks.map((b) => b.code), r.warnings.map((w) => w.code)])).toEqual([
+		expect(
+			risk.map((r) => [
+				r.booking.dieNumber,
+				r.blocks.map((b) => b.code),
+				r.warnings.map((w) => w.code)
+			])
+		).toEqual([
 			['Z-1', ['die_in_toolroom'], []],
 			['A-1', [], ['service_due']]
 		]);
@@ -158,21 +239,35 @@ describe('planner: booked orders blocked or at risk', () => {
 
 describe('API answers for refused bookings', () => {
 	test('422 for a block, 409 listing the warnings, 400 for an unknown die', async () => {
-		const blocked = await createBooking(db, draft({ die: 'HELD-1' }), actor, { confirm: false, now: NOW });
+		const blocked = await createBooking(db, draft({ die: 'HELD-1' }), actor, {
+			confirm: false,
+			now: NOW
+		});
 		if (blocked.ok) throw new Error('booked');
 		const e422 = bookingRefusal(blocked);
 		expect(e422.status).toBe(422);
 		expect(e422.message).toMatch(/^The booking is refused: HELD-1 is held/);
-		expect(e422.issues).toEqual([{ field: 'die_held', message: expect.stringMatching(/^HELD-1 is held/) }]);
+		expect(e422.issues).toEqual([
+			{ field: 'die_held', message: expect.stringMatching(/^HELD-1 is held/) }
+		]);
 
-		const warned = await createBooking(db, draft({ shotsPerHour: 120, endsAt: at(8, 22) }), actor, { confirm: false, now: NOW });
+		const warned = await createBooking(db, draft({ shotsPerHour: 120, endsAt: at(8, 22) }), actor, {
+			confirm: false,
+			now: NOW
+		});
 		if (warned.ok) throw new Error('booked');
 		const e409 = bookingRefusal(warned);
 		expect(e409.status).toBe(409);
 		expect(e409.issues?.map((i) => i.field)).toEqual(['rate_unusual']);
 
-		const unknown = await createBooking(db, draft({ die: 'D-9999' }), actor, { confirm: false, now: NOW });
+		const unknown = await createBooking(db, draft({ die: 'D-9999' }), actor, {
+			confirm: false,
+			now: NOW
+		});
 		if (unknown.ok) throw new Error('booked');
-		expect(bookingRefusal(unknown)).toMatchObject({ status: 400, message: 'There is no die D-9999.' });
+		expect(bookingRefusal(unknown)).toMatchObject({
+			status: 400,
+			message: 'There is no die D-9999.'
+		});
 	});
 });

@@ -1,9 +1,22 @@
 import { beforeEach, describe, expect, test } from 'vitest';
 import type { DB } from '../../src/lib/server/db/connect';
 import { evaluateBooking } from '../../src/lib/server/schedule/booking-checks';
-import { cancelBooking, createBooking, warningsAccepted } from '../../src/lib/server/schedule/bookings';
+import {
+	cancelBooking,
+	createBooking,
+	warningsAccepted
+} from '../../src/lib/server/schedule/bookings';
 import { bookingApiSchema, bookingFormSchema, toUtcIso } from '../../src/lib/schemas/schedule';
-import { actor, addTask, at, dieId, draft, NOW, openScheduleDb, runDaily } from './schedule-support';
+import {
+	actor,
+	addTask,
+	at,
+	dieId,
+	draft,
+	NOW,
+	openScheduleDb,
+	runDaily
+} from './schedule-support';
 
 let db: DB;
 beforeEach(async () => {
@@ -27,8 +40,17 @@ describe('a clean booking', () => {
 		const result = await createBooking(db, draft(), actor, { confirm: false, now: NOW });
 		expect(result.ok).toBe(true);
 		const row = await db.selectFrom('press_bookings').selectAll().executeTakeFirstOrThrow();
-		expect(row).toMatchObject({ order_ref: 'PO-1', parts: 4000, shots_per_hour: 300, created_by: 'planner-1' });
-		const audit = await db.selectFrom('audit_log').select('action').where('action', '=', 'booking.create').execute();
+		expect(row).toMatchObject({
+			order_ref: 'PO-1',
+			parts: 4000,
+			shots_per_hour: 300,
+			created_by: 'planner-1'
+		});
+		const audit = await db
+			.selectFrom('audit_log')
+			.select('action')
+			.where('action', '=', 'booking.create')
+			.execute();
 		expect(audit).toHaveLength(1);
 	});
 
@@ -38,11 +60,20 @@ describe('a clean booking', () => {
 			field: 'die',
 			message: 'There is no die NOPE.'
 		});
-		expect(await evaluateBooking(db, draft({ press: 'XX-1' }), { now: NOW })).toMatchObject({ ok: false, field: 'press' });
+		expect(await evaluateBooking(db, draft({ press: 'XX-1' }), { now: NOW })).toMatchObject({
+			ok: false,
+			field: 'press'
+		});
 	});
 
 	test('another owner’s die is simply not found for a customer-bound caller', async () => {
-		const bolt = (await db.selectFrom('customers').select('id').where('code', '=', 'BOLT').executeTakeFirstOrThrow()).id;
+		const bolt = (
+			await db
+				.selectFrom('customers')
+				.select('id')
+				.where('code', '=', 'BOLT')
+				.executeTakeFirstOrThrow()
+		).id;
 		const ev = await evaluateBooking(db, draft(), { now: NOW, scope: { customerId: bolt } });
 		expect(ev).toMatchObject({ ok: false, field: 'die', message: 'There is no die Z-1.' });
 	});
@@ -51,7 +82,11 @@ describe('a clean booking', () => {
 describe('blocking checks, each with its message', () => {
 	test('a retired die', async () => {
 		const ev = await checks({ die: 'RET-1', press: 'CC-40' });
-		expect(ev.blocks).toContainEqual({ code: 'die_retired', level: 'block', message: 'RET-1 is retired and cannot be booked.' });
+		expect(ev.blocks).toContainEqual({
+			code: 'die_retired',
+			level: 'block',
+			message: 'RET-1 is retired and cannot be booked.'
+		});
 	});
 
 	test('a held die, with the reason it was held', async () => {
@@ -60,7 +95,8 @@ describe('blocking checks, each with its message', () => {
 			{
 				code: 'die_held',
 				level: 'block',
-				message: 'HELD-1 is held: Porosity complaint, awaiting the owner. A held die waits for a decision and cannot be booked.'
+				message:
+					'HELD-1 is held: Porosity complaint, awaiting the owner. A held die waits for a decision and cannot be booked.'
 			}
 		]);
 	});
@@ -92,33 +128,53 @@ describe('blocking checks, each with its message', () => {
 	});
 
 	test('a die already booked elsewhere at the same time', async () => {
-		expect((await createBooking(db, draft({ press: 'HC-20' }), actor, { confirm: false, now: NOW })).ok).toBe(true);
-		await db.insertInto('machines').values({ name: 'HC-21', chamber: 'hot', clamp_force_kn: 1961 }).execute();
-		const ev = await checks({ press: 'HC-21', startsAt: at(7, 12), endsAt: at(8, 2), orderRef: 'PO-2' });
+		expect(
+			(await createBooking(db, draft({ press: 'HC-20' }), actor, { confirm: false, now: NOW })).ok
+		).toBe(true);
+		await db
+			.insertInto('machines')
+			.values({ name: 'HC-21', chamber: 'hot', clamp_force_kn: 1961 })
+			.execute();
+		const ev = await checks({
+			press: 'HC-21',
+			startsAt: at(7, 12),
+			endsAt: at(8, 2),
+			orderRef: 'PO-2'
+		});
 		expect(ev.blocks).toEqual([
 			{
 				code: 'die_double_booked',
 				level: 'block',
-				message: 'Z-1 is already booked on HC-20 from 2027-03-08 06:00 UTC to 2027-03-08 22:00 UTC (order PO-1).'
+				message:
+					'Z-1 is already booked on HC-20 from 2027-03-08 06:00 UTC to 2027-03-08 22:00 UTC (order PO-1).'
 			}
 		]);
 	});
 
 	test('a press already booked for another die', async () => {
 		expect((await createBooking(db, draft(), actor, { confirm: false, now: NOW })).ok).toBe(true);
-		await db.updateTable('dies').set({ process: 'hot_chamber' }).where('number', '=', 'ZC-1').execute();
+		await db
+			.updateTable('dies')
+			.set({ process: 'hot_chamber' })
+			.where('number', '=', 'ZC-1')
+			.execute();
 		const ev = await checks({ die: 'ZC-1', startsAt: at(7, 20), endsAt: at(8, 4) });
 		expect(ev.blocks).toContainEqual({
 			code: 'press_double_booked',
 			level: 'block',
-			message: 'HC-20 is already booked for Z-1 from 2027-03-08 06:00 UTC to 2027-03-08 22:00 UTC (order PO-1).'
+			message:
+				'HC-20 is already booked for Z-1 from 2027-03-08 06:00 UTC to 2027-03-08 22:00 UTC (order PO-1).'
 		});
 	});
 
 	test('a press that is down, with its note', async () => {
 		const ev = await checks({ die: 'A-1', press: 'CC-84', shotsPerHour: 100 });
 		expect(ev.blocks).toEqual([
-			{ code: 'press_down', level: 'block', message: 'CC-84 is down for maintenance (Hydraulic pump rebuild).' }
+			{
+				code: 'press_down',
+				level: 'block',
+				message: 'CC-84 is down for maintenance (Hydraulic pump rebuild).'
+			}
 		]);
 	});
 
@@ -139,13 +195,19 @@ describe('blocking checks, each with its message', () => {
 	});
 
 	test('the clamping force message follows the caller’s unit system', async () => {
-		const ev = await evaluateBooking(db, draft({ die: 'BIG-1', press: 'CC-40', shotsPerHour: 100 }), {
-			now: NOW,
-			unitSystem: 'us'
-		});
+		const ev = await evaluateBooking(
+			db,
+			draft({ die: 'BIG-1', press: 'CC-40', shotsPerHour: 100 }),
+			{
+				now: NOW,
+				unitSystem: 'us'
+			}
+		);
 		if (!ev.ok) throw new Error(ev.message);
 		// 3923 kN / 8.896443 = 441 US tons; 9240 kN = 1,039 US tons.
-		expect(ev.blocks[0].message).toContain('CC-40 clamps 441 US tons; BIG-1 needs at least 1,039 US tons');
+		expect(ev.blocks[0].message).toContain(
+			'CC-40 clamps 441 US tons; BIG-1 needs at least 1,039 US tons'
+		);
 	});
 
 	test('a hot-chamber die on a cold-chamber press', async () => {
@@ -188,7 +250,10 @@ describe('blocking checks, each with its message', () => {
 	});
 
 	test('blocks cannot be overridden, not even with confirm', async () => {
-		const result = await createBooking(db, draft({ die: 'HELD-1' }), actor, { confirm: true, now: NOW });
+		const result = await createBooking(db, draft({ die: 'HELD-1' }), actor, {
+			confirm: true,
+			now: NOW
+		});
 		expect(result).toMatchObject({ ok: false, kind: 'blocked' });
 		expect(await db.selectFrom('press_bookings').select('id').execute()).toHaveLength(0);
 	});
@@ -196,33 +261,67 @@ describe('blocking checks, each with its message', () => {
 
 describe('overlap edges', () => {
 	test('a booking ending exactly when the next starts is not an overlap', async () => {
-		expect((await createBooking(db, draft({ startsAt: at(7, 6), endsAt: at(7, 14) }), actor, { confirm: false, now: NOW })).ok).toBe(true);
-		const next = await createBooking(db, draft({ startsAt: at(7, 14), endsAt: at(7, 22), orderRef: 'PO-2' }), actor, { confirm: false, now: NOW });
+		expect(
+			(
+				await createBooking(db, draft({ startsAt: at(7, 6), endsAt: at(7, 14) }), actor, {
+					confirm: false,
+					now: NOW
+				})
+			).ok
+		).toBe(true);
+		const next = await createBooking(
+			db,
+			draft({ startsAt: at(7, 14), endsAt: at(7, 22), orderRef: 'PO-2' }),
+			actor,
+			{ confirm: false, now: NOW }
+		);
 		expect(next.ok).toBe(true);
 		const before = await checks({ startsAt: at(7, 0), endsAt: at(7, 6) });
 		expect(codes(before.blocks)).toEqual([]);
 	});
 
 	test('one minute of overlap blocks, on the die and on the press', async () => {
-		await createBooking(db, draft({ startsAt: at(7, 6), endsAt: at(7, 14) }), actor, { confirm: false, now: NOW });
-		const ev = await checks({ startsAt: new Date(Date.parse(at(7, 14)) - 60_000).toISOString(), endsAt: at(7, 22) });
+		await createBooking(db, draft({ startsAt: at(7, 6), endsAt: at(7, 14) }), actor, {
+			confirm: false,
+			now: NOW
+		});
+		const ev = await checks({
+			startsAt: new Date(Date.parse(at(7, 14)) - 60_000).toISOString(),
+			endsAt: at(7, 22)
+		});
 		expect(codes(ev.blocks).sort()).toEqual(['die_double_booked', 'press_double_booked']);
 	});
 
 	test('a booking inside another, and one around another, both overlap', async () => {
-		await createBooking(db, draft({ startsAt: at(7, 6), endsAt: at(7, 14) }), actor, { confirm: false, now: NOW });
-		expect(codes((await checks({ startsAt: at(7, 8), endsAt: at(7, 9) })).blocks)).toContain('die_double_booked');
-		expect(codes((await checks({ startsAt: at(7, 0), endsAt: at(7, 23) })).blocks)).toContain('die_double_booked');
+		await createBooking(db, draft({ startsAt: at(7, 6), endsAt: at(7, 14) }), actor, {
+			confirm: false,
+			now: NOW
+		});
+		expect(codes((await checks({ startsAt: at(7, 8), endsAt: at(7, 9) })).blocks)).toContain(
+			'die_double_booked'
+		);
+		expect(codes((await checks({ startsAt: at(7, 0), endsAt: at(7, 23) })).blocks)).toContain(
+			'die_double_booked'
+		);
 	});
 
 	test('a cancelled booking frees its slot; an ended booking cannot be cancelled', async () => {
 		const first = await createBooking(db, draft(), actor, { confirm: false, now: NOW });
 		if (!first.ok) throw new Error('not booked');
 		expect(await cancelBooking(db, first.id, actor, 'Order moved', NOW)).toEqual({ ok: true });
-		expect(await cancelBooking(db, first.id, actor, 'Again', NOW)).toMatchObject({ ok: false, status: 409 });
-		expect((await createBooking(db, draft({ orderRef: 'PO-9' }), actor, { confirm: false, now: NOW })).ok).toBe(true);
+		expect(await cancelBooking(db, first.id, actor, 'Again', NOW)).toMatchObject({
+			ok: false,
+			status: 409
+		});
+		expect(
+			(await createBooking(db, draft({ orderRef: 'PO-9' }), actor, { confirm: false, now: NOW })).ok
+		).toBe(true);
 		const later = new Date(Date.parse(at(9, 0))).toISOString();
-		const rows = await db.selectFrom('press_bookings').select(['id', 'cancelled_at']).where('cancelled_at', 'is', null).execute();
+		const rows = await db
+			.selectFrom('press_bookings')
+			.select(['id', 'cancelled_at'])
+			.where('cancelled_at', 'is', null)
+			.execute();
 		expect(await cancelBooking(db, rows[0].id, actor, 'Too late', later)).toEqual({
 			ok: false,
 			status: 409,
@@ -276,7 +375,8 @@ describe('warnings, each with its message', () => {
 			{
 				code: 'end_of_life',
 				level: 'warn',
-				message: 'The order needs 1,200 shots; CU-1 has about 500 left before the end of its expected life (20,000 shots).'
+				message:
+					'The order needs 1,200 shots; CU-1 has about 500 left before the end of its expected life (20,000 shots).'
 			}
 		]);
 	});
@@ -287,7 +387,8 @@ describe('warnings, each with its message', () => {
 			{
 				code: 'rate_unusual',
 				level: 'warn',
-				message: '120 shots per hour is outside the usual 200–550 for zinc (NADCA). Check the planned rate.'
+				message:
+					'120 shots per hour is outside the usual 200–550 for zinc (NADCA). Check the planned rate.'
 			}
 		]);
 	});
@@ -322,7 +423,11 @@ describe('confirming warnings', () => {
 		expect(await db.selectFrom('press_bookings').select('id').execute()).toHaveLength(0);
 		const booked = await createBooking(db, risky(), actor, { confirm: ['rate_unusual'], now: NOW });
 		expect(booked).toMatchObject({ ok: true, warnings: [{ code: 'rate_unusual' }] });
-		const audit = await db.selectFrom('audit_log').select('detail').where('action', '=', 'booking.create').executeTakeFirstOrThrow();
+		const audit = await db
+			.selectFrom('audit_log')
+			.select('detail')
+			.where('action', '=', 'booking.create')
+			.executeTakeFirstOrThrow();
 		expect(JSON.parse(audit.detail).warningsAccepted).toHaveLength(1);
 	});
 
@@ -340,18 +445,60 @@ describe('confirming warnings', () => {
 
 describe('booking form input', () => {
 	test('datetime-local values are read as UTC and the end must follow the start', () => {
-		const ok = bookingFormSchema.safeParse({ die: 'z-1', press: 'HC-20', startsAt: '2027-03-08T06:00', endsAt: '2027-03-08T22:00', orderRef: 'PO', parts: '10' });
+		const ok = bookingFormSchema.safeParse({
+			die: 'z-1',
+			press: 'HC-20',
+			startsAt: '2027-03-08T06:00',
+			endsAt: '2027-03-08T22:00',
+			orderRef: 'PO',
+			parts: '10'
+		});
 		expect(ok.success && toUtcIso(ok.data.startsAt)).toBe('2027-03-08T06:00:00.000Z');
 		expect(toUtcIso('2027-03-08T07:00+01:00')).toBe('2027-03-08T06:00:00.000Z');
-		const api = bookingApiSchema.parse({ die: 'Z-1', press: 'HC-20', startsAt: '2027-03-08T06:00Z', endsAt: '2027-03-08 22:00', orderRef: 'PO', parts: 10 });
-		expect([api.startsAt, api.endsAt, api.confirm]).toEqual(['2027-03-08T06:00:00.000Z', '2027-03-08T22:00:00.000Z', false]);
+		const api = bookingApiSchema.parse({
+			die: 'Z-1',
+			press: 'HC-20',
+			startsAt: '2027-03-08T06:00Z',
+			endsAt: '2027-03-08 22:00',
+			orderRef: 'PO',
+			parts: 10
+		});
+		expect([api.startsAt, api.endsAt, api.confirm]).toEqual([
+			'2027-03-08T06:00:00.000Z',
+			'2027-03-08T22:00:00.000Z',
+			false
+		]);
 		expect(ok.success && ok.data.die).toBe('Z-1');
-		const bad = bookingFormSchema.safeParse({ die: 'Z-1', press: 'HC-20', startsAt: '2027-03-08T06:00', endsAt: '2027-03-08T06:00', orderRef: 'PO', parts: '10' });
+		const bad = bookingFormSchema.safeParse({
+			die: 'Z-1',
+			press: 'HC-20',
+			startsAt: '2027-03-08T06:00',
+			endsAt: '2027-03-08T06:00',
+			orderRef: 'PO',
+			parts: '10'
+		});
 		expect(bad.success).toBe(false);
-		expect(bad.error?.issues[0]).toMatchObject({ path: ['endsAt'], message: 'The end must be after the start.' });
-		const long = bookingFormSchema.safeParse({ die: 'Z-1', press: 'HC-20', startsAt: '2027-03-01T06:00', endsAt: '2027-06-08T06:00', orderRef: 'PO', parts: '10' });
+		expect(bad.error?.issues[0]).toMatchObject({
+			path: ['endsAt'],
+			message: 'The end must be after the start.'
+		});
+		const long = bookingFormSchema.safeParse({
+			die: 'Z-1',
+			press: 'HC-20',
+			startsAt: '2027-03-01T06:00',
+			endsAt: '2027-06-08T06:00',
+			orderRef: 'PO',
+			parts: '10'
+		});
 		expect(long.error?.issues[0].message).toMatch(/Book at most 90 days/);
-		const garbage = bookingFormSchema.safeParse({ die: 'Z-1', press: 'HC-20', startsAt: 'tomorrow', endsAt: '2027-03-08T06:00', orderRef: 'PO', parts: '10' });
+		const garbage = bookingFormSchema.safeParse({
+			die: 'Z-1',
+			press: 'HC-20',
+			startsAt: 'tomorrow',
+			endsAt: '2027-03-08T06:00',
+			orderRef: 'PO',
+			parts: '10'
+		});
 		expect(garbage.error?.issues[0]).toMatchObject({ path: ['startsAt'] });
 	});
 });

@@ -12,7 +12,9 @@ beforeEach(async () => {
 
 /** Dies of one alloy with the given totals (a register row, not ledger entries). */
 async function fleet(alloy: string, retired: number[], running: number[]) {
-	const a = (await db.selectFrom('alloys').select('id').where('code', '=', alloy).executeTakeFirstOrThrow()).id;
+	const a = (
+		await db.selectFrom('alloys').select('id').where('code', '=', alloy).executeTakeFirstOrThrow()
+	).id;
 	let n = 0;
 	for (const [list, status] of [
 		[retired, 'retired'],
@@ -58,34 +60,59 @@ describe('fleet life statistics per alloy family', () => {
 		const fits = await fitFleetByFamily(db);
 		const mg = fits.find((f) => f.family === 'magnesium')!;
 		expect(mg.fit).toBeNull();
-		expect(mg.reason).toBe('Only 2 magnesium dies have been retired; at least 3 are needed for a fit.');
+		expect(mg.reason).toBe(
+			'Only 2 magnesium dies have been retired; at least 3 are needed for a fit.'
+		);
 		const zinc = fits.find((f) => f.family === 'zinc')!;
 		expect(zinc).toMatchObject({ failures: 0, fit: null });
-		expect(zinc.reason).toBe('No zinc die has been retired yet, so there are no failures to fit a life distribution to.');
+		expect(zinc.reason).toBe(
+			'No zinc die has been retired yet, so there are no failures to fit a life distribution to.'
+		);
 	});
 });
 
 describe('order check', () => {
 	test('shots, press hours and the first limit that blocks', async () => {
 		await addTask(db, 'Z-1', { kind: 'stress_relief', intervalShots: 25_000, leftShots: 1_500 });
-		const r = await runOrderCheck(db, { die: 'z-1', parts: 4000, scrapPct: 0, press: 'HC-20', shotsPerHour: 250 }, { customerId: null }, NOW);
+		const r = await runOrderCheck(
+			db,
+			{ die: 'z-1', parts: 4000, scrapPct: 0, press: 'HC-20', shotsPerHour: 250 },
+			{ customerId: null },
+			NOW
+		);
 		if (!r.ok) throw new Error(r.message);
 		const a = r.answer;
 		// 4 000 parts / 2 cavities = 2 000 shots; 8 h at 250 shots/h.
-		expect(a.order).toEqual({ shotsNeeded: 2000, pressHours: 8, fits: false, blockedBy: 'service', shotsShort: 500 });
-		expect(a.nextService).toEqual({ kind: 'stress_relief', label: 'Stress relief', shotsRemaining: 1500 });
+		expect(a.order).toEqual({
+			shotsNeeded: 2000,
+			pressHours: 8,
+			fits: false,
+			blockedBy: 'service',
+			shotsShort: 500
+		});
+		expect(a.nextService).toEqual({
+			kind: 'stress_relief',
+			label: 'Stress relief',
+			shotsRemaining: 1500
+		});
 		expect(a.shotsToEndOfLife).toBe(400_000);
 		// 100 cm² × 150 bar / 100 × 1.1 = 165 kN against HC-20's 1 961 kN.
 		expect(a.clamp.requiredKn).toBeCloseTo(165, 6);
 		expect(a.clamp).toMatchObject({ availableKn: 1961, fits: true, metalPressureBar: 150 });
 		expect(a.survival).toEqual({
 			probability: null,
-			reason: 'No zinc die has been retired yet, so there are no failures to fit a life distribution to.'
+			reason:
+				'No zinc die has been retired yet, so there are no failures to fit a life distribution to.'
 		});
 	});
 
 	test('the default rate is the middle of the alloy’s range; a press of the wrong chamber is named', async () => {
-		const r = await runOrderCheck(db, { die: 'A-1', parts: 1200, scrapPct: 4, press: 'HC-20' }, { customerId: null }, NOW);
+		const r = await runOrderCheck(
+			db,
+			{ die: 'A-1', parts: 1200, scrapPct: 4, press: 'HC-20' },
+			{ customerId: null },
+			NOW
+		);
 		if (!r.ok) throw new Error(r.message);
 		expect(r.answer.shotsPerHour).toBe(120);
 		expect(r.answer.rateIsDefault).toBe(true);
@@ -97,23 +124,40 @@ describe('order check', () => {
 
 	test('the survival probability comes from the family fit at the die’s age', async () => {
 		await fleet('A380', [90_000, 110_000, 125_000, 140_000, 160_000], [20_000, 60_000, 80_000]);
-		const r = await runOrderCheck(db, { die: 'A-1', parts: 10_000, scrapPct: 0 }, { customerId: null }, NOW);
+		const r = await runOrderCheck(
+			db,
+			{ die: 'A-1', parts: 10_000, scrapPct: 0 },
+			{ customerId: null },
+			NOW
+		);
 		if (!r.ok) throw new Error(r.message);
 		const al = (await fitFleetByFamily(db)).find((f) => f.family === 'aluminium')!;
 		const s = r.answer.survival;
 		if (s.probability === null) throw new Error(s.reason);
-		expect(s.probability).toBeCloseTo(conditionalSurvival(50_000, 10_000, al.fit!.shape, al.fit!.scale), 12);
+		expect(s.probability).toBeCloseTo(
+			conditionalSurvival(50_000, 10_000, al.fit!.shape, al.fit!.scale),
+			12
+		);
 		expect(s.probability).toBeGreaterThan(0.5);
 		expect(s.probability).toBeLessThan(1);
 	});
 
 	test('an unknown die or press is named', async () => {
-		expect(await runOrderCheck(db, { die: 'D-9', parts: 1, scrapPct: 0 }, { customerId: null }, NOW)).toEqual({
+		expect(
+			await runOrderCheck(db, { die: 'D-9', parts: 1, scrapPct: 0 }, { customerId: null }, NOW)
+		).toEqual({
 			ok: false,
 			field: 'die',
 			message: 'There is no die D-9.'
 		});
-		expect(await runOrderCheck(db, { die: 'Z-1', parts: 1, scrapPct: 0, press: 'NOPE' }, { customerId: null }, NOW)).toMatchObject({
+		expect(
+			await runOrderCheck(
+				db,
+				{ die: 'Z-1', parts: 1, scrapPct: 0, press: 'NOPE' },
+				{ customerId: null },
+				NOW
+			)
+		).toMatchObject({
 			ok: false,
 			field: 'press'
 		});

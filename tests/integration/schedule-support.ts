@@ -8,7 +8,9 @@ export const NOW = '2027-03-01T08:00:00.000Z';
 export const PLANNER = 'planner-1';
 
 export const at = (dayOffset: number, hour = 6) =>
-	new Date(Date.parse('2027-03-01T00:00:00.000Z') + dayOffset * 86_400_000 + hour * 3_600_000).toISOString();
+	new Date(
+		Date.parse('2027-03-01T00:00:00.000Z') + dayOffset * 86_400_000 + hour * 3_600_000
+	).toISOString();
 
 interface DieSeed {
 	number: string;
@@ -24,15 +26,57 @@ interface DieSeed {
 }
 
 export const DIES: DieSeed[] = [
-	{ number: 'Z-1', alloy: 'ZP0400', process: 'hot_chamber', area: 100, cavities: 2, totalShots: 100_000 },
-	{ number: 'A-1', alloy: 'A380', process: 'cold_chamber', area: 600, slides: true, totalShots: 50_000 },
-	{ number: 'BIG-1', alloy: 'EN-AC-46000', process: 'cold_chamber', area: 1400, totalShots: 20_000, customer: 'BOLT' },
+	{
+		number: 'Z-1',
+		alloy: 'ZP0400',
+		process: 'hot_chamber',
+		area: 100,
+		cavities: 2,
+		totalShots: 100_000
+	},
+	{
+		number: 'A-1',
+		alloy: 'A380',
+		process: 'cold_chamber',
+		area: 600,
+		slides: true,
+		totalShots: 50_000
+	},
+	{
+		number: 'BIG-1',
+		alloy: 'EN-AC-46000',
+		process: 'cold_chamber',
+		area: 1400,
+		totalShots: 20_000,
+		customer: 'BOLT'
+	},
 	{ number: 'CU-1', alloy: 'CW617N', process: 'cold_chamber', area: 100, totalShots: 19_500 },
 	{ number: 'MG-1', alloy: 'AZ91D', process: 'cold_chamber', area: 300, totalShots: 1_000 },
 	{ number: 'ZC-1', alloy: 'ZA27X', process: 'cold_chamber', area: 200, totalShots: 1_000 },
-	{ number: 'RET-1', alloy: 'A380', process: 'cold_chamber', area: 300, status: 'retired', totalShots: 130_000 },
-	{ number: 'HELD-1', alloy: 'ZP0400', process: 'hot_chamber', area: 80, status: 'held', reason: 'Porosity complaint, awaiting the owner' },
-	{ number: 'TR-1', alloy: 'ZP0400', process: 'hot_chamber', area: 80, status: 'in_toolroom', reason: 'Cracked ejector pin bore' }
+	{
+		number: 'RET-1',
+		alloy: 'A380',
+		process: 'cold_chamber',
+		area: 300,
+		status: 'retired',
+		totalShots: 130_000
+	},
+	{
+		number: 'HELD-1',
+		alloy: 'ZP0400',
+		process: 'hot_chamber',
+		area: 80,
+		status: 'held',
+		reason: 'Porosity complaint, awaiting the owner'
+	},
+	{
+		number: 'TR-1',
+		alloy: 'ZP0400',
+		process: 'hot_chamber',
+		area: 80,
+		status: 'in_toolroom',
+		reason: 'Cracked ejector pin bore'
+	}
 ];
 
 export async function openScheduleDb(): Promise<DB> {
@@ -46,12 +90,24 @@ export async function openScheduleDb(): Promise<DB> {
 		.execute();
 	await db
 		.insertInto('users')
-		.values({ id: PLANNER, email: 'p@p.test', name: 'Pat Planner', role: 'scheduler', customer_id: null, password_hash: 'x' })
+		.values({
+			id: PLANNER,
+			email: 'p@p.test',
+			name: 'Pat Planner',
+			role: 'scheduler',
+			customer_id: null,
+			password_hash: 'x'
+		})
 		.execute();
 	// An invented high-aluminium zinc alloy so a zinc die can be a cold-chamber die.
 	await db
 		.insertInto('alloys')
-		.values({ code: 'ZA27X', name: 'Test zinc-aluminium', family: 'zinc', expected_life_shots: 400_000 })
+		.values({
+			code: 'ZA27X',
+			name: 'Test zinc-aluminium',
+			family: 'zinc',
+			expected_life_shots: 400_000
+		})
 		.execute();
 	await db
 		.insertInto('machines')
@@ -59,11 +115,21 @@ export async function openScheduleDb(): Promise<DB> {
 			{ name: 'HC-20', chamber: 'hot', clamp_force_kn: 1961, status: 'available' },
 			{ name: 'CC-40', chamber: 'cold', clamp_force_kn: 3923, status: 'available' },
 			{ name: 'CC-160', chamber: 'cold', clamp_force_kn: 15691, status: 'available' },
-			{ name: 'CC-84', chamber: 'cold', clamp_force_kn: 8238, status: 'down', notes: 'Hydraulic pump rebuild' }
+			{
+				name: 'CC-84',
+				chamber: 'cold',
+				clamp_force_kn: 8238,
+				status: 'down',
+				notes: 'Hydraulic pump rebuild'
+			}
 		])
 		.execute();
-	const customers = new Map((await db.selectFrom('customers').select(['id', 'code']).execute()).map((c) => [c.code, c.id]));
-	const alloys = new Map((await db.selectFrom('alloys').select(['id', 'code']).execute()).map((a) => [a.code, a.id]));
+	const customers = new Map(
+		(await db.selectFrom('customers').select(['id', 'code']).execute()).map((c) => [c.code, c.id])
+	);
+	const alloys = new Map(
+		(await db.selectFrom('alloys').select(['id', 'code']).execute()).map((a) => [a.code, a.id])
+	);
 	for (const d of DIES) {
 		const row = await db
 			.insertInto('dies')
@@ -93,11 +159,7 @@ export async function openScheduleDb(): Promise<DB> {
 			if (!result.ok) throw new Error(JSON.stringify(result.issues));
 		}
 		if (d.status && d.status !== 'ready') {
-			await db
-				.updateTable('dies')
-				.set({ status: d.status })
-				.where('id', '=', row.id)
-				.execute();
+			await db.updateTable('dies').set({ status: d.status }).where('id', '=', row.id).execute();
 			await db
 				.insertInto('audit_log')
 				.values({
@@ -113,17 +175,27 @@ export async function openScheduleDb(): Promise<DB> {
 }
 
 export async function dieId(db: DB, number: string) {
-	return (await db.selectFrom('dies').select('id').where('number', '=', number).executeTakeFirstOrThrow()).id;
+	return (
+		await db.selectFrom('dies').select('id').where('number', '=', number).executeTakeFirstOrThrow()
+	).id;
 }
 
 /** Adds a service task with `left` shots (or days) remaining on its interval at NOW. */
 export async function addTask(
 	db: DB,
 	number: string,
-	task: { kind: string; intervalShots?: number; leftShots?: number; intervalDays?: number; daysAgo?: number }
+	task: {
+		kind: string;
+		intervalShots?: number;
+		leftShots?: number;
+		intervalDays?: number;
+		daysAgo?: number;
+	}
 ) {
 	const id = await dieId(db, number);
-	const total = (await db.selectFrom('dies').select('total_shots').where('id', '=', id).executeTakeFirstOrThrow()).total_shots;
+	const total = (
+		await db.selectFrom('dies').select('total_shots').where('id', '=', id).executeTakeFirstOrThrow()
+	).total_shots;
 	await db
 		.insertInto('service_tasks')
 		.values({
@@ -131,7 +203,9 @@ export async function addTask(
 			kind: task.kind,
 			interval_shots: task.intervalShots ?? null,
 			interval_days: task.intervalDays ?? null,
-			last_done_shots: task.intervalShots ? total - (task.intervalShots - (task.leftShots ?? task.intervalShots)) : total,
+			last_done_shots: task.intervalShots
+				? total - (task.intervalShots - (task.leftShots ?? task.intervalShots))
+				: total,
 			last_done_at: new Date(Date.parse(NOW) - (task.daysAgo ?? 0) * 86_400_000).toISOString()
 		})
 		.execute();
@@ -144,13 +218,29 @@ export async function runDaily(db: DB, number: string, perDay: number, days = 28
 		shots: perDay,
 		countedAt: new Date(Date.parse(NOW) - (i + 1) * 86_400_000 + 3_600_000).toISOString()
 	}));
-	const result = await recordShots(db, rows, { userId: null, tokenId: null, customerId: null }, { source: 'seed', now: NOW });
+	const result = await recordShots(
+		db,
+		rows,
+		{ userId: null, tokenId: null, customerId: null },
+		{ source: 'seed', now: NOW }
+	);
 	if (!result.ok) throw new Error(JSON.stringify(result.issues));
 }
 
 export const actor = { userId: PLANNER, tokenId: null, customerId: null };
 
-export const draft = (over: Partial<{ die: string; press: string; startsAt: string; endsAt: string; parts: number; scrapPct: number; shotsPerHour: number | null; orderRef: string }> = {}) => ({
+export const draft = (
+	over: Partial<{
+		die: string;
+		press: string;
+		startsAt: string;
+		endsAt: string;
+		parts: number;
+		scrapPct: number;
+		shotsPerHour: number | null;
+		orderRef: string;
+	}> = {}
+) => ({
 	die: 'Z-1',
 	press: 'HC-20',
 	startsAt: at(7, 6),

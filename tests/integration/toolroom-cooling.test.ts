@@ -66,11 +66,15 @@ describe('cooling circuits', () => {
 			channelDiameterMm: 8,
 			nominalFlowLpm: 10
 		});
-		expect(await addCircuit(plant.db, { dieId: plant.dieId, form, actor: plant.toolmaker })).toMatchObject({
+		expect(
+			await addCircuit(plant.db, { dieId: plant.dieId, form, actor: plant.toolmaker })
+		).toMatchObject({
 			ok: false,
 			status: 403
 		});
-		expect(await addCircuit(plant.db, { dieId: plant.dieId, form, actor: plant.lead })).toMatchObject({
+		expect(
+			await addCircuit(plant.db, { dieId: plant.dieId, form, actor: plant.lead })
+		).toMatchObject({
 			ok: false,
 			field: 'label'
 		});
@@ -133,17 +137,27 @@ describe('cooling checks', () => {
 	});
 
 	it('refuses water temperatures outside the tables and a circuit of another die', async () => {
-		expect(await check({ circuitId: water, measuredFlowLpm: 14, inletC: 150, outletC: 190 })).toMatchObject({
+		expect(
+			await check({ circuitId: water, measuredFlowLpm: 14, inletC: 150, outletC: 190 })
+		).toMatchObject({
 			ok: false,
 			field: 'outletC'
 		});
 		const other = await addCircuit(plant.db, {
 			dieId: plant.otherDieId,
-			form: circuitSchema.parse({ half: 'cover', label: 'X', coolant: 'water', channelDiameterMm: 8, nominalFlowLpm: 10 }),
+			form: circuitSchema.parse({
+				half: 'cover',
+				label: 'X',
+				coolant: 'water',
+				channelDiameterMm: 8,
+				nominalFlowLpm: 10
+			}),
 			actor: plant.lead
 		});
 		if (!other.ok) throw new Error(other.message);
-		expect(await check({ circuitId: other.id, measuredFlowLpm: 9, inletC: 20, outletC: 25 })).toMatchObject({
+		expect(
+			await check({ circuitId: other.id, measuredFlowLpm: 9, inletC: 20, outletC: 25 })
+		).toMatchObject({
 			ok: false,
 			status: 404
 		});
@@ -151,11 +165,28 @@ describe('cooling checks', () => {
 	});
 
 	it('reports a circuit as weak only by its latest check', async () => {
-		await check({ circuitId: water, measuredFlowLpm: 10, inletC: 30, outletC: 35 }, '2026-03-01T08:00:00.000Z');
-		await check({ circuitId: water, measuredFlowLpm: 19, inletC: 30, outletC: 35 }, '2026-03-05T08:00:00.000Z');
+		await check(
+			{ circuitId: water, measuredFlowLpm: 10, inletC: 30, outletC: 35 },
+			'2026-03-01T08:00:00.000Z'
+		);
+		await check(
+			{ circuitId: water, measuredFlowLpm: 19, inletC: 30, outletC: 35 },
+			'2026-03-05T08:00:00.000Z'
+		);
 		expect(await listWeakCircuits(plant.db)).toEqual([]);
-		await check({ circuitId: oil, measuredFlowLpm: 30, inletC: 150, outletC: 160, oilDensityKgM3: 850, oilViscosityMpaS: 5, oilSpecificHeatJKgK: 2300, leakTest: 'fail' });
-		expect((await listWeakCircuits(plant.db)).map((c) => [c.label, c.leakTest])).toEqual([['E1 oil', 'fail']]);
+		await check({
+			circuitId: oil,
+			measuredFlowLpm: 30,
+			inletC: 150,
+			outletC: 160,
+			oilDensityKgM3: 850,
+			oilViscosityMpaS: 5,
+			oilSpecificHeatJKgK: 2300,
+			leakTest: 'fail'
+		});
+		expect((await listWeakCircuits(plant.db)).map((c) => [c.label, c.leakTest])).toEqual([
+			['E1 oil', 'fail']
+		]);
 	});
 });
 
@@ -172,7 +203,11 @@ describe('die heat balance', () => {
 			oilSpecificHeatJKgK: 2300
 		});
 		const { circuits } = await listCircuits(plant.db, plant.dieId);
-		const die = await plant.db.selectFrom('dies').selectAll().where('id', '=', plant.dieId).executeTakeFirstOrThrow();
+		const die = await plant.db
+			.selectFrom('dies')
+			.selectAll()
+			.where('id', '=', plant.dieId)
+			.executeTakeFirstOrThrow();
 		const view = await getHeatBalance(plant.db, die, circuits, {
 			shotMassKg: 2,
 			shotsPerHour: 60,
@@ -183,7 +218,10 @@ describe('die heat balance', () => {
 		// 595, pour 660 → 2 kg · (963·65 + 389 000 + 963·240) J = 1365.43 kJ per shot; at 60 shots
 		// an hour 22.76 kW against 5.8 + 8.8 kW of cooling.
 		expect(view.heatPerShotKj).toBeCloseTo(1365.43, 2);
-		expect(view.coolingKw).toBeCloseTo(circuits.reduce((s, c) => s + c.latest!.figures.heatKw!, 0), 10);
+		expect(view.coolingKw).toBeCloseTo(
+			circuits.reduce((s, c) => s + c.latest!.figures.heatKw!, 0),
+			10
+		);
 		expect(view.result?.heatInKw).toBeCloseTo(22.757, 3);
 		expect(view.result?.verdict).toBe('cooling_short');
 		expect(view.result?.message).toMatch(/Planning aid only/);
@@ -191,7 +229,11 @@ describe('die heat balance', () => {
 	});
 
 	it('asks for the latent heat when the alloy record has none, and refuses an eject temperature above the solidus', async () => {
-		const zinc = await plant.db.selectFrom('alloys').select('id').where('code', '=', 'ZP0400').executeTakeFirstOrThrow();
+		const zinc = await plant.db
+			.selectFrom('alloys')
+			.select('id')
+			.where('code', '=', 'ZP0400')
+			.executeTakeFirstOrThrow();
 		const die = { id: plant.dieId, alloy_id: zinc.id };
 		const query = { shotMassKg: 0.5, shotsPerHour: 300, ejectC: 250, latentHeatKjKg: undefined };
 		const without = await getHeatBalance(plant.db, die, [], query);
@@ -204,7 +246,11 @@ describe('die heat balance', () => {
 		expect(withLatent.result?.verdict).toBe('cooling_short');
 		expect(withLatent.coolingKw).toBe(0);
 
-		const tooHot = await getHeatBalance(plant.db, die, [], { ...query, ejectC: 400, latentHeatKjKg: 110 });
+		const tooHot = await getHeatBalance(plant.db, die, [], {
+			...query,
+			ejectC: 400,
+			latentHeatKjKg: 110
+		});
 		expect(tooHot.error).toEqual({ field: 'ejectC', message: expect.stringMatching(/solidus/) });
 	});
 });

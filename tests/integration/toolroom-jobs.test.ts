@@ -1,6 +1,10 @@
 import { beforeEach, describe, expect, it } from 'vitest';
 import { closeJobSchema } from '../../src/lib/schemas/toolroom';
-import { listClosedJobs, listOpenJobs, summariseOpenJobs } from '../../src/lib/server/toolroom/board';
+import {
+	listClosedJobs,
+	listOpenJobs,
+	summariseOpenJobs
+} from '../../src/lib/server/toolroom/board';
 import {
 	assignJob,
 	cancelJob,
@@ -73,9 +77,7 @@ describe('toolroom job lifecycle', () => {
 		const job = await getJob(plant.db, 'tj-00001');
 		expect(job?.die_shots_at_open).toBe(12_000);
 		expect(job?.status).toBe('open');
-		expect(await auditActions()).toEqual(
-			expect.arrayContaining(['job.open', 'die.status'])
-		);
+		expect(await auditActions()).toEqual(expect.arrayContaining(['job.open', 'die.status']));
 	});
 
 	it('opened from a service task, closes with the task done at the die’s current total and the die ready again', async () => {
@@ -94,7 +96,11 @@ describe('toolroom job lifecycle', () => {
 			await moveJob(plant.db, { number: opened.number, to: 'in_progress', actor: plant.toolmaker })
 		).toEqual({ ok: true });
 		expect(
-			await moveJob(plant.db, { number: opened.number, to: 'waiting_parts', actor: plant.toolmaker })
+			await moveJob(plant.db, {
+				number: opened.number,
+				to: 'waiting_parts',
+				actor: plant.toolmaker
+			})
 		).toEqual({ ok: true });
 		expect(
 			await moveJob(plant.db, { number: opened.number, to: 'in_progress', actor: plant.toolmaker })
@@ -123,7 +129,9 @@ describe('toolroom job lifecycle', () => {
 			die_shots_at_close: 12_000,
 			closed_by: plant.toolmaker.userId
 		});
-		expect(job?.tasks).toEqual([expect.objectContaining({ kind: 'surface_inspection', doneAtShots: 12_000 })]);
+		expect(job?.tasks).toEqual([
+			expect.objectContaining({ kind: 'surface_inspection', doneAtShots: 12_000 })
+		]);
 		expect(await auditActions()).toEqual(
 			expect.arrayContaining(['job.status', 'service.done', 'job.close'])
 		);
@@ -191,14 +199,22 @@ describe('toolroom job lifecycle', () => {
 			await moveJob(plant.db, { number: opened.number, to: 'open', actor: plant.toolmaker })
 		).toMatchObject({ ok: false, status: 409 });
 
-		await plant.db.updateTable('dies').set({ status: 'retired' }).where('id', '=', plant.otherDieId).execute();
+		await plant.db
+			.updateTable('dies')
+			.set({ status: 'retired' })
+			.where('id', '=', plant.otherDieId)
+			.execute();
 		expect(
 			await openJob(plant.db, { dieId: plant.otherDieId, form: jobForm(), actor: plant.lead })
 		).toMatchObject({ ok: false, status: 409 });
 	});
 
 	it('assigns only toolmakers and leads', async () => {
-		const opened = await openJob(plant.db, { dieId: plant.dieId, form: jobForm(), actor: plant.lead });
+		const opened = await openJob(plant.db, {
+			dieId: plant.dieId,
+			form: jobForm(),
+			actor: plant.lead
+		});
 		if (!opened.ok) throw new Error(opened.message);
 		expect(
 			await assignJob(plant.db, {
@@ -229,12 +245,20 @@ describe('cancelling a job', () => {
 		if (!opened.ok) throw new Error(opened.message);
 
 		expect(
-			await cancelJob(plant.db, { number: opened.number, reason: 'Opened twice', actor: plant.toolmaker })
+			await cancelJob(plant.db, {
+				number: opened.number,
+				reason: 'Opened twice',
+				actor: plant.toolmaker
+			})
 		).toMatchObject({ ok: false, status: 403 });
 		expect((await getJob(plant.db, opened.number))?.status).toBe('open');
 
 		expect(
-			await cancelJob(plant.db, { number: opened.number, reason: 'Opened twice', actor: plant.lead })
+			await cancelJob(plant.db, {
+				number: opened.number,
+				reason: 'Opened twice',
+				actor: plant.lead
+			})
 		).toEqual({ ok: true, dieStatus: 'ready' });
 		const job = await getJob(plant.db, opened.number);
 		expect(job).toMatchObject({ status: 'cancelled', cancel_reason: 'Opened twice' });
@@ -251,10 +275,22 @@ describe('cancelling a job', () => {
 	});
 
 	it('leaves a die someone put on hold in the meantime on hold', async () => {
-		const opened = await openJob(plant.db, { dieId: plant.dieId, form: jobForm(), actor: plant.lead });
+		const opened = await openJob(plant.db, {
+			dieId: plant.dieId,
+			form: jobForm(),
+			actor: plant.lead
+		});
 		if (!opened.ok) throw new Error(opened.message);
-		await plant.db.updateTable('dies').set({ status: 'held' }).where('id', '=', plant.dieId).execute();
-		await cancelJob(plant.db, { number: opened.number, reason: 'Owner decides first', actor: plant.lead });
+		await plant.db
+			.updateTable('dies')
+			.set({ status: 'held' })
+			.where('id', '=', plant.dieId)
+			.execute();
+		await cancelJob(plant.db, {
+			number: opened.number,
+			reason: 'Owner decides first',
+			actor: plant.lead
+		});
 		expect(await dieStatus()).toBe('held');
 	});
 });
@@ -289,7 +325,9 @@ describe('the toolroom board', () => {
 		);
 		expect(mine.map((j) => j.number)).toEqual(['TJ-00001']);
 		expect(
-			(await listOpenJobs(plant.db, { status: '', toolmaker: '', die: 'T-0002' }, asOf)).map((j) => j.number)
+			(await listOpenJobs(plant.db, { status: '', toolmaker: '', die: 'T-0002' }, asOf)).map(
+				(j) => j.number
+			)
 		).toEqual(['TJ-00002']);
 
 		const summary = await summariseOpenJobs(plant.db, asOf);
@@ -303,6 +341,8 @@ describe('the toolroom board', () => {
 		const closed = await listClosedJobs(plant.db, { status: '', toolmaker: '', die: '' }, 1);
 		expect(closed.total).toBe(1);
 		expect(closed.rows[0]).toMatchObject({ number: 'TJ-00001', status: 'done', hours: 3.5 });
-		expect((await listClosedJobs(plant.db, { status: 'open', toolmaker: '', die: '' }, 1)).total).toBe(0);
+		expect(
+			(await listClosedJobs(plant.db, { status: 'open', toolmaker: '', die: '' }, 1)).total
+		).toBe(0);
 	});
 });

@@ -30,7 +30,11 @@ let good: Buffer;
 beforeEach(async () => {
 	plant = await setUpPlant();
 	uploads = await makeUploadDir();
-	const opened = await openJob(plant.db, { dieId: plant.dieId, form: jobForm(), actor: plant.toolmaker });
+	const opened = await openJob(plant.db, {
+		dieId: plant.dieId,
+		form: jobForm(),
+		actor: plant.toolmaker
+	});
 	if (!opened.ok) throw new Error(opened.message);
 	jobId = (await plant.db.selectFrom('toolroom_jobs').select('id').executeTakeFirstOrThrow()).id;
 	good ??= await makeJpeg(160, 120);
@@ -54,7 +58,11 @@ async function photoRows() {
 async function expectNothingStored() {
 	expect(await photoRows()).toHaveLength(0);
 	expect(await uploads.files()).toEqual([]);
-	const audit = await plant.db.selectFrom('audit_log').select('action').where('action', '=', 'photo.add').execute();
+	const audit = await plant.db
+		.selectFrom('audit_log')
+		.select('action')
+		.where('action', '=', 'photo.add')
+		.execute();
 	expect(audit).toHaveLength(0);
 }
 
@@ -85,7 +93,10 @@ function pngBomb(): Buffer {
 describe('uploading photos to a job', () => {
 	it('stores a processed full-size JPEG and thumbnail per photo, under random names, with its details', async () => {
 		const second = await makeJpeg(90, 200);
-		const result = await upload([asFile(good, 'gate side.jpg'), asFile(second, 'ejector pins.jpg')]);
+		const result = await upload([
+			asFile(good, 'gate side.jpg'),
+			asFile(second, 'ejector pins.jpg')
+		]);
 		expect(result).toEqual({ ok: true, count: 2, message: '2 photos added.' });
 
 		const rows = await photoRows();
@@ -133,10 +144,15 @@ describe('uploading photos to a job', () => {
 		});
 
 		it('a truncated JPEG', async () => {
-			const result = await upload([asFile(good.subarray(0, Math.floor(good.length / 2)), 'cut.jpg')]);
+			const result = await upload([
+				asFile(good.subarray(0, Math.floor(good.length / 2)), 'cut.jpg')
+			]);
 			expect(result).toMatchObject({ ok: false });
 			if (result.ok) return;
-			expect(result.problems[0]).toMatchObject({ file: 'cut.jpg', message: expect.stringMatching(/incomplete|damaged/) });
+			expect(result.problems[0]).toMatchObject({
+				file: 'cut.jpg',
+				message: expect.stringMatching(/incomplete|damaged/)
+			});
 			await expectNothingStored();
 		});
 
@@ -154,7 +170,10 @@ describe('uploading photos to a job', () => {
 			const result = await upload([asFile(bomb, 'bomb.png', 'image/png')]);
 			expect(result).toMatchObject({ ok: false });
 			if (result.ok) return;
-			expect(result.problems[0]).toMatchObject({ file: 'bomb.png', message: expect.stringMatching(/30000 × 30000 px.*at most 40 MP/) });
+			expect(result.problems[0]).toMatchObject({
+				file: 'bomb.png',
+				message: expect.stringMatching(/30000 × 30000 px.*at most 40 MP/)
+			});
 			await expectNothingStored();
 		});
 
@@ -170,7 +189,10 @@ describe('uploading photos to a job', () => {
 		});
 
 		it('a good photo sent with a bad one: neither is kept', async () => {
-			const result = await upload([asFile(good, 'good.jpg'), asFile(Buffer.from('nope'), 'bad.jpg')]);
+			const result = await upload([
+				asFile(good, 'good.jpg'),
+				asFile(Buffer.from('nope'), 'bad.jpg')
+			]);
 			expect(result).toMatchObject({
 				ok: false,
 				message: expect.stringMatching(/1 of 2 photos cannot be used, so none were saved/)
@@ -201,8 +223,14 @@ describe('uploading photos to a job', () => {
 	});
 
 	it('refuses a planner and a cancelled job', async () => {
-		expect(await upload([asFile(good, 'a.jpg')], plant.scheduler)).toMatchObject({ ok: false, status: 403 });
-		const job = await plant.db.selectFrom('toolroom_jobs').select('number').executeTakeFirstOrThrow();
+		expect(await upload([asFile(good, 'a.jpg')], plant.scheduler)).toMatchObject({
+			ok: false,
+			status: 403
+		});
+		const job = await plant.db
+			.selectFrom('toolroom_jobs')
+			.select('number')
+			.executeTakeFirstOrThrow();
 		await cancelJob(plant.db, { number: job.number, reason: 'Duplicate', actor: plant.lead });
 		expect(await upload([asFile(good, 'a.jpg')])).toMatchObject({ ok: false, status: 409 });
 		await expectNothingStored();
@@ -237,14 +265,24 @@ describe('who may see a photo', () => {
 		expect(await findViewablePhoto(plant.db, row.public_id, owner)).toBeUndefined();
 
 		expect(
-			await setPhotoShared(plant.db, { publicId: row.public_id, shared: true, actor: plant.toolmaker })
+			await setPhotoShared(plant.db, {
+				publicId: row.public_id,
+				shared: true,
+				actor: plant.toolmaker
+			})
 		).toEqual({ ok: true });
 		expect(await findViewablePhoto(plant.db, row.public_id, owner)).toBeDefined();
 		expect(await findViewablePhoto(plant.db, row.public_id, otherOwner)).toBeUndefined();
-		expect(await findViewablePhoto(plant.db, 'AAAAAAAAAAAAAAAAAAAAAA', plantViewer)).toBeUndefined();
+		expect(
+			await findViewablePhoto(plant.db, 'AAAAAAAAAAAAAAAAAAAAAA', plantViewer)
+		).toBeUndefined();
 
 		expect(
-			await setPhotoShared(plant.db, { publicId: row.public_id, shared: true, actor: plant.scheduler })
+			await setPhotoShared(plant.db, {
+				publicId: row.public_id,
+				shared: true,
+				actor: plant.scheduler
+			})
 		).toMatchObject({ ok: false, status: 403 });
 	});
 });

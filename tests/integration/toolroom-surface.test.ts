@@ -8,7 +8,13 @@ import {
 	listRisingSurfaces,
 	recordInspection
 } from '../../src/lib/server/toolroom/inspections';
-import { asFile, makeJpeg, makeUploadDir, setUpPlant, type ToolroomPlant } from '../fixtures/toolroom';
+import {
+	asFile,
+	makeJpeg,
+	makeUploadDir,
+	setUpPlant,
+	type ToolroomPlant
+} from '../fixtures/toolroom';
 
 let plant: ToolroomPlant;
 let uploads: Awaited<ReturnType<typeof makeUploadDir>>;
@@ -25,7 +31,13 @@ afterAll(async () => {
 });
 
 async function inspect(
-	values: { half?: 'cover' | 'ejector'; zone: string; shotsAt: number; grade: number; crack?: number },
+	values: {
+		half?: 'cover' | 'ejector';
+		zone: string;
+		shotsAt: number;
+		grade: number;
+		crack?: number;
+	},
 	files: File[] = [],
 	dieId = plant.dieId
 ) {
@@ -50,7 +62,9 @@ async function inspect(
 describe('surface inspections', () => {
 	it('records grade, zone, shots and photos, and shows the latest grade per zone', async () => {
 		const photo = await makeJpeg();
-		const result = await inspect({ zone: 'Gate side', shotsAt: 4000, grade: 1 }, [asFile(photo, 'a.jpg')]);
+		const result = await inspect({ zone: 'Gate side', shotsAt: 4000, grade: 1 }, [
+			asFile(photo, 'a.jpg')
+		]);
 		expect(result).toMatchObject({ ok: true, photos: 1 });
 		await inspect({ zone: 'gate side ', shotsAt: 8000, grade: 2, crack: 4.5 });
 		await inspect({ half: 'ejector', zone: 'Core 1', shotsAt: 8000, grade: 0 });
@@ -68,7 +82,11 @@ describe('surface inspections', () => {
 			[4000, 1],
 			[8000, 0]
 		]);
-		const audit = await plant.db.selectFrom('audit_log').select('action').where('action', '=', 'surface.inspect').execute();
+		const audit = await plant.db
+			.selectFrom('audit_log')
+			.select('action')
+			.where('action', '=', 'surface.inspect')
+			.execute();
 		expect(audit).toHaveLength(3);
 	});
 
@@ -106,7 +124,11 @@ describe('surface inspections', () => {
 		await inspect({ zone: 'gate', shotsAt: 100, grade: 1 }, [], plant.otherDieId);
 		await inspect({ zone: 'gate', shotsAt: 200, grade: 2 }, [], plant.otherDieId);
 		await inspect({ zone: 'gate', shotsAt: 300, grade: 3 }, [], plant.otherDieId);
-		await plant.db.updateTable('dies').set({ status: 'retired' }).where('id', '=', plant.otherDieId).execute();
+		await plant.db
+			.updateTable('dies')
+			.set({ status: 'retired' })
+			.where('id', '=', plant.otherDieId)
+			.execute();
 
 		const rising = await listRisingSurfaces(plant.db);
 		expect(rising.map((r) => [r.dieNumber, r.zone, r.grade])).toEqual([['T-0001', 'runner', 3]]);
@@ -116,7 +138,11 @@ describe('surface inspections', () => {
 		const photo = await makeJpeg();
 		await inspect({ zone: 'gate', shotsAt: 2000, grade: 1 }, [asFile(photo, 'a.jpg')]);
 		await inspect({ zone: 'gate', shotsAt: 9000, grade: 3 }, [asFile(photo, 'b.jpg')]);
-		await inspect({ zone: 'gate', shotsAt: 100, grade: 0 }, [asFile(photo, 'c.jpg')], plant.otherDieId);
+		await inspect(
+			{ zone: 'gate', shotsAt: 100, grade: 0 },
+			[asFile(photo, 'c.jpg')],
+			plant.otherDieId
+		);
 		const rows = await plant.db
 			.selectFrom('photos')
 			.innerJoin('surface_inspections', 'surface_inspections.id', 'photos.inspection_id')

@@ -68,25 +68,30 @@ export function buildBoardModel(data: BoardData, nowMs = Date.now()): BoardModel
 		const iso = d.toISOString().slice(0, 10);
 		days.push({
 			iso,
-			label: d.getUTCDate() === 1 || t === fromMs ? `${d.getUTCDate()} ${d.toLocaleString('en-GB', { month: 'short', timeZone: 'UTC' })}` : String(d.getUTCDate()),
+			label:
+				d.getUTCDate() === 1 || t === fromMs
+					? `${d.getUTCDate()} ${d.toLocaleString('en-GB', { month: 'short', timeZone: 'UTC' })}`
+					: String(d.getUTCDate()),
 			weekday: WEEKDAYS[d.getUTCDay()],
 			weekend: d.getUTCDay() === 0 || d.getUTCDay() === 6,
 			monday: d.getUTCDay() === 1,
 			today: iso === data.today
 		});
 	}
-	const rows: BoardRow[] = data.dies.rows.map(([number, part, owner, family, status, lifeUsedPct], index) => ({
-		index,
-		number,
-		part,
-		owner,
-		family,
-		status,
-		lifeUsedPct,
-		bookings: [],
-		jobs: [],
-		service: []
-	}));
+	const rows: BoardRow[] = data.dies.rows.map(
+		([number, part, owner, family, status, lifeUsedPct], index) => ({
+			index,
+			number,
+			part,
+			owner,
+			family,
+			status,
+			lifeUsedPct,
+			bookings: [],
+			jobs: [],
+			service: []
+		})
+	);
 	for (const [id, die, press, start, end, order, parts, phase] of data.bookings.rows) {
 		rows[die]?.bookings.push({
 			id,
@@ -112,3 +117,13 @@ export function buildBoardModel(data: BoardData, nowMs = Date.now()): BoardModel
 /** True when the die has anything in the window (for the phone list, which skips free dies). */
 export const hasActivity = (row: BoardRow) =>
 	row.bookings.length > 0 || row.jobs.length > 0 || row.service.length > 0;
+
+/** A query string from the set values only (empty ones are left out of the URL). */
+export function queryString(params: Record<string, string | number | null | undefined>): string {
+	const parts: string[] = [];
+	for (const [k, v] of Object.entries(params)) {
+		if (v === null || v === undefined || v === '') continue;
+		parts.push(`${encodeURIComponent(k)}=${encodeURIComponent(String(v))}`);
+	}
+	return parts.join('&');
+}

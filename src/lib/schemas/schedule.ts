@@ -36,7 +36,10 @@ export const pressFormSchema = z.object({
 		.string()
 		.trim()
 		.toUpperCase()
-		.regex(/^[A-Z0-9][A-Z0-9 -]{0,19}$/, 'Use 1–20 capital letters, digits, spaces or dashes, e.g. CC-84.'),
+		.regex(
+			/^[A-Z0-9][A-Z0-9 -]{0,19}$/,
+			'Use 1–20 capital letters, digits, spaces or dashes, e.g. CC-84.'
+		),
 	chamber: z.enum(['hot', 'cold'], { error: 'Choose hot or cold chamber.' }),
 	clampForce: z.coerce
 		.number({ error: 'Enter the clamping force.' })
@@ -45,12 +48,15 @@ export const pressFormSchema = z.object({
 	clampUnit: z.enum(FORCE_UNITS).default('kN'),
 	maxShotWeight: optionalPositive('maximum shot weight', 500),
 	tieBarSpacing: optionalPositive('tie-bar spacing', 5000),
-	status: z.enum(['available', 'down'], { error: 'Choose available or down.' }).default('available'),
+	status: z
+		.enum(['available', 'down'], { error: 'Choose available or down.' })
+		.default('available'),
 	notes: optionalText(1000)
 });
 export type PressForm = z.infer<typeof pressFormSchema>;
 
-const DATE_TIME = /^(\d{4}-\d{2}-\d{2})[T ](\d{2}:\d{2}(?::\d{2}(?:\.\d{1,3})?)?)(Z|[+-]\d{2}:\d{2})?$/;
+const DATE_TIME =
+	/^(\d{4}-\d{2}-\d{2})[T ](\d{2}:\d{2}(?::\d{2}(?:\.\d{1,3})?)?)(Z|[+-]\d{2}:\d{2})?$/;
 
 /**
  * A date and time as a `datetime-local` field sends it (read as UTC, the zone Castellan shows) or
@@ -73,7 +79,10 @@ const dateTimeField = (what: string) =>
 		.string({ error: `Enter the ${what}.` })
 		.trim()
 		.min(1, `Enter the ${what}.`)
-		.refine((v) => toUtcIso(v) !== null, `Give the ${what} as date and time, e.g. 2026-12-14T06:00.`);
+		.refine(
+			(v) => toUtcIso(v) !== null,
+			`Give the ${what} as date and time, e.g. 2026-12-14T06:00.`
+		);
 
 const bookingFields = {
 	die: z
@@ -168,8 +177,14 @@ export const bookingWindowQuerySchema = z
 	})
 	.superRefine((v, ctx) => {
 		const days = (Date.parse(v.to) - Date.parse(v.from)) / 86_400_000;
-		if (!(days >= 0)) ctx.addIssue({ code: 'custom', path: ['to'], message: 'to must not be before from.' });
-		else if (days > 400) ctx.addIssue({ code: 'custom', path: ['to'], message: 'Ask for at most 400 days at a time.' });
+		if (!(days >= 0))
+			ctx.addIssue({ code: 'custom', path: ['to'], message: 'to must not be before from.' });
+		else if (days > 400)
+			ctx.addIssue({
+				code: 'custom',
+				path: ['to'],
+				message: 'Ask for at most 400 days at a time.'
+			});
 	});
 
 export const BOARD_SPANS = [14, 28, 56] as const;

@@ -164,7 +164,10 @@ export const circuitSchema = z.object({
 export type CircuitForm = z.infer<typeof circuitSchema>;
 
 export const coolingCheckSchema = z.object({
-	circuitId: z.coerce.number({ error: 'Choose the circuit.' }).int().positive('Choose the circuit.'),
+	circuitId: z.coerce
+		.number({ error: 'Choose the circuit.' })
+		.int()
+		.positive('Choose the circuit.'),
 	measuredFlowLpm: requiredNumber(
 		z.coerce
 			.number({ error: 'Enter the measured flow in L/min.' })
@@ -253,6 +256,9 @@ export const jobBoardQuerySchema = z.object({
 export type JobBoardQuery = z.infer<typeof jobBoardQuerySchema>;
 
 export const photoShareSchema = z.object({
-	photo: z.string().trim().regex(/^[A-Za-z0-9_-]{16,40}$/, 'Unknown photo.'),
+	photo: z
+		.string()
+		.trim()
+		.regex(/^[A-Za-z0-9_-]{16,40}$/, 'Unknown photo.'),
 	shared: z.enum(['0', '1']).transform((v) => v === '1')
 });

@@ -19,5 +19,12 @@ export const load: PageServerLoad = async (event) => {
 		listBookingsInWindow(db, { start: now, end, press: press || undefined }, { customerId: null }),
 		listPressOptions(db)
 	]);
-	return { bookings, presses, days, press, spans: SPANS, canEdit: BOOKING_EDITORS.includes(user.role) };
+	return {
+		bookings,
+		presses,
+		days,
+		press,
+		spans: SPANS,
+		canEdit: BOOKING_EDITORS.includes(user.role)
+	};
 };

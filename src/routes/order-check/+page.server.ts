@@ -16,7 +16,10 @@ export const load: PageServerLoad = async (event) => {
 		asked
 			? superValidate(event.url, zod4(orderCheckQuerySchema))
 			: superValidate(
-					{ die: (event.url.searchParams.get('die') ?? '').toUpperCase().slice(0, 20), scrapPct: 2 },
+					{
+						die: (event.url.searchParams.get('die') ?? '').toUpperCase().slice(0, 20),
+						scrapPct: 2
+					},
 					zod4(orderCheckQuerySchema),
 					{ errors: false }
 				),

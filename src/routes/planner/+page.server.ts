@@ -18,7 +18,9 @@ export const load: PageServerLoad = async (event) => {
 		summarizeSchedule(db, HORIZON_DAYS)
 	]);
 	return {
-		blockedByService: attention.filter((a) => a.state === 'due' || a.state === 'overdue').slice(0, 50),
+		blockedByService: attention
+			.filter((a) => a.state === 'due' || a.state === 'overdue')
+			.slice(0, 50),
 		comingUp: attention.filter((a) => a.state === 'coming_up').slice(0, 50),
 		nearEnd: nearEnd.slice(0, 30),
 		unavailable,

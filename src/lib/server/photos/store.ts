@@ -26,8 +26,7 @@ export interface PhotoProblem {
 }
 
 export type PreparedPhotos =
-	| { ok: true; images: ProcessedImage[] }
-	| { ok: false; message: string; problems: PhotoProblem[] };
+	{ ok: true; images: ProcessedImage[] } | { ok: false; message: string; problems: PhotoProblem[] };
 
 export interface StoredPhotoFiles {
 	/** Relative to the upload directory. */

@@ -8,7 +8,8 @@ export function issuesOf(error: z.ZodError): ApiIssue[] {
 	return error.issues.map((i) => ({ field: i.path.join('.') || 'body', message: i.message }));
 }
 
-const asIssues = (checks: BookingCheck[]): ApiIssue[] => checks.map((c) => ({ field: c.code, message: c.message }));
+const asIssues = (checks: BookingCheck[]): ApiIssue[] =>
+	checks.map((c) => ({ field: c.code, message: c.message }));
 
 /**
  * The API's answer to a refused booking: 400 for an unknown die or press, 422 when a check blocks

@@ -21,10 +21,26 @@ const DAY_MS = 86_400_000;
 // bookings stay a small, fast JSON document. Rows of the other tables point at a die by its index
 // in `dies.rows`.
 
-export const BOARD_DIE_COLUMNS = ['number', 'part', 'owner', 'family', 'status', 'lifeUsedPct'] as const;
+export const BOARD_DIE_COLUMNS = [
+	'number',
+	'part',
+	'owner',
+	'family',
+	'status',
+	'lifeUsedPct'
+] as const;
 export type BoardDieRow = [string, string, string, AlloyFamily, DieStatus, number];
 
-export const BOARD_BOOKING_COLUMNS = ['id', 'die', 'press', 'start', 'end', 'order', 'parts', 'phase'] as const;
+export const BOARD_BOOKING_COLUMNS = [
+	'id',
+	'die',
+	'press',
+	'start',
+	'end',
+	'order',
+	'parts',
+	'phase'
+] as const;
 export type BoardBookingRow = [number, number, string, string, string, string, number, string];
 
 export const BOARD_JOB_COLUMNS = ['die', 'number', 'kind', 'status', 'openedAt'] as const;
@@ -78,7 +94,16 @@ async function listBoardBookings(db: DB, start: string, end: string) {
 	return db
 		.selectFrom('press_bookings as b')
 		.innerJoin('machines', 'machines.id', 'b.machine_id')
-		.select(['b.id', 'b.die_id', 'machines.name as pressName', 'b.starts_at', 'b.ends_at', 'b.order_ref', 'b.parts', 'b.cancelled_at'])
+		.select([
+			'b.id',
+			'b.die_id',
+			'machines.name as pressName',
+			'b.starts_at',
+			'b.ends_at',
+			'b.order_ref',
+			'b.parts',
+			'b.cancelled_at'
+		])
 		.where('b.starts_at', '>=', earliest)
 		.where('b.starts_at', '<', end)
 		.where('b.ends_at', '>', start)
@@ -107,7 +132,12 @@ interface DieBase {
  * those that fit it by chamber and clamping force), their bookings, open toolroom jobs and the
  * projected due dates of their service tasks at the trailing shot rate (calc/service).
  */
-export async function loadBoard(db: DB, query: BoardQuery, scope: DieScope, now = nowIso()): Promise<BoardData> {
+export async function loadBoard(
+	db: DB,
+	query: BoardQuery,
+	scope: DieScope,
+	now = nowIso()
+): Promise<BoardData> {
 	const today = now.slice(0, 10);
 	const from = query.from ?? startOfWeek(now);
 	const to = addDaysToDate(from, query.days);
@@ -131,7 +161,9 @@ export async function loadBoard(db: DB, query: BoardQuery, scope: DieScope, now 
 				'dies.projected_area_cm2',
 				'dies.has_slides',
 				'dies.total_shots',
-				sql<number>`coalesce(dies.expected_life_shots, alloys.expected_life_shots)`.as('expectedLife')
+				sql<number>`coalesce(dies.expected_life_shots, alloys.expected_life_shots)`.as(
+					'expectedLife'
+				)
 			])
 			.where('dies.status', '!=', 'retired')
 			.$if(scope.customerId !== null, (q) => q.where('dies.customer_id', '=', scope.customerId!))
@@ -166,7 +198,15 @@ export async function loadBoard(db: DB, query: BoardQuery, scope: DieScope, now 
 		ids.length
 			? db
 					.selectFrom('service_tasks')
-					.select(['id', 'die_id', 'kind', 'interval_shots', 'interval_days', 'last_done_at', 'last_done_shots'])
+					.select([
+						'id',
+						'die_id',
+						'kind',
+						'interval_shots',
+						'interval_days',
+						'last_done_at',
+						'last_done_shots'
+					])
 					.where('active', '=', 1)
 					.where('die_id', 'in', ids)
 					.execute()
@@ -204,7 +244,9 @@ export async function loadBoard(db: DB, query: BoardQuery, scope: DieScope, now 
 		days: query.days,
 		today,
 		generatedAt: now,
-		press: press ? { name: press.name, chamber: press.chamber, clampKn: press.clamp_force_kn } : null,
+		press: press
+			? { name: press.name, chamber: press.chamber, clampKn: press.clamp_force_kn }
+			: null,
 		dies: {
 			columns: BOARD_DIE_COLUMNS,
 			rows: dies.map((d) => [

@@ -79,7 +79,9 @@ export type Evaluation =
 	  };
 
 /** Required locking force of a die (Giesserei-Lexikon formula in calc/clamp) at the default pressure. */
-export function dieClampRequirement(die: Pick<DieFacts, 'process' | 'family' | 'projectedAreaCm2' | 'hasSlides'>) {
+export function dieClampRequirement(
+	die: Pick<DieFacts, 'process' | 'family' | 'projectedAreaCm2' | 'hasSlides'>
+) {
 	const metalPressureBar = defaultMetalPressureBar(die.process, die.family);
 	return {
 		metalPressureBar,
@@ -123,7 +125,9 @@ export async function findClashes(
 			'machines.name as pressName'
 		])
 		.$if('dieId' in by, (q) => q.where('b.die_id', '=', (by as { dieId: number }).dieId))
-		.$if('machineId' in by, (q) => q.where('b.machine_id', '=', (by as { machineId: number }).machineId))
+		.$if('machineId' in by, (q) =>
+			q.where('b.machine_id', '=', (by as { machineId: number }).machineId)
+		)
 		.where('b.cancelled_at', 'is', null)
 		.where('b.starts_at', '<', endsAt)
 		.where('b.ends_at', '>', startsAt)
@@ -149,7 +153,12 @@ export interface PlannedRun {
  * its bookings' rate; an unbooked die keeps its recent pace). `runs` are the die's other
  * bookings; only the part of each between now and the start counts.
  */
-export function projectShotsBeforeStart(die: DieFacts, startMs: number, nowMs: number, runs: readonly PlannedRun[]) {
+export function projectShotsBeforeStart(
+	die: DieFacts,
+	startMs: number,
+	nowMs: number,
+	runs: readonly PlannedRun[]
+) {
 	if (startMs <= nowMs) return 0;
 	const trailing = (die.shotsPerDay * (startMs - nowMs)) / DAY_MS;
 	let booked = 0;
@@ -157,12 +166,19 @@ export function projectShotsBeforeStart(die: DieFacts, startMs: number, nowMs: n
 		const s = Date.parse(b.starts_at);
 		const e = Date.parse(b.ends_at);
 		const inside = Math.max(0, Math.min(e, startMs) - Math.max(s, nowMs));
-		if (inside > 0) booked += (shotsNeededFor(b.parts, die.cavities, b.scrap_pct) * inside) / (e - s);
+		if (inside > 0)
+			booked += (shotsNeededFor(b.parts, die.cavities, b.scrap_pct) * inside) / (e - s);
 	}
 	return Math.round(Math.max(trailing, booked));
 }
 
-async function listRunsBetween(db: DB, dieId: number, nowMs: number, startMs: number, excludeId?: number) {
+async function listRunsBetween(
+	db: DB,
+	dieId: number,
+	nowMs: number,
+	startMs: number,
+	excludeId?: number
+) {
 	if (startMs <= nowMs) return [];
 	return db
 		.selectFrom('press_bookings')
@@ -178,7 +194,13 @@ async function listRunsBetween(db: DB, dieId: number, nowMs: number, startMs: nu
 function statusChecks(die: DieFacts, jobNumbers: string[]): BookingCheck[] {
 	const why = die.statusReason;
 	if (die.status === 'retired') {
-		return [{ code: 'die_retired', level: 'block', message: `${die.number} is retired and cannot be booked.` }];
+		return [
+			{
+				code: 'die_retired',
+				level: 'block',
+				message: `${die.number} is retired and cannot be booked.`
+			}
+		];
 	}
 	if (die.status === 'held') {
 		return [
@@ -352,7 +374,9 @@ export function assessBooking(input: AssessInput): Assessment {
 	}
 	checks.push(...chamberChecks(die, press));
 	if (press.clamp_force_kn < requiredKn) {
-		const factor = die.hasSlides ? CLAMP_SAFETY_FACTOR.withSlides : CLAMP_SAFETY_FACTOR.withoutSlides;
+		const factor = die.hasSlides
+			? CLAMP_SAFETY_FACTOR.withSlides
+			: CLAMP_SAFETY_FACTOR.withoutSlides;
 		checks.push({
 			code: 'clamp_force',
 			level: 'block',
@@ -360,7 +384,9 @@ export function assessBooking(input: AssessInput): Assessment {
 		});
 	}
 
-	checks.push(...serviceChecks(die, now, startMs, endMs, shotsBeforeStart, shotsNeeded, shotsPerHour));
+	checks.push(
+		...serviceChecks(die, now, startMs, endMs, shotsBeforeStart, shotsNeeded, shotsPerHour)
+	);
 	const lifeLeft = die.expectedLifeShots - die.totalShots - shotsBeforeStart;
 	const order = checkOrder({
 		parts: draft.parts,
@@ -414,21 +440,32 @@ export function assessBooking(input: AssessInput): Assessment {
 }
 
 /** Loads what the checks need for one booking and runs them (the form, the API, one booking page). */
-export async function evaluateBooking(db: DB, draft: BookingDraft, options: CheckOptions = {}): Promise<Evaluation> {
+export async function evaluateBooking(
+	db: DB,
+	draft: BookingDraft,
+	options: CheckOptions = {}
+): Promise<Evaluation> {
 	const now = options.now ?? nowIso();
 	const scope = options.scope ?? { customerId: null };
 	const [die, press] = await Promise.all([
 		loadDieFacts(db, draft.die, scope, now),
 		findPressByName(db, draft.press)
 	]);
-	if (!die) return { ok: false, field: 'die', message: `There is no die ${draft.die.toUpperCase()}.` };
+	if (!die)
+		return { ok: false, field: 'die', message: `There is no die ${draft.die.toUpperCase()}.` };
 	if (!press) return { ok: false, field: 'press', message: `There is no press ${draft.press}.` };
 	const startMs = Date.parse(draft.startsAt);
 	const nowMs = Date.parse(now);
 	const [jobs, dieClashes, pressClashes, runs] = await Promise.all([
 		die.status === 'in_toolroom' ? listOpenToolroomJobs(db, [die.id]) : Promise.resolve([]),
 		findClashes(db, { dieId: die.id }, draft.startsAt, draft.endsAt, options.excludeBookingId),
-		findClashes(db, { machineId: press.id }, draft.startsAt, draft.endsAt, options.excludeBookingId),
+		findClashes(
+			db,
+			{ machineId: press.id },
+			draft.startsAt,
+			draft.endsAt,
+			options.excludeBookingId
+		),
 		listRunsBetween(db, die.id, nowMs, startMs, options.excludeBookingId)
 	]);
 	return assessBooking({

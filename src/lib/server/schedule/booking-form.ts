@@ -23,9 +23,12 @@ export interface BookingMessage {
 export function bookingFormDefaults(params: URLSearchParams, now = nowIso()): Partial<BookingForm> {
 	const startParam = params.get('start') ?? '';
 	const start =
-		(/^\d{4}-\d{2}-\d{2}$/.test(startParam) ? toUtcIso(`${startParam}T06:00`) : toUtcIso(startParam)) ??
+		(/^\d{4}-\d{2}-\d{2}$/.test(startParam)
+			? toUtcIso(`${startParam}T06:00`)
+			: toUtcIso(startParam)) ??
 		toUtcIso(`${new Date(Date.parse(now) + 24 * HOUR_MS).toISOString().slice(0, 10)}T06:00`)!;
-	const end = toUtcIso(params.get('end') ?? '') ?? new Date(Date.parse(start) + 16 * HOUR_MS).toISOString();
+	const end =
+		toUtcIso(params.get('end') ?? '') ?? new Date(Date.parse(start) + 16 * HOUR_MS).toISOString();
 	return {
 		die: (params.get('die') ?? '').toUpperCase().slice(0, 20),
 		press: (params.get('press') ?? '').slice(0, 20),
@@ -40,7 +43,13 @@ export function bookingFormDefaults(params: URLSearchParams, now = nowIso()): Pa
 export type SubmitOutcome =
 	| { ok: true; id: number }
 	| { ok: false; field: 'die' | 'press'; message: string }
-	| { ok: false; field: null; message: BookingMessage; status: 409 | 422; confirmedWarnings: string };
+	| {
+			ok: false;
+			field: null;
+			message: BookingMessage;
+			status: 409 | 422;
+			confirmedWarnings: string;
+	  };
 
 /** Runs a submitted booking form through the checks; the route turns the outcome into a page. */
 export async function submitBookingForm(

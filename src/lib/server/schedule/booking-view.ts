@@ -10,9 +10,15 @@ import { shotsNeededFor } from './die-facts';
  * One booking for its page, with the checks run again against today's die and press (a die may
  * have gone to the toolroom since it was booked). Ended and cancelled bookings are not re-checked.
  */
-export async function loadBookingPage(db: DB, idParam: string, unitSystem: UnitSystem, now = nowIso()) {
+export async function loadBookingPage(
+	db: DB,
+	idParam: string,
+	unitSystem: UnitSystem,
+	now = nowIso()
+) {
 	const id = Number(idParam);
-	const booking = Number.isInteger(id) && id > 0 ? await getBooking(db, id, { customerId: null }) : undefined;
+	const booking =
+		Number.isInteger(id) && id > 0 ? await getBooking(db, id, { customerId: null }) : undefined;
 	if (!booking) error(404, { message: 'There is no such booking.' });
 	const phase = bookingPhase(booking, now);
 	const shotsPlanned = shotsNeededFor(booking.parts, booking.cavities, booking.scrap_pct);

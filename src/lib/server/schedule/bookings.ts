@@ -36,7 +36,13 @@ export function warningsAccepted(warnings: BookingCheck[], confirm: boolean | st
 	if (warnings.length === 0 || confirm === true) return true;
 	if (confirm === false) return false;
 	const seen = [...confirm].sort().join(',');
-	return seen === warnings.map((w) => w.code).sort().join(',');
+	return (
+		seen ===
+		warnings
+			.map((w) => w.code)
+			.sort()
+			.join(',')
+	);
 }
 
 /**
@@ -57,7 +63,8 @@ export async function createBooking(
 			unitSystem: options.unitSystem
 		});
 		if (!ev.ok) return { ok: false, kind: 'invalid', field: ev.field, message: ev.message };
-		if (ev.blocks.length > 0) return { ok: false, kind: 'blocked', blocks: ev.blocks, warnings: ev.warnings };
+		if (ev.blocks.length > 0)
+			return { ok: false, kind: 'blocked', blocks: ev.blocks, warnings: ev.warnings };
 		if (!warningsAccepted(ev.warnings, options.confirm)) {
 			return { ok: false, kind: 'confirm', warnings: ev.warnings };
 		}
@@ -129,9 +136,14 @@ export async function cancelBooking(
 		if (!booking || (actor.customerId !== null && booking.customer_id !== actor.customerId)) {
 			return { ok: false, status: 404, message: 'There is no such booking.' };
 		}
-		if (booking.cancelled_at) return { ok: false, status: 409, message: 'This booking is already cancelled.' };
+		if (booking.cancelled_at)
+			return { ok: false, status: 409, message: 'This booking is already cancelled.' };
 		if (booking.ends_at <= now) {
-			return { ok: false, status: 409, message: 'This booking has ended; it stays on record as it was.' };
+			return {
+				ok: false,
+				status: 409,
+				message: 'This booking has ended; it stays on record as it was.'
+			};
 		}
 		await trx
 			.updateTable('press_bookings')
@@ -156,7 +168,10 @@ export async function cancelBooking(
 export type BookingPhase = 'cancelled' | 'planned' | 'running' | 'ended';
 
 /** Where a booking stands at `now` (by its window; shots come from the ledger, not from here). */
-export function bookingPhase(b: { starts_at: string; ends_at: string; cancelled_at: string | null }, now: string): BookingPhase {
+export function bookingPhase(
+	b: { starts_at: string; ends_at: string; cancelled_at: string | null },
+	now: string
+): BookingPhase {
 	if (b.cancelled_at) return 'cancelled';
 	if (b.ends_at <= now) return 'ended';
 	if (b.starts_at <= now) return 'running';

@@ -1,6 +1,11 @@
 import { sql } from 'kysely';
 import { addDaysToDate } from '../../calc/dates';
-import { lifeStatus, TRAILING_RATE_DAYS, TYPICAL_SHOTS_PER_HOUR, type AlloyFamily } from '../../calc/life';
+import {
+	lifeStatus,
+	TRAILING_RATE_DAYS,
+	TYPICAL_SHOTS_PER_HOUR,
+	type AlloyFamily
+} from '../../calc/life';
 import { checkOrder } from '../../calc/order-check';
 import type { DB } from '../db/connect';
 import type { DieProcess, DieStatus, ServiceTask } from '../db/schema';
@@ -51,7 +56,8 @@ export async function trailingShotsPerDay(
 	const windowStart = asOfMs - TRAILING_RATE_DAYS * DAY_MS;
 	// First day whose noon is after the window start; last day whose noon is not after asOf.
 	const firstNoon = new Date(windowStart - NOON_MS).toISOString().slice(0, 10);
-	const first = Date.parse(firstNoon) + NOON_MS > windowStart ? firstNoon : addDaysToDate(firstNoon, 1);
+	const first =
+		Date.parse(firstNoon) + NOON_MS > windowStart ? firstNoon : addDaysToDate(firstNoon, 1);
 	const lastNoon = new Date(asOfMs - NOON_MS).toISOString().slice(0, 10);
 	const rows = await db
 		.selectFrom('shot_daily')
@@ -124,11 +130,21 @@ export async function loadDieFactsByIds(
 		])
 		.where('dies.id', 'in', list)
 		.execute();
-	const stopped = dies.filter((d) => d.status === 'held' || d.status === 'in_toolroom').map((d) => d.id);
+	const stopped = dies
+		.filter((d) => d.status === 'held' || d.status === 'in_toolroom')
+		.map((d) => d.id);
 	const [tasks, rates, reasons] = await Promise.all([
 		db
 			.selectFrom('service_tasks')
-			.select(['id', 'die_id', 'kind', 'interval_shots', 'interval_days', 'last_done_at', 'last_done_shots'])
+			.select([
+				'id',
+				'die_id',
+				'kind',
+				'interval_shots',
+				'interval_days',
+				'last_done_at',
+				'last_done_shots'
+			])
 			.where('die_id', 'in', list)
 			.where('active', '=', 1)
 			.execute(),

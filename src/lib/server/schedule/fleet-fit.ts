@@ -25,7 +25,10 @@ export interface FamilyFit {
  * as a suspension at its shots so far. A family with fewer than `minFailures` retired dies gets no
  * fit and a reason instead.
  */
-export async function fitFleetByFamily(db: DB, minFailures = MIN_FAILURES_FOR_FIT): Promise<FamilyFit[]> {
+export async function fitFleetByFamily(
+	db: DB,
+	minFailures = MIN_FAILURES_FOR_FIT
+): Promise<FamilyFit[]> {
 	const rows = await db
 		.selectFrom('dies')
 		.innerJoin('alloys', 'alloys.id', 'dies.alloy_id')
@@ -33,7 +36,9 @@ export async function fitFleetByFamily(db: DB, minFailures = MIN_FAILURES_FOR_FI
 		.execute();
 	return ALLOY_FAMILIES.map((family) => {
 		const mine = rows.filter((r) => r.family === family);
-		const failureShots = mine.filter((r) => r.status === 'retired' && r.total_shots > 0).map((r) => r.total_shots);
+		const failureShots = mine
+			.filter((r) => r.status === 'retired' && r.total_shots > 0)
+			.map((r) => r.total_shots);
 		const suspensionShots = mine.filter((r) => r.status !== 'retired').map((r) => r.total_shots);
 		const base = {
 			family,
@@ -56,7 +61,11 @@ export async function fitFleetByFamily(db: DB, minFailures = MIN_FAILURES_FOR_FI
 			const fit = fitWeibull(failureShots, suspensionShots);
 			return { ...base, fit: { ...fit, b10: weibullB10(fit.shape, fit.scale) }, reason: null };
 		} catch (err) {
-			return { ...base, fit: null, reason: `The ${family} data cannot be fitted: ${(err as Error).message}` };
+			return {
+				...base,
+				fit: null,
+				reason: `The ${family} data cannot be fitted: ${(err as Error).message}`
+			};
 		}
 	});
 }

@@ -33,7 +33,12 @@ export interface OrderCheckAnswer {
 	/** The calendar-kept task that falls due first, with its date. */
 	nextServiceByDate: { kind: string; label: string; dueOn: string } | null;
 	shotsToEndOfLife: number;
-	clamp: { requiredKn: number; metalPressureBar: number; availableKn: number | null; fits: boolean | null };
+	clamp: {
+		requiredKn: number;
+		metalPressureBar: number;
+		availableKn: number | null;
+		fits: boolean | null;
+	};
 	pressFindings: BookingCheck[];
 	survival:
 		| { probability: number; shape: number; scale: number; failures: number; suspensions: number }
@@ -50,24 +55,37 @@ export async function runOrderCheck(
 	req: OrderCheckRequest,
 	scope: DieScope,
 	now = nowIso()
-): Promise<{ ok: true; answer: OrderCheckAnswer } | { ok: false; field: 'die' | 'press'; message: string }> {
+): Promise<
+	{ ok: true; answer: OrderCheckAnswer } | { ok: false; field: 'die' | 'press'; message: string }
+> {
 	const [die, press] = await Promise.all([
 		loadDieFacts(db, req.die, scope, now),
 		req.press ? findPressByName(db, req.press) : Promise.resolve(null)
 	]);
-	if (!die) return { ok: false, field: 'die', message: `There is no die ${req.die.toUpperCase()}.` };
-	if (req.press && !press) return { ok: false, field: 'press', message: `There is no press ${req.press}.` };
+	if (!die)
+		return { ok: false, field: 'die', message: `There is no die ${req.die.toUpperCase()}.` };
+	if (req.press && !press)
+		return { ok: false, field: 'press', message: `There is no press ${req.press}.` };
 
 	const shotsPerHour = req.shotsPerHour ?? defaultShotsPerHour(die.family);
 	let nextService: OrderCheckAnswer['nextService'] = null;
 	let nextServiceByDate: OrderCheckAnswer['nextServiceByDate'] = null;
 	for (const task of die.tasks) {
 		const view = viewServiceTask(task, die.totalShots, now);
-		if (view.shotsRemaining !== null && (nextService === null || view.shotsRemaining < nextService.shotsRemaining)) {
-			nextService = { kind: task.kind, label: serviceKindLabel(task.kind), shotsRemaining: view.shotsRemaining };
+		if (
+			view.shotsRemaining !== null &&
+			(nextService === null || view.shotsRemaining < nextService.shotsRemaining)
+		) {
+			nextService = {
+				kind: task.kind,
+				label: serviceKindLabel(task.kind),
+				shotsRemaining: view.shotsRemaining
+			};
 		}
 		if (task.interval_days !== null) {
-			const dueOn = new Date(Date.parse(task.last_done_at) + task.interval_days * DAY_MS).toISOString();
+			const dueOn = new Date(
+				Date.parse(task.last_done_at) + task.interval_days * DAY_MS
+			).toISOString();
 			if (nextServiceByDate === null || dueOn < nextServiceByDate.dueOn) {
 				nextServiceByDate = { kind: task.kind, label: serviceKindLabel(task.kind), dueOn };
 			}
@@ -88,7 +106,12 @@ export async function runOrderCheck(
 	const family = fits.find((f) => f.family === die.family)!;
 	const survival: OrderCheckAnswer['survival'] = family.fit
 		? {
-				probability: conditionalSurvival(die.totalShots, order.shotsNeeded, family.fit.shape, family.fit.scale),
+				probability: conditionalSurvival(
+					die.totalShots,
+					order.shotsNeeded,
+					family.fit.shape,
+					family.fit.scale
+				),
 				shape: family.fit.shape,
 				scale: family.fit.scale,
 				failures: family.failures,

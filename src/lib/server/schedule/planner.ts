@@ -9,7 +9,12 @@ export async function listUnavailableDies(db: DB) {
 	return db
 		.selectFrom('dies')
 		.innerJoin('customers', 'customers.id', 'dies.customer_id')
-		.select(['dies.number', 'dies.part_name as partName', 'dies.status', 'customers.name as customerName'])
+		.select([
+			'dies.number',
+			'dies.part_name as partName',
+			'dies.status',
+			'customers.name as customerName'
+		])
 		.where('dies.status', 'in', ['in_toolroom', 'held'])
 		.orderBy('dies.number')
 		.execute();

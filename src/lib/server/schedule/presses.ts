@@ -13,7 +13,10 @@ export async function listPresses(db: DB, asOf = nowIso()) {
 	return db
 		.selectFrom('machines')
 		.leftJoin('press_bookings as b', (join) =>
-			join.onRef('b.machine_id', '=', 'machines.id').on('b.cancelled_at', 'is', null).on('b.ends_at', '>', asOf)
+			join
+				.onRef('b.machine_id', '=', 'machines.id')
+				.on('b.cancelled_at', 'is', null)
+				.on('b.ends_at', '>', asOf)
 		)
 		.selectAll('machines')
 		.select((eb) => eb.fn.count<number>('b.id').as('upcoming'))
@@ -88,13 +91,16 @@ function formToRow(form: PressForm, system: UnitSystem) {
 				? null
 				: roundTo(us ? lbToKg(form.maxShotWeight) : form.maxShotWeight, 3),
 		tie_bar_spacing_mm:
-			form.tieBarSpacing === undefined ? null : roundTo(us ? inToMm(form.tieBarSpacing) : form.tieBarSpacing, 1),
+			form.tieBarSpacing === undefined
+				? null
+				: roundTo(us ? inToMm(form.tieBarSpacing) : form.tieBarSpacing, 1),
 		status: form.status,
 		notes: form.notes || null
 	};
 }
 
-export type PressWriteResult = { ok: true; id: number } | { ok: false; field: 'name'; message: string };
+export type PressWriteResult =
+	{ ok: true; id: number } | { ok: false; field: 'name'; message: string };
 
 /** Creates a press (id undefined) or updates one; names stay unique. */
 export async function savePress(
@@ -110,12 +116,15 @@ export async function savePress(
 		.where((eb) => eb(eb.fn('upper', ['name']), '=', form.name))
 		.$if(id !== undefined, (q) => q.where('id', '!=', id!))
 		.executeTakeFirst();
-	if (clash) return { ok: false, field: 'name', message: `A press named ${form.name} already exists.` };
+	if (clash)
+		return { ok: false, field: 'name', message: `A press named ${form.name} already exists.` };
 	const values = formToRow(form, system);
 	return db.transaction().execute(async (trx) => {
 		let pressId = id;
 		if (pressId === undefined) {
-			pressId = (await trx.insertInto('machines').values(values).returning('id').executeTakeFirstOrThrow()).id;
+			pressId = (
+				await trx.insertInto('machines').values(values).returning('id').executeTakeFirstOrThrow()
+			).id;
 		} else {
 			await trx.updateTable('machines').set(values).where('id', '=', pressId).execute();
 		}
@@ -139,8 +148,18 @@ export async function deletePress(
 ): Promise<{ ok: true } | { ok: false; message: string }> {
 	const [press, booking, shot] = await Promise.all([
 		findPress(db, id),
-		db.selectFrom('press_bookings').select('id').where('machine_id', '=', id).limit(1).executeTakeFirst(),
-		db.selectFrom('shot_entries').select('id').where('machine_id', '=', id).limit(1).executeTakeFirst()
+		db
+			.selectFrom('press_bookings')
+			.select('id')
+			.where('machine_id', '=', id)
+			.limit(1)
+			.executeTakeFirst(),
+		db
+			.selectFrom('shot_entries')
+			.select('id')
+			.where('machine_id', '=', id)
+			.limit(1)
+			.executeTakeFirst()
 	]);
 	if (!press) return { ok: false, message: 'That press does not exist.' };
 	if (booking || shot) {
@@ -151,7 +170,11 @@ export async function deletePress(
 	}
 	await db.transaction().execute(async (trx) => {
 		await trx.deleteFrom('machines').where('id', '=', id).execute();
-		await writeAudit(trx, { userId: actorId, action: 'press.delete', detail: { press: press.name } });
+		await writeAudit(trx, {
+			userId: actorId,
+			action: 'press.delete',
+			detail: { press: press.name }
+		});
 	});
 	return { ok: true };
 }

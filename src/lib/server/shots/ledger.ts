@@ -87,8 +87,9 @@ function statements(raw: SQLite.Database) {
 		machine: raw.prepare<[string], { id: number }>(
 			`select id from machines where name = ? collate nocase`
 		),
-		keyOwner: raw.prepare<[string], { die_id: number }>(
-			`select die_id from shot_entries where idem_key = ?`
+		keyOwners: raw.prepare<string[], { idem_key: string; die_id: number }>(
+			`select idem_key, die_id from shot_entries
+			  where idem_key in (select value from json_each(?)) and idem_key is not null`
 		),
 		// Index seek on (die_id, counted_at), walking back past corrections (they are not readings).
 		previousReading: raw.prepare<[number, string], { counted_at: string }>(
@@ -96,11 +97,11 @@ function statements(raw: SQLite.Database) {
 			  where die_id = ? and counted_at < ? and source <> 'correction'
 			  order by counted_at desc limit 1`
 		),
+		// Positional parameters: measurably cheaper than named ones on the hot path.
 		insert: raw.prepare(
 			`insert into shot_entries (die_id, machine_id, counted_at, shots, counter_start, counter_end,
 			   source, idem_key, entered_by, token_id, note, created_at)
-			 values (@dieId, @machineId, @countedAt, @shots, @counterStart, @counterEnd,
-			   @source, @key, @userId, @tokenId, @note, @createdAt)`
+			 values (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`
 		),
 		daily: raw.prepare(
 			`insert into shot_daily (die_id, day, shots) values (?, ?, ?)
@@ -126,17 +127,41 @@ function prepared(raw: SQLite.Database) {
 }
 
 const LOCAL_DATE_TIME = /^\d{4}-\d{2}-\d{2}[T ]\d{2}:\d{2}(:\d{2}(\.\d{1,9})?)?$/;
+/** The stored form; a press feed usually sends exactly this, so it gets a fast path. */
+const CANONICAL = /^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}\.\d{3}Z$/;
+const MONTH_DAYS = [31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31];
+
+/** Date.parse rolls 30 February into March and 24:00 into the next day; refuse both. */
+function calendarFieldsValid(text: string): boolean {
+	const year = Number(text.slice(0, 4));
+	const month = Number(text.slice(5, 7));
+	const day = Number(text.slice(8, 10));
+	if (month < 1 || month > 12 || day < 1) return false;
+	const leap = month === 2 && year % 4 === 0 && (year % 100 !== 0 || year % 400 === 0);
+	if (day > MONTH_DAYS[month - 1] + (leap ? 1 : 0)) return false;
+	return text.length < 13 || Number(text.slice(11, 13)) <= 23;
+}
 
 /**
- * An instant as stored (ISO-8601 UTC), or null when the text is not a date and time. A time
- * without an offset is read as UTC — the one zone Castellan shows — whatever the server's zone.
+ * An instant as stored (ISO-8601 UTC) with its epoch milliseconds, or null when the text is not
+ * a real date and time. A time without an offset is read as UTC — the one zone Castellan shows —
+ * whatever the server's zone.
  */
-export function normalizeInstant(value: string): string | null {
+export function parseInstant(value: string): { iso: string; ms: number } | null {
 	let text = value.trim();
+	if (CANONICAL.test(text)) {
+		const ms = Date.parse(text);
+		return Number.isNaN(ms) || !calendarFieldsValid(text) ? null : { iso: text, ms };
+	}
 	if (LOCAL_DATE_TIME.test(text)) text = text.replace(' ', 'T') + 'Z';
-	if (!/^\d{4}-\d{2}-\d{2}/.test(text)) return null;
+	if (!/^\d{4}-\d{2}-\d{2}/.test(text) || !calendarFieldsValid(text)) return null;
 	const ms = Date.parse(text);
-	return Number.isNaN(ms) ? null : new Date(ms).toISOString();
+	return Number.isNaN(ms) ? null : { iso: new Date(ms).toISOString(), ms };
+}
+
+/** The stored form of an instant, or null (see parseInstant). */
+export function normalizeInstant(value: string): string | null {
+	return parseInstant(value)?.iso ?? null;
 }
 
 interface CheckedRow {
@@ -150,7 +175,7 @@ interface CheckedRow {
 }
 
 /** Sorted insert, so "latest reading before t" within a batch is a binary search. */
-function insertSorted(list: string[], value: string) {
+function insertSorted(list: number[], value: number) {
 	let lo = 0;
 	let hi = list.length;
 	while (lo < hi) {
@@ -160,8 +185,10 @@ function insertSorted(list: string[], value: string) {
 	}
 	list.splice(lo, 0, value);
 }
-function latestBefore(list: string[] | undefined, value: string): string | null {
+function latestBefore(list: number[] | undefined, value: number): number | null {
 	if (!list?.length) return null;
+	// Readings mostly arrive in time order: the last one is usually the answer.
+	if (list[list.length - 1] < value) return list[list.length - 1];
 	let lo = 0;
 	let hi = list.length;
 	while (lo < hi) {
@@ -173,7 +200,7 @@ function latestBefore(list: string[] | undefined, value: string): string | null 
 }
 
 const isCount = (v: unknown): v is number => Number.isSafeInteger(v) && (v as number) >= 0;
-const shortTime = (iso: string) => `${iso.slice(0, 16).replace('T', ' ')} UTC`;
+const shortTime = (ms: number) => `${new Date(ms).toISOString().slice(0, 16).replace('T', ' ')} UTC`;
 
 /**
  * Checks every row against the register as it is now (inside the write transaction), so the
@@ -194,11 +221,20 @@ function checkRows(
 	const machines = new Map<string, number | undefined>();
 	const batchKeys = new Set<string>();
 	// Running state per die within this batch: readings accepted so far and the running totals.
-	const readings = new Map<number, string[]>();
+	const readings = new Map<number, number[]>();
+	const lastCountedMs = new Map<number, number>();
 	const runningTotal = new Map<number, number>();
 	const runningHalf = new Map<number, number | null>();
 	const nowMs = Date.parse(opts.now);
 	const correction = opts.source === 'correction';
+	// Which of the batch's keys the ledger already holds: one index walk for the whole batch.
+	const keyOwners = new Map<string, number>();
+	const keys = inputs.map((i) => (typeof i?.key === 'string' ? i.key.trim() : '')).filter(Boolean);
+	for (let k = 0; k < keys.length; k += 1000) {
+		for (const r of st.keyOwners.all(JSON.stringify(keys.slice(k, k + 1000)))) {
+			keyOwners.set(r.idem_key, r.die_id);
+		}
+	}
 
 	inputs.forEach((input, index) => {
 		const issue = (field: string, message: string) => issues.push({ index, field, message });
@@ -263,14 +299,16 @@ function checkRows(
 		if (note.length > MAX_NOTE) return issue('note', `Keep the note under ${MAX_NOTE} characters.`);
 
 		let countedAt = opts.now;
+		let countedMs = nowMs;
 		if (input.countedAt !== undefined && input.countedAt !== null && input.countedAt !== '') {
-			const parsed = typeof input.countedAt === 'string' ? normalizeInstant(input.countedAt) : null;
+			const parsed = typeof input.countedAt === 'string' ? parseInstant(input.countedAt) : null;
 			if (!parsed) {
 				return issue('countedAt', 'Counted-at is not a date and time (use 2026-03-01T14:30:00Z).');
 			}
-			countedAt = parsed;
+			countedAt = parsed.iso;
+			countedMs = parsed.ms;
 		}
-		if (Date.parse(countedAt) - nowMs > MAX_FUTURE_MS) {
+		if (countedMs - nowMs > MAX_FUTURE_MS) {
 			return issue('countedAt', 'Counted-at is more than a day in the future.');
 		}
 		if (countedAt < EARLIEST) return issue('countedAt', 'Counted-at is before the year 2000.');
@@ -291,9 +329,9 @@ function checkRows(
 				return issue('key', `The key "${key}" appears twice in this batch; give each entry its own.`);
 			}
 			batchKeys.add(key);
-			const owner = st.keyOwner.get(key);
-			if (owner) {
-				if (owner.die_id !== die.id) {
+			const owner = keyOwners.get(key);
+			if (owner !== undefined) {
+				if (owner !== die.id) {
 					return issue('key', `The key "${key}" was already used for another die's count.`);
 				}
 				rows.push({ index, die, machineId, countedAt, key, duplicate: true, input });
@@ -320,28 +358,31 @@ function checkRows(
 		}
 
 		if (!correction) {
-			const inBatch = latestBefore(readings.get(die.id), countedAt);
-			let inLedger: string | null = null;
+			const inBatch = latestBefore(readings.get(die.id), countedMs);
+			let inLedger: number | null = null;
 			if (die.last_counted_at !== null) {
-				inLedger =
-					countedAt > die.last_counted_at
-						? die.last_counted_at
-						: (st.previousReading.get(die.id, countedAt)?.counted_at ?? null);
+				let last = lastCountedMs.get(die.id);
+				if (last === undefined) lastCountedMs.set(die.id, (last = Date.parse(die.last_counted_at)));
+				if (countedMs > last) inLedger = last;
+				else {
+					const before = st.previousReading.get(die.id, countedAt)?.counted_at;
+					inLedger = before ? Date.parse(before) : null;
+				}
 			}
-			const previous = inBatch && (!inLedger || inBatch > inLedger) ? inBatch : inLedger;
-			if (previous) {
+			const previous = inBatch !== null && (inLedger === null || inBatch > inLedger) ? inBatch : inLedger;
+			if (previous !== null) {
 				const perHour = maxShotsPerHour(die.process, die.family);
-				const limit = maxShotsIn(Date.parse(countedAt) - Date.parse(previous), perHour);
+				const limit = maxShotsIn(countedMs - previous, perHour);
 				if (shots > limit) {
 					return issue(
 						'shots',
-						`${shots} shots between the previous count (${shortTime(previous)}) and this one (${shortTime(countedAt)}) is more than a press can make: at most ${limit} at ${perHour} shots/h.`
+						`${shots} shots between the previous count (${shortTime(previous)}) and this one (${shortTime(countedMs)}) is more than a press can make: at most ${limit} at ${perHour} shots/h.`
 					);
 				}
 			}
 			let list = readings.get(die.id);
 			if (!list) readings.set(die.id, (list = []));
-			insertSorted(list, countedAt);
+			insertSorted(list, countedMs);
 		}
 		runningTotal.set(die.id, total + shots);
 		if (halfLow !== null) runningHalf.set(die.id, halfLow + shots);
@@ -400,7 +441,7 @@ export async function recordShots(
 			]
 		};
 	}
-	const now = options.now ?? new Date().toISOString();
+	const now = (options.now && normalizeInstant(options.now)) || new Date().toISOString();
 	const source = options.source;
 	const raw = rawHandle(db);
 	return db.connection().execute(async () => {
@@ -419,20 +460,20 @@ export async function recordShots(
 			for (const row of rows) {
 				if (row.duplicate) continue;
 				const shots = row.input.shots;
-				st.insert.run({
-					dieId: row.die.id,
-					machineId: row.machineId,
-					countedAt: row.countedAt,
+				st.insert.run(
+					row.die.id,
+					row.machineId,
+					row.countedAt,
 					shots,
-					counterStart: row.input.counterStart ?? null,
-					counterEnd: row.input.counterEnd ?? null,
+					row.input.counterStart ?? null,
+					row.input.counterEnd ?? null,
 					source,
-					key: row.key,
-					userId: actor.userId,
-					tokenId: actor.tokenId,
-					note: row.input.note?.trim() || null,
-					createdAt: now
-				});
+					row.key,
+					actor.userId,
+					actor.tokenId,
+					row.input.note?.trim() || null,
+					now
+				);
 				const day = row.countedAt.slice(0, 10);
 				const dayKey = `${row.die.id}|${day}`;
 				const d = daily.get(dayKey);

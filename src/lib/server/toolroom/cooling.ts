@@ -41,7 +41,11 @@ export async function addCircuit(
 	const { form, actor } = input;
 	const at = input.at ?? nowIso();
 	if (!canLeadToolroom(actor.role)) {
-		return { ok: false, status: 403, message: 'Only the toolroom lead may define cooling circuits.' };
+		return {
+			ok: false,
+			status: 403,
+			message: 'Only the toolroom lead may define cooling circuits.'
+		};
 	}
 	return db.transaction().execute(async (trx) => {
 		const clash = await trx
@@ -181,8 +185,16 @@ export async function recordCheck(
 		const missing = (
 			[
 				['oilDensityKgM3', form.oilDensityKgM3, 'Enter the oil density (data sheet), kg/m³.'],
-				['oilViscosityMpaS', form.oilViscosityMpaS, 'Enter the oil viscosity at working temperature, mPa·s.'],
-				['oilSpecificHeatJKgK', form.oilSpecificHeatJKgK, 'Enter the oil’s specific heat, J/(kg·K).']
+				[
+					'oilViscosityMpaS',
+					form.oilViscosityMpaS,
+					'Enter the oil viscosity at working temperature, mPa·s.'
+				],
+				[
+					'oilSpecificHeatJKgK',
+					form.oilSpecificHeatJKgK,
+					'Enter the oil’s specific heat, J/(kg·K).'
+				]
 			] as const
 		).find(([, value]) => value === null);
 		if (missing) return { ok: false, status: 400, field: missing[0], message: missing[2] };

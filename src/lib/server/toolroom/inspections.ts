@@ -7,7 +7,12 @@ import { crackTrend, DEFAULT_REPAIR_GRADE, type CrackTrend } from '../../calc/cr
 import { MAX_PHOTOS_PER_UPLOAD, type InspectionForm } from '../../schemas/toolroom';
 import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
-import { preparePhotos, storePhotoFilesWith, type PhotoProblem, type UploadedFile } from '../photos/store';
+import {
+	preparePhotos,
+	storePhotoFilesWith,
+	type PhotoProblem,
+	type UploadedFile
+} from '../photos/store';
 import { nowIso } from '../time';
 import { canWorkToolroom } from './access';
 import type { Actor } from './jobs';
@@ -36,7 +41,12 @@ export async function recordInspection(
 	const at = input.at ?? nowIso();
 	const { form, actor } = input;
 	if (!canWorkToolroom(actor.role)) {
-		return { ok: false, status: 403, message: 'Your role may not record inspections.', problems: [] };
+		return {
+			ok: false,
+			status: 403,
+			message: 'Your role may not record inspections.',
+			problems: []
+		};
 	}
 	const die = await db
 		.selectFrom('dies')
@@ -176,7 +186,10 @@ function summariseZones(rows: InspectionRow[], dieTotal: number, repairGrade: nu
 		});
 	}
 	return zones.sort(
-		(a, b) => b.latest.grade - a.latest.grade || a.half.localeCompare(b.half) || a.zone.localeCompare(b.zone)
+		(a, b) =>
+			b.latest.grade - a.latest.grade ||
+			a.half.localeCompare(b.half) ||
+			a.zone.localeCompare(b.zone)
 	);
 }
 
@@ -190,9 +203,7 @@ export async function getSurfaceOverview(
 	const rows = await inspectionRows(db, die.id);
 	const zones = summariseZones(rows, die.total_shots, repairGrade);
 	const selected = zones.find((z) => z.key === options.zone) ?? zones[0] ?? null;
-	const timelineRows = selected
-		? rows.filter((r) => zoneKey(r.half, r.zone) === selected.key)
-		: [];
+	const timelineRows = selected ? rows.filter((r) => zoneKey(r.half, r.zone) === selected.key) : [];
 	const photos = await listInspectionPhotos(
 		db,
 		timelineRows.map((r) => r.id)

@@ -97,10 +97,19 @@ async function setDieStatus(
 	at: string
 ) {
 	if (die.status === to) return;
-	await trx.updateTable('dies').set({ status: to, updated_at: at }).where('id', '=', die.id).execute();
+	await trx
+		.updateTable('dies')
+		.set({ status: to, updated_at: at })
+		.where('id', '=', die.id)
+		.execute();
 	await writeAudit(
 		trx,
-		{ userId: actorId, action: 'die.status', dieId: die.id, detail: { from: die.status, to, reason } },
+		{
+			userId: actorId,
+			action: 'die.status',
+			dieId: die.id,
+			detail: { from: die.status, to, reason }
+		},
 		at
 	);
 }
@@ -228,7 +237,14 @@ export async function openJob(
 			at
 		);
 		if (form.dieToToolroom) {
-			await setDieStatus(trx, die, 'in_toolroom', `Toolroom job ${number} opened`, actor.userId, at);
+			await setDieStatus(
+				trx,
+				die,
+				'in_toolroom',
+				`Toolroom job ${number} opened`,
+				actor.userId,
+				at
+			);
 		}
 		return { ok: true, number } as const;
 	});

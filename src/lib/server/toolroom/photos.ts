@@ -78,7 +78,11 @@ async function findTarget(db: DB, target: PhotoTarget) {
 		.where('id', '=', target.inspectionId)
 		.executeTakeFirst();
 	return (
-		inspection && { dieId: inspection.die_id, label: `inspection ${inspection.id}`, cancelled: false }
+		inspection && {
+			dieId: inspection.die_id,
+			label: `inspection ${inspection.id}`,
+			cancelled: false
+		}
 	);
 }
 
@@ -103,7 +107,8 @@ export async function uploadPhotos(
 		return { ok: false, status: 403, message: 'Your role may not add photos.', problems: [] };
 	}
 	const target = await findTarget(db, input.target);
-	if (!target) return { ok: false, status: 404, message: 'That record does not exist.', problems: [] };
+	if (!target)
+		return { ok: false, status: 404, message: 'That record does not exist.', problems: [] };
 	if (target.cancelled) {
 		return {
 			ok: false,

@@ -29,7 +29,10 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	cancel: async (event) => {
 		const user = requireRole(event, ...BOOKING_EDITORS);
-		const form = await superValidate<Schema, CancelMessage>(event.request, zod4(cancelBookingSchema));
+		const form = await superValidate<Schema, CancelMessage>(
+			event.request,
+			zod4(cancelBookingSchema)
+		);
 		if (!form.valid) return fail(400, { cancelForm: form });
 		const result = await cancelBooking(
 			getDb(),
@@ -37,7 +40,8 @@ export const actions: Actions = {
 			{ userId: user.id, tokenId: null, customerId: null },
 			form.data.reason
 		);
-		if (!result.ok) return message(form, { ok: false, text: result.message }, { status: result.status });
+		if (!result.ok)
+			return message(form, { ok: false, text: result.message }, { status: result.status });
 		return message(form, { ok: true, text: 'The booking is cancelled; its slot is free again.' });
 	}
 };

@@ -4,7 +4,11 @@ import { zod4 } from 'sveltekit-superforms/adapters';
 import { bookingFormSchema } from '$lib/schemas/schedule';
 import { requireRole } from '$lib/server/auth/guard';
 import { getDb } from '$lib/server/db';
-import { bookingFormDefaults, submitBookingForm, type BookingMessage } from '$lib/server/schedule/booking-form';
+import {
+	bookingFormDefaults,
+	submitBookingForm,
+	type BookingMessage
+} from '$lib/server/schedule/booking-form';
 import { listPressOptions } from '$lib/server/schedule/presses';
 import { BOOKING_EDITORS } from '$lib/roles';
 import type { Actions, PageServerLoad } from './$types';
@@ -14,9 +18,13 @@ type Schema = Infer<typeof bookingFormSchema>;
 export const load: PageServerLoad = async (event) => {
 	const user = requireRole(event, ...BOOKING_EDITORS);
 	const [form, presses] = await Promise.all([
-		superValidate<Schema, BookingMessage>(bookingFormDefaults(event.url.searchParams), zod4(bookingFormSchema), {
-			errors: false
-		}),
+		superValidate<Schema, BookingMessage>(
+			bookingFormDefaults(event.url.searchParams),
+			zod4(bookingFormSchema),
+			{
+				errors: false
+			}
+		),
 		listPressOptions(getDb())
 	]);
 	return { form, presses, unitSystem: user.unitSystem };
@@ -25,7 +33,10 @@ export const load: PageServerLoad = async (event) => {
 export const actions: Actions = {
 	default: async (event) => {
 		const user = requireRole(event, ...BOOKING_EDITORS);
-		const form = await superValidate<Schema, BookingMessage>(event.request, zod4(bookingFormSchema));
+		const form = await superValidate<Schema, BookingMessage>(
+			event.request,
+			zod4(bookingFormSchema)
+		);
 		if (!form.valid) return fail(400, { form });
 		const outcome = await submitBookingForm(
 			getDb(),

@@ -6,34 +6,16 @@ import {
 	cancelJobSchema,
 	closeJobSchema,
 	jobStatusSchema,
-	MAX_PHOTOS_PER_UPLOAD,
 	photoShareSchema
 } from '$lib/schemas/toolroom';
 import { requireRole } from '$lib/server/auth/guard';
 import { getDb } from '$lib/server/db';
-import { viewServiceTask } from '$lib/server/dies/service-summary';
-import { MAX_PHOTO_BYTES, MAX_PHOTO_PIXELS } from '$lib/server/photos/process-image';
 import { selectedFiles } from '$lib/server/photos/store';
 import { getUploadDir } from '$lib/server/photos/upload-dir';
-import {
-	canLeadToolroom,
-	canWorkToolroom,
-	TOOLROOM_READERS,
-	TOOLROOM_WORKERS
-} from '$lib/server/toolroom/access';
-import {
-	assignJob,
-	cancelJob,
-	closeJob,
-	getJob,
-	isActiveJob,
-	JOB_MOVES,
-	jobAgeDays,
-	listAssignees,
-	moveJob
-} from '$lib/server/toolroom/jobs';
-import { listJobPhotos, setPhotoShared, uploadPhotos } from '$lib/server/toolroom/photos';
-import { nowIso } from '$lib/server/time';
+import { TOOLROOM_READERS, TOOLROOM_WORKERS } from '$lib/server/toolroom/access';
+import { getJobPage } from '$lib/server/toolroom/job-page';
+import { assignJob, cancelJob, closeJob, getJob, moveJob } from '$lib/server/toolroom/jobs';
+import { setPhotoShared, uploadPhotos } from '$lib/server/toolroom/photos';
 import type { Actions, PageServerLoad } from './$types';
 
 async function loadJob(number: string) {
@@ -45,48 +27,13 @@ async function loadJob(number: string) {
 export const load: PageServerLoad = async (event) => {
 	const user = requireRole(event, ...TOOLROOM_READERS);
 	const job = await loadJob(event.params.job);
-	const db = getDb();
-	const asOf = nowIso();
-	const [photos, assignees, closeForm, cancelForm, assignForm] = await Promise.all([
-		listJobPhotos(db, job.id),
-		listAssignees(db),
+	const [page, closeForm, cancelForm, assignForm] = await Promise.all([
+		getJobPage(getDb(), job, user.role),
 		superValidate(zod4(closeJobSchema), { id: 'close' }),
 		superValidate(zod4(cancelJobSchema), { id: 'cancel' }),
 		superValidate({ assignedTo: job.assigned_to ?? '' }, zod4(assignJobSchema), { id: 'assign' })
 	]);
-	const active = isActiveJob(job.status);
-	return {
-		job,
-		tasks: job.tasks.map((t) => ({
-			...viewServiceTask(
-				{
-					id: t.id,
-					kind: t.kind,
-					interval_shots: t.intervalShots,
-					interval_days: t.intervalDays,
-					last_done_at: t.lastDoneAt,
-					last_done_shots: t.lastDoneShots
-				},
-				job.dieTotalShots,
-				asOf
-			),
-			doneAtShots: t.doneAtShots
-		})),
-		ageDays: jobAgeDays(job.opened_at, job.closed_at ?? asOf),
-		photos,
-		assignees,
-		closeForm,
-		cancelForm,
-		assignForm,
-		moves: active ? JOB_MOVES[job.status as keyof typeof JOB_MOVES] : [],
-		canWork: canWorkToolroom(user.role),
-		canLead: canLeadToolroom(user.role),
-		limits: {
-			maxFiles: MAX_PHOTOS_PER_UPLOAD,
-			maxBytes: MAX_PHOTO_BYTES,
-			maxMegapixels: MAX_PHOTO_PIXELS / 1e6
-		}
-	};
+	return { ...page, closeForm, cancelForm, assignForm };
 };
 
 export const actions: Actions = {
@@ -150,7 +97,11 @@ export const actions: Actions = {
 			data = await event.request.formData();
 		} catch {
 			// The body was cut off: over the server's size limit, or the connection dropped.
-			const upload = { ok: false, message: 'The upload did not arrive whole. Send fewer photos at once.', problems: [] };
+			const upload = {
+				ok: false,
+				message: 'The upload did not arrive whole. Send fewer photos at once.',
+				problems: []
+			};
 			return fail(413, { upload });
 		}
 		const result = await uploadPhotos(getDb(), {
@@ -180,6 +131,8 @@ export const actions: Actions = {
 			actor: { userId: user.id, role: user.role }
 		});
 		if (!result.ok) return fail(result.status, { shareError: result.message });
-		return { shareMessage: parsed.data.shared ? 'Photo shared with the owner.' : 'Photo no longer shared.' };
+		return {
+			shareMessage: parsed.data.shared ? 'Photo shared with the owner.' : 'Photo no longer shared.'
+		};
 	}
 };

@@ -18,7 +18,8 @@ import { nowIso } from '$lib/server/time';
 export const GET = apiRoute(async (event) => {
 	const principal = await authorizeApi(event, 'dies:read');
 	const parsed = bookingWindowQuerySchema.safeParse(Object.fromEntries(event.url.searchParams));
-	if (!parsed.success) throw new ApiError(400, 'Give from and to as dates.', issuesOf(parsed.error));
+	if (!parsed.success)
+		throw new ApiError(400, 'Give from and to as dates.', issuesOf(parsed.error));
 	const q = parsed.data;
 	const { start, end } = windowBounds(q.from, q.to);
 	const rows = await listBookingsInWindow(
@@ -35,7 +36,8 @@ export const GET = apiRoute(async (event) => {
 export const POST = apiRoute(async (event) => {
 	const principal = await authorizeApi(event, 'bookings:write');
 	const parsed = bookingApiSchema.safeParse(await readJsonBody(event.request, 20_000));
-	if (!parsed.success) throw new ApiError(400, 'The booking is not complete.', issuesOf(parsed.error));
+	if (!parsed.success)
+		throw new ApiError(400, 'The booking is not complete.', issuesOf(parsed.error));
 	const db = getDb();
 	const result = await createBooking(
 		db,
@@ -46,7 +48,10 @@ export const POST = apiRoute(async (event) => {
 	if (!result.ok) throw bookingRefusal(result);
 	const booking = await getBooking(db, result.id, { customerId: principal.customerId });
 	return json(
-		{ booking: bookingApiView(booking!, nowIso()), warnings: result.warnings.map((w) => w.message) },
+		{
+			booking: bookingApiView(booking!, nowIso()),
+			warnings: result.warnings.map((w) => w.message)
+		},
 		{ status: 201, headers: { location: `/bookings/${result.id}` } }
 	);
 });

@@ -98,7 +98,9 @@ export const actions: Actions = {
 		});
 		if (!result.ok) {
 			if (result.field) {
-				return setError(form, result.field as 'circuitId', result.message, { status: result.status });
+				return setError(form, result.field as 'circuitId', result.message, {
+					status: result.status
+				});
 			}
 			return message(form, result.message, { status: result.status });
 		}

@@ -36,7 +36,8 @@ export const load: PageServerLoad = async (event) => {
 	// Opened from a service task (?task=) or a service notice (?notice=): start from that.
 	const fromTask = tasks.find((t) => t.id === positiveInt(event.url.searchParams.get('task')));
 	const noticeId = positiveInt(event.url.searchParams.get('notice'));
-	const kind = fromTask && (JOB_KINDS as readonly string[]).includes(fromTask.kind) ? fromTask.kind : 'repair';
+	const kind =
+		fromTask && (JOB_KINDS as readonly string[]).includes(fromTask.kind) ? fromTask.kind : 'repair';
 	const form = await superValidate(
 		{
 			kind: kind as (typeof JOB_KINDS)[number],

@@ -68,7 +68,12 @@ export const actions: Actions = {
 			form.message = result.message;
 			return fail(result.status, { form, photoProblems: result.problems });
 		}
-		const photos = result.photos ? ` with ${result.photos} photo${result.photos === 1 ? '' : 's'}` : '';
-		return message(form, `Inspection recorded: grade ${form.data.grade} at ${form.data.shotsAt} shots${photos}.`);
+		const photos = result.photos
+			? ` with ${result.photos} photo${result.photos === 1 ? '' : 's'}`
+			: '';
+		return message(
+			form,
+			`Inspection recorded: grade ${form.data.grade} at ${form.data.shotsAt} shots${photos}.`
+		);
 	}
 };
