@@ -6,7 +6,6 @@ import type { Kysely } from 'kysely';
 // "newest 50" is an index walk, never a sort of millions of rows. Per-die reads already have
 // shot_entries_die_time.
 
-// eslint-disable-next-line @typescript-eslint/no-explicit-any
 export async function up(db: Kysely<any>): Promise<void> {
 	await db.schema
 		.createIndex('shot_entries_time')
@@ -25,7 +24,6 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.execute();
 }
 
-// eslint-disable-next-line @typescript-eslint/no-explicit-any
 export async function down(db: Kysely<any>): Promise<void> {
 	await db.schema.dropIndex('shot_entries_machine_time').execute();
 	await db.schema.dropIndex('shot_entries_source_time').execute();

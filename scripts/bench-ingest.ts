@@ -29,6 +29,7 @@ const ENTRIES = 200_000;
 const BATCH = 1000;
 const DIES_PER_BATCH = 20;
 const STEP_MS = 10 * 60_000;
+const ROUNDS = Number(process.env.BENCH_ROUNDS ?? 3);
 const NOW = '2027-03-01T08:00:00.000Z';
 
 interface Entry {
@@ -48,7 +49,7 @@ function makeBatches(dies: { number: string; hot: boolean }[]): string[] {
 	const perDie = BATCH / DIES_PER_BATCH;
 	const batches: string[] = [];
 	for (let b = 0; b < ENTRIES / BATCH; b++) {
-		const group = dies.slice((b % groups) * DIES_PER_BATCH, (b % groups + 1) * DIES_PER_BATCH);
+		const group = dies.slice((b % groups) * DIES_PER_BATCH, ((b % groups) + 1) * DIES_PER_BATCH);
 		const entries: Entry[] = [];
 		for (let r = 0; r < perDie; r++) {
 			for (const d of group) {
@@ -77,7 +78,15 @@ async function freshPlant(dir: string, name: string): Promise<DB> {
 	return db;
 }
 
-export async function run(): Promise<Figure[]> {
+interface Round {
+	apiSeconds: number;
+	apiCpu: number;
+	rawSeconds: number;
+	rawCpu: number;
+}
+
+/** One round on two fresh databases: the API handler path first, then raw inserts. */
+async function runRound(): Promise<Round> {
 	const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'castellan-bench-ingest-'));
 	const apiDb = await freshPlant(dir, 'api.db');
 	const rawDb = await freshPlant(dir, 'raw.db');
@@ -102,11 +111,12 @@ export async function run(): Promise<Figure[]> {
 		for (const text of batches) {
 			const principal = await findActiveToken(apiDb, token);
 			if (!principal) throw new Error('bench token not found');
-			const answer = await ingestShotBody(apiDb, JSON.parse(text), {
-				userId: null,
-				tokenId: principal.tokenId,
-				customerId: principal.customerId
-			}, NOW);
+			const answer = await ingestShotBody(
+				apiDb,
+				JSON.parse(text),
+				{ userId: null, tokenId: principal.tokenId, customerId: principal.customerId },
+				NOW
+			);
 			if (answer.status !== 201 || !('accepted' in answer.body)) {
 				throw new Error(`bench batch refused: ${JSON.stringify(answer.body).slice(0, 400)}`);
 			}
@@ -118,10 +128,14 @@ export async function run(): Promise<Figure[]> {
 		// Raw inserts of the same rows, one transaction.
 		const raw = rawHandle(rawDb);
 		const ids = new Map(
-			(raw.prepare('select id, number from dies').all() as { id: number; number: string }[]).map((d) => [d.number, d.id])
+			(raw.prepare('select id, number from dies').all() as { id: number; number: string }[]).map(
+				(d) => [d.number, d.id]
+			)
 		);
 		const presses = new Map(
-			(raw.prepare('select id, name from machines').all() as { id: number; name: string }[]).map((m) => [m.name, m.id])
+			(raw.prepare('select id, name from machines').all() as { id: number; name: string }[]).map(
+				(m) => [m.name, m.id]
+			)
 		);
 		const rows = batches.flatMap((text) => JSON.parse(text) as Entry[]);
 		const insert = raw.prepare(
@@ -131,7 +145,9 @@ export async function run(): Promise<Figure[]> {
 		const t1 = performance.now();
 		const c1 = process.cpuUsage();
 		raw.transaction(() => {
-			for (const r of rows) insert.run(ids.get(r.die), presses.get(r.machine), r.countedAt, r.shots, r.key, NOW);
+			for (const r of rows) {
+				insert.run(ids.get(r.die), presses.get(r.machine), r.countedAt, r.shots, r.key, NOW);
+			}
 		})();
 		const rawSeconds = (performance.now() - t1) / 1000;
 		const rawCpu = cpuSeconds(process.cpuUsage(c1));
@@ -146,34 +162,64 @@ export async function run(): Promise<Figure[]> {
 		if (accepted !== ENTRIES || check.ledger !== check.dies || check.ledger !== check.daily) {
 			throw new Error(`bench totals disagree: ${accepted} accepted, ${JSON.stringify(check)}`);
 		}
-
-		const apiRate = ENTRIES / apiSeconds;
-		const rawRate = ENTRIES / rawSeconds;
-		const ratio = apiRate / rawRate;
-		console.log(
-			`  API path ${Math.round(apiRate).toLocaleString('en-GB')} entries/s (${apiSeconds.toFixed(2)} s), raw inserts ${Math.round(rawRate).toLocaleString('en-GB')} entries/s (${rawSeconds.toFixed(2)} s); load average ${os.loadavg()[0].toFixed(1)}`
-		);
-		// On a shared machine wall time carries other processes' load; CPU time shows the work.
-		console.log(
-			`  CPU time: API path ${apiCpu.toFixed(2)} s, raw ${rawCpu.toFixed(2)} s → CPU-time ratio ${(rawCpu / apiCpu).toFixed(2)}`
-		);
-		return [
-			{ figure: 'ingest via API handler path', value: apiRate, unit: 'entries/s', target: 'info', pass: true },
-			{ figure: 'ingest via raw inserts', value: rawRate, unit: 'entries/s', target: 'info', pass: true },
-			{
-				figure: 'ingest API / raw rate',
-				value: ratio,
-				unit: '×',
-				target: '≥ 0.5',
-				pass: ratio >= 0.5,
-				ratio
-			}
-		];
+		return { apiSeconds, apiCpu, rawSeconds, rawCpu };
 	} finally {
 		await apiDb.destroy();
 		await rawDb.destroy();
 		fs.rmSync(dir, { recursive: true, force: true });
 	}
+}
+
+export async function run(): Promise<Figure[]> {
+	// Other processes on a shared machine only ever make a run slower: best of three per path.
+	const rounds: Round[] = [];
+	for (let i = 0; i < ROUNDS; i++) {
+		const r = await runRound();
+		rounds.push(r);
+		console.log(
+			`  round ${i + 1}: API path ${r.apiSeconds.toFixed(2)} s (CPU ${r.apiCpu.toFixed(2)} s), raw ${r.rawSeconds.toFixed(2)} s (CPU ${r.rawCpu.toFixed(2)} s); load average ${os.loadavg()[0].toFixed(1)}`
+		);
+	}
+	const best = (k: keyof Round) => Math.min(...rounds.map((r) => r[k]));
+	const apiRate = ENTRIES / best('apiSeconds');
+	const rawRate = ENTRIES / best('rawSeconds');
+	const ratio = apiRate / rawRate;
+	const cpuRatio = best('rawCpu') / best('apiCpu');
+	console.log(
+		`  API path ${Math.round(apiRate).toLocaleString('en-GB')} entries/s, raw inserts ${Math.round(rawRate).toLocaleString('en-GB')} entries/s, ratio ${ratio.toFixed(2)} (by CPU time ${cpuRatio.toFixed(2)})`
+	);
+	return [
+		{
+			figure: 'ingest via API handler path',
+			value: apiRate,
+			unit: 'entries/s',
+			target: 'info',
+			pass: true
+		},
+		{
+			figure: 'ingest via raw inserts',
+			value: rawRate,
+			unit: 'entries/s',
+			target: 'info',
+			pass: true
+		},
+		{
+			figure: 'ingest API / raw rate',
+			value: ratio,
+			unit: '×',
+			target: '≥ 0.5',
+			pass: ratio >= 0.5,
+			ratio
+		},
+		{
+			figure: 'ingest API / raw, by CPU time',
+			value: cpuRatio,
+			unit: '×',
+			target: '≥ 0.5',
+			pass: cpuRatio >= 0.5,
+			ratio: cpuRatio
+		}
+	];
 }
 
 function isMain(): boolean {

@@ -62,11 +62,20 @@ const PRESSES = [
  * Owners, presses, users, `dies` dies (D-00001 …) with both halves and a service plan from the
  * family templates, in one transaction. Die ids are 1…dies on a fresh database.
  */
-export function createBenchPlant(db: DB, dies = BENCH_DIES, createdAt = '2024-01-01T00:00:00.000Z') {
+export function createBenchPlant(
+	db: DB,
+	dies = BENCH_DIES,
+	createdAt = '2024-01-01T00:00:00.000Z'
+) {
 	const raw = rawHandle(db);
 	const rand = random(11);
-	const alloys = raw.prepare('select id, family from alloys order by id').all() as { id: number; family: string }[];
-	const templates = raw.prepare('select family, kind, interval_shots, interval_days from service_templates').all() as {
+	const alloys = raw.prepare('select id, family from alloys order by id').all() as {
+		id: number;
+		family: string;
+	}[];
+	const templates = raw
+		.prepare('select family, kind, interval_shots, interval_days from service_templates')
+		.all() as {
 		family: string;
 		kind: string;
 		interval_shots: number | null;
@@ -74,8 +83,11 @@ export function createBenchPlant(db: DB, dies = BENCH_DIES, createdAt = '2024-01
 	}[];
 	raw.transaction(() => {
 		const customer = raw.prepare('insert into customers (code, name) values (?, ?)');
-		for (let c = 1; c <= 20; c++) customer.run(`OWN${String(c).padStart(2, '0')}`, `Bench owner ${c}`);
-		const press = raw.prepare('insert into machines (name, chamber, clamp_force_kn) values (?, ?, ?)');
+		for (let c = 1; c <= 20; c++)
+			customer.run(`OWN${String(c).padStart(2, '0')}`, `Bench owner ${c}`);
+		const press = raw.prepare(
+			'insert into machines (name, chamber, clamp_force_kn) values (?, ?, ?)'
+		);
 		for (const p of PRESSES) press.run(...p);
 		raw
 			.prepare(
@@ -102,7 +114,20 @@ export function createBenchPlant(db: DB, dies = BENCH_DIES, createdAt = '2024-01
 			const number = `D-${String(i).padStart(5, '0')}`;
 			const status = i % 23 === 0 ? 'retired' : i % 7 === 0 ? 'running' : 'ready';
 			const id = Number(
-				die.run(number, `Bench part ${i}`, `BP-${i}`, 1 + (i % 20), alloy.id, hot ? 'hot_chamber' : 'cold_chamber', 1 + (i % 4), 100 + Math.round(rand() * 900), i % 3 === 0 ? 1 : 0, status, createdAt, createdAt).lastInsertRowid
+				die.run(
+					number,
+					`Bench part ${i}`,
+					`BP-${i}`,
+					1 + (i % 20),
+					alloy.id,
+					hot ? 'hot_chamber' : 'cold_chamber',
+					1 + (i % 4),
+					100 + Math.round(rand() * 900),
+					i % 3 === 0 ? 1 : 0,
+					status,
+					createdAt,
+					createdAt
+				).lastInsertRowid
 			);
 			half.run(id, 'cover', `${number}-C1`, createdAt);
 			half.run(id, 'ejector', `${number}-E1`, createdAt);
@@ -125,7 +150,9 @@ export function fillLedger(db: DB, rows: number, dies: number) {
 	raw.pragma('synchronous = OFF');
 	raw.pragma('cache_size = -262144');
 	const indexes = raw
-		.prepare(`select name, sql from sqlite_master where type = 'index' and tbl_name = 'shot_entries' and sql is not null`)
+		.prepare(
+			`select name, sql from sqlite_master where type = 'index' and tbl_name = 'shot_entries' and sql is not null`
+		)
 		.all() as { name: string; sql: string }[];
 	for (const i of indexes) raw.exec(`drop index ${i.name}`);
 	const slots = Math.ceil(rows / dies);
@@ -152,7 +179,9 @@ export function fillLedger(db: DB, rows: number, dies: number) {
 			`update dies set
 			   total_shots = coalesce((select sum(shots) from shot_daily d where d.die_id = dies.id), 0)`
 		);
-		raw.exec(`update die_halves set shots = (select total_shots from dies where dies.id = die_halves.die_id)`);
+		raw.exec(
+			`update die_halves set shots = (select total_shots from dies where dies.id = die_halves.die_id)`
+		);
 	})();
 	for (const i of indexes) raw.exec(i.sql);
 	raw.exec(
@@ -195,7 +224,10 @@ async function timeLoads(db: DB, dies: number): Promise<Timings> {
 		});
 	const out: Timings = {};
 	out.register = await time(RUNS, () =>
-		Promise.all([listDies(db, registerQuery(), { customerId: null }, NOW), listOwnerOptions(db, { customerId: null })])
+		Promise.all([
+			listDies(db, registerQuery(), { customerId: null }, NOW),
+			listOwnerOptions(db, { customerId: null })
+		])
 	);
 	out.dieOverview = await time(RUNS, async () => {
 		const die = await findDie(db, dieNumber(), { customerId: null });
@@ -246,7 +278,9 @@ async function buildAndTime(rows: number): Promise<{ timings: Timings; seconds: 
 		createBenchPlant(db, BENCH_DIES);
 		fillLedger(db, rows, BENCH_DIES);
 		const seconds = (performance.now() - t0) / 1000;
-		console.log(`  ${rows.toLocaleString('en-GB')} entries, ${BENCH_DIES} dies generated in ${seconds.toFixed(1)} s`);
+		console.log(
+			`  ${rows.toLocaleString('en-GB')} entries, ${BENCH_DIES} dies generated in ${seconds.toFixed(1)} s`
+		);
 		return { timings: await timeLoads(db, BENCH_DIES), seconds };
 	} finally {
 		await db.destroy();
@@ -271,9 +305,27 @@ export async function run(): Promise<Figure[]> {
 		const b = big.timings[key];
 		const s = small.timings[key];
 		figures.push(
-			{ figure: `${name} p50, ${bigLabel} rows`, value: b.p50, unit: 'ms', target: `< ${TARGET_MS} ms`, pass: b.p50 < TARGET_MS },
-			{ figure: `${name} p95, ${bigLabel} rows`, value: b.p95, unit: 'ms', target: `< ${TARGET_MS} ms`, pass: b.p95 < TARGET_MS },
-			{ figure: `${name} p95, 1M rows`, value: s.p95, unit: 'ms', target: `< ${TARGET_MS} ms`, pass: s.p95 < TARGET_MS },
+			{
+				figure: `${name} p50, ${bigLabel} rows`,
+				value: b.p50,
+				unit: 'ms',
+				target: `< ${TARGET_MS} ms`,
+				pass: b.p50 < TARGET_MS
+			},
+			{
+				figure: `${name} p95, ${bigLabel} rows`,
+				value: b.p95,
+				unit: 'ms',
+				target: `< ${TARGET_MS} ms`,
+				pass: b.p95 < TARGET_MS
+			},
+			{
+				figure: `${name} p95, 1M rows`,
+				value: s.p95,
+				unit: 'ms',
+				target: `< ${TARGET_MS} ms`,
+				pass: s.p95 < TARGET_MS
+			},
 			{
 				// Small absolute times are noisy; grow means worse than 2× and more than 5 ms slower.
 				figure: `${name} p95 growth 1M → ${bigLabel}`,

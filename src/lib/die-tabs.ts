@@ -8,5 +8,6 @@ export const DIE_TABS: { path: string; label: string; roles?: RoleName[] }[] = [
 	{ path: '/jobs', label: 'Toolroom jobs' },
 	{ path: '/surface', label: 'Surface' },
 	{ path: '/cooling', label: 'Cooling' },
-	{ path: '/bookings', label: 'Bookings' }
+	{ path: '/bookings', label: 'Bookings' },
+	{ path: '/sharing', label: 'Owner sharing', roles: ['admin', 'toolroom_lead'] }
 ];

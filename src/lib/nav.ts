@@ -17,6 +17,7 @@ export const NAV: Record<RoleName, NavItem[]> = {
 		{ href: '/fleet', label: 'Fleet life' },
 		{ href: '/admin/users', label: 'Users' },
 		{ href: '/admin/tokens', label: 'API tokens' },
+		{ href: '/admin/invites', label: 'Invitations' },
 		{ href: '/admin/outbox', label: 'Outbox' },
 		{ href: '/settings', label: 'Settings' }
 	],
@@ -40,5 +41,8 @@ export const NAV: Record<RoleName, NavItem[]> = {
 		{ href: '/dies', label: 'Die register' },
 		{ href: '/shots', label: 'Shot ledger' }
 	],
-	customer: [{ href: '/owner', label: 'My tooling' }]
+	customer: [
+		{ href: '/owner', label: 'My tooling' },
+		{ href: '/owner/access', label: 'API access' }
+	]
 };

@@ -29,7 +29,9 @@ test('a scheduler records a press run and sees the new total', async ({ page }, 
 
 	await page.getByLabel('Press').selectOption('HC-20');
 	await page.getByLabel('Shots', { exact: true }).fill('240');
-	await expect(page.getByText(`After saving: ${(before + 240).toLocaleString('en-GB')} shots`)).toBeVisible();
+	await expect(
+		page.getByText(`After saving: ${(before + 240).toLocaleString('en-GB')} shots`)
+	).toBeVisible();
 	await page.getByRole('button', { name: 'Count shots' }).click();
 
 	const saved = page.getByRole('status').filter({ hasText: 'Counted 240 shots on D-0115' });
@@ -42,12 +44,19 @@ test('a scheduler records a press run and sees the new total', async ({ page }, 
 	await saved.getByRole('link', { name: "See the die's shots" }).click();
 	await expect(page).toHaveURL(/\/dies\/D-0115\/shots$/);
 	await expect(page.getByText((before + 240).toLocaleString('en-GB')).first()).toBeVisible();
-	const newest = page.getByRole('table').filter({ hasText: 'Counted' }).last().locator('tbody tr').first();
+	const newest = page
+		.getByRole('table')
+		.filter({ hasText: 'Counted' })
+		.last()
+		.locator('tbody tr')
+		.first();
 	await expect(newest).toContainText('240');
 	await expect(newest).toContainText('Press-run form');
 });
 
-test('the press-run form answers a typing error beside the field and counts nothing', async ({ page }) => {
+test('the press-run form answers a typing error beside the field and counts nothing', async ({
+	page
+}) => {
 	await signIn(page, 'scheduler');
 	await page.goto('/shots/new?die=D-0115');
 	const before = shotsOf(await page.getByTestId('die-total').textContent());
@@ -60,7 +69,9 @@ test('the press-run form answers a typing error beside the field and counts noth
 	expect(shotsOf(await page.getByTestId('die-total').textContent())).toBe(before);
 });
 
-test('a toolroom lead uploads a CSV with a bad row, fixes it and commits; a second upload counts nothing', async ({ page }, info) => {
+test('a toolroom lead uploads a CSV with a bad row, fixes it and commits; a second upload counts nothing', async ({
+	page
+}, info) => {
 	await signIn(page, 'toolroom_lead');
 	await page.goto('/shots/upload');
 	const rows = [
@@ -109,9 +120,15 @@ test('a toolroom lead replaces a half and posts a correction with a reason', asy
 	await form.getByLabel('New half serial').fill('D-0113-C2');
 	await form.getByLabel('Reason').fill('Heat checking grade 4 across the cavity');
 	await form.getByRole('button', { name: 'Replace half' }).click();
-	await expect(page.getByText(/Cover half replaced: D-0113-C1 retired at [\d,]+ shots; D-0113-C2 starts at 0\./)).toBeVisible();
+	await expect(
+		page.getByText(
+			/Cover half replaced: D-0113-C1 retired at [\d,]+ shots; D-0113-C2 starts at 0\./
+		)
+	).toBeVisible();
 	await expect(cover).toHaveText('0');
-	await expect(page.getByRole('row').filter({ hasText: 'D-0113-C1' })).toContainText('Heat checking grade 4');
+	await expect(page.getByRole('row').filter({ hasText: 'D-0113-C1' })).toContainText(
+		'Heat checking grade 4'
+	);
 
 	const correct = page.locator('form[action="?/correct"]');
 	await correct.getByLabel('Shots to add').fill('-5');
@@ -123,11 +140,16 @@ test('a toolroom lead replaces a half and posts a correction with a reason', asy
 	await expect(correct.getByText(/below zero shots \(the newer half has 0\)/)).toBeVisible();
 	await correct.getByLabel('Shots to add').fill('7');
 	await correct.getByRole('button', { name: 'Post correction' }).click();
-	await expect(correct.getByText(/Correction \+7 shots posted\. Die total now [\d,]+\./)).toBeVisible();
+	await expect(
+		correct.getByText(/Correction \+7 shots posted\. Die total now [\d,]+\./)
+	).toBeVisible();
 	await expect(cover).toHaveText('7');
 });
 
-test('POST /api/v1/shots with a bearer token: 201, repeated key, 400 issues, 401, 404', async ({ page, request }) => {
+test('POST /api/v1/shots with a bearer token: 201, repeated key, 400 issues, 401, 404', async ({
+	page,
+	request
+}) => {
 	await signIn(page, 'admin');
 	await page.goto('/admin/tokens');
 	await page.getByLabel('Name').fill(`E2E shot feed ${Date.now()}`);
@@ -138,18 +160,28 @@ test('POST /api/v1/shots with a bearer token: 201, repeated key, 400 issues, 401
 	const auth = { authorization: `Bearer ${token}` };
 	const key = `e2e-${Date.now()}`;
 
-	const first = await request.post('/api/v1/shots', { headers: auth, data: { die: 'D-0118', shots: 5, machine: 'CC-40', key } });
+	const first = await request.post('/api/v1/shots', {
+		headers: auth,
+		data: { die: 'D-0118', shots: 5, machine: 'CC-40', key }
+	});
 	expect(first.status()).toBe(201);
 	const body = await first.json();
 	expect(body).toMatchObject({ accepted: 1, duplicates: 0, dies: [{ die: 'D-0118' }] });
 
-	const again = await request.post('/api/v1/shots', { headers: auth, data: [{ die: 'D-0118', shots: 5, machine: 'CC-40', key }] });
+	const again = await request.post('/api/v1/shots', {
+		headers: auth,
+		data: [{ die: 'D-0118', shots: 5, machine: 'CC-40', key }]
+	});
 	expect(again.status()).toBe(201);
 	expect(await again.json()).toEqual({ accepted: 0, duplicates: 1, dies: body.dies });
 
 	const bad = await request.post('/api/v1/shots', {
 		headers: auth,
-		data: [{ die: 'D-0118', shots: 0 }, { die: 'D-0118', shots: 'five' }, { die: 'D-0999', shots: 1 }]
+		data: [
+			{ die: 'D-0118', shots: 0 },
+			{ die: 'D-0118', shots: 'five' },
+			{ die: 'D-0999', shots: 1 }
+		]
 	});
 	expect(bad.status()).toBe(400);
 	expect(await bad.json()).toEqual({
@@ -161,18 +193,26 @@ test('POST /api/v1/shots with a bearer token: 201, repeated key, 400 issues, 401
 		]
 	});
 
-	const noToken = await request.post('/api/v1/shots', { headers: { authorization: 'Bearer cst_not-a-token' }, data: { die: 'D-0118', shots: 1 } });
+	const noToken = await request.post('/api/v1/shots', {
+		headers: { authorization: 'Bearer cst_not-a-token' },
+		data: { die: 'D-0118', shots: 1 }
+	});
 	expect(noToken.status()).toBe(401);
 	expect(await noToken.json()).toEqual({ error: 'The API token is unknown or has been revoked.' });
 
-	const unknown = await request.post('/api/v1/shots', { headers: auth, data: { die: 'D-0999', shots: 1 } });
+	const unknown = await request.post('/api/v1/shots', {
+		headers: auth,
+		data: { die: 'D-0999', shots: 1 }
+	});
 	expect(unknown.status()).toBe(404);
 	expect(await unknown.json()).toEqual({ error: 'There is no die D-0999.' });
 
 	// The signed-in admin's session is accepted too; the total only moved by the one entry.
 	const check = await page.request.get('/api/v1/dies/D-0118');
 	expect((await check.json()).totalShots).toBe(body.dies[0].totalShots);
-	const order = await page.request.get('/api/v1/dies/D-0118/order-check?parts=1000&scrapPct=2&shotsPerHour=120');
+	const order = await page.request.get(
+		'/api/v1/dies/D-0118/order-check?parts=1000&scrapPct=2&shotsPerHour=120'
+	);
 	expect(order.status()).toBe(200);
 	expect(await order.json()).toMatchObject({ die: 'D-0118', totalShots: body.dies[0].totalShots });
 });

@@ -153,3 +153,34 @@ test('a planner reads jobs but has no toolroom forms; a customer cannot fetch an
 	const toolroom = await customer.goto('/jobs');
 	expect(toolroom?.status()).toBe(403);
 });
+
+test('without JavaScript the job forms and the photo upload still work', async ({ browser }) => {
+	const context = await browser.newContext({ javaScriptEnabled: false });
+	const page = await context.newPage();
+	await signIn(page, 'toolmaker');
+	await page.goto('/dies/D-0104/jobs');
+	await page
+		.getByLabel('What is wrong or what to do')
+		.fill('Ejector plate sticks, check guide bushes');
+	await page.getByRole('checkbox', { name: /Stress relief/ }).check();
+	await page.getByRole('button', { name: 'Open job' }).click();
+	await expect(page).toHaveURL(/\/jobs\/TJ-\d{5}$/);
+	await expect(page.getByRole('row').filter({ hasText: 'Stress relief' })).toBeVisible();
+
+	// A text file renamed to .jpg is refused by content, with its name and the reason.
+	await page
+		.getByLabel('Choose photos')
+		.setInputFiles([
+			{ name: 'notes.jpg', mimeType: 'image/jpeg', buffer: Buffer.from('no cracks') }
+		]);
+	await page.getByRole('button', { name: 'Upload photos' }).click();
+	await expect(page.getByText(/notes\.jpg: Only JPEG and PNG photos are accepted/)).toBeVisible();
+	await expect(page.getByRole('heading', { name: 'Photos (0)' })).toBeVisible();
+
+	await page.getByRole('button', { name: 'Start work' }).click();
+	await expect(page.getByText('In progress').first()).toBeVisible();
+	await page.getByLabel('Findings').fill('x');
+	await page.getByRole('button', { name: 'Close job as done' }).click();
+	await expect(page.getByText('Record what you found.')).toBeVisible();
+	await context.close();
+});

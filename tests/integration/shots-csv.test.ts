@@ -27,8 +27,20 @@ describe('reading the file', () => {
 		);
 		expect(parsed.delimiter).toBe(',');
 		expect(parsed.rows.map((r) => r.input)).toEqual([
-			expect.objectContaining({ die: 'Z-0001', shots: 120, countedAt: '2026-06-10T08:00:00.000Z', machine: 'HC-08', note: 'first run, shift A' }),
-			expect.objectContaining({ die: 'A-0001', shots: 180, countedAt: '2026-06-10T07:00:00.000Z', counterStart: 1000, counterEnd: 1180 })
+			expect.objectContaining({
+				die: 'Z-0001',
+				shots: 120,
+				countedAt: '2026-06-10T08:00:00.000Z',
+				machine: 'HC-08',
+				note: 'first run, shift A'
+			}),
+			expect.objectContaining({
+				die: 'A-0001',
+				shots: 180,
+				countedAt: '2026-06-10T07:00:00.000Z',
+				counterStart: 1000,
+				counterEnd: 1180
+			})
 		]);
 		expect(parsed.rows.map((r) => r.line)).toEqual([2, 3]);
 	});
@@ -53,7 +65,9 @@ describe('reading the file', () => {
 				'Z-0001,2026-06-10 08:00,10,,'
 			].join('\n')
 		);
-		expect(parsed.rows.map((r) => [r.line, r.problem?.column ?? null, r.problem?.message ?? null])).toEqual([
+		expect(
+			parsed.rows.map((r) => [r.line, r.problem?.column ?? null, r.problem?.message ?? null])
+		).toEqual([
 			[2, 'die', 'The die is missing.'],
 			[3, 'counted_at', 'counted_at is missing.'],
 			[4, 'counted_at', '"10/06/2026" is not a date and time (use 2026-03-01 14:30).'],
@@ -72,26 +86,44 @@ describe('reading the file', () => {
 		};
 		expect(fail('')).toBe('The file is empty.');
 		expect(fail('\uFEFF  \n')).toBe('The file is empty.');
-		expect(fail('die,when,shots\nZ-0001,2026-06-10,5')).toMatch(/^The header row lacks counted_at\./);
-		expect(fail('die,counted_at,counter_start\nZ-0001,2026-06-10,5')).toMatch(/lacks shots \(or counter_start and counter_end\)/);
+		expect(fail('die,when,shots\nZ-0001,2026-06-10,5')).toMatch(
+			/^The header row lacks counted_at\./
+		);
+		expect(fail('die,counted_at,counter_start\nZ-0001,2026-06-10,5')).toMatch(
+			/lacks shots \(or counter_start and counter_end\)/
+		);
 		expect(fail('die,counted_at,shots\n')).toBe('The file has a header row but no data rows.');
-		expect(fail('die,counted_at,shots\nZ-0001,"2026-06-10,5\n')).toMatch(/^The file is not readable as CSV/);
+		expect(fail('die,counted_at,shots\nZ-0001,"2026-06-10,5\n')).toMatch(
+			/^The file is not readable as CSV/
+		);
 		const many = 'die,counted_at,shots\n' + 'Z-0001,2026-06-10 08:00,1\n'.repeat(5001);
 		expect(fail(many)).toBe('The file has 5001 data rows; upload at most 5000 at a time.');
-		const huge = 'die,counted_at,shots,note\n' + `Z-0001,2026-06-10 08:00,1,${'x'.repeat(1000)}\n`.repeat(2100);
+		const huge =
+			'die,counted_at,shots,note\n' +
+			`Z-0001,2026-06-10 08:00,1,${'x'.repeat(1000)}\n`.repeat(2100);
 		expect(fail(huge)).toBe('The file is larger than 2 MB. Split it into smaller files.');
 	});
 
 	test('the derived key depends on the reading, not on how the file spelled it', () => {
 		const a = ok('die,counted_at,shots,press\nz-0001,2026-06-10 08:00,120,hc-08').rows[0].input!;
-		const b = ok('die;counted_at;shots;press\nZ-0001;2026-06-10T08:00:00Z;120;HC-08').rows[0].input!;
+		const b = ok('die;counted_at;shots;press\nZ-0001;2026-06-10T08:00:00Z;120;HC-08').rows[0]
+			.input!;
 		const c = ok('die,counted_at,shots,press\nZ-0001,2026-06-10 08:00,121,HC-08').rows[0].input!;
 		expect(a.key).toBe(b.key);
 		expect(a.key).not.toBe(c.key);
 		expect(a.key).toBe(
-			deriveRowKey({ die: 'Z-0001', countedAt: '2026-06-10T08:00:00.000Z', shots: 120, counterStart: null, counterEnd: null, press: 'HC-08' })
+			deriveRowKey({
+				die: 'Z-0001',
+				countedAt: '2026-06-10T08:00:00.000Z',
+				shots: 120,
+				counterStart: null,
+				counterEnd: null,
+				press: 'HC-08'
+			})
 		);
-		expect(ok('die,counted_at,shots,key\nZ-0001,2026-06-10 08:00,120,gw-88').rows[0].input!.key).toBe('gw-88');
+		expect(
+			ok('die,counted_at,shots,key\nZ-0001,2026-06-10 08:00,120,gw-88').rows[0].input!.key
+		).toBe('gw-88');
 	});
 });
 
@@ -141,7 +173,10 @@ describe('preview and commit', () => {
 	test('a commit whose rows differ from the preview shows the new preview and counts nothing', async () => {
 		const before = await snapshot(p.db);
 		const r = await commitShotCsv(p.db, FILE, 3, plant, NOW);
-		expect(r).toMatchObject({ ok: false, message: expect.stringMatching(/changed since the preview \(2 valid now, 3 before\)/) });
+		expect(r).toMatchObject({
+			ok: false,
+			message: expect.stringMatching(/changed since the preview \(2 valid now, 3 before\)/)
+		});
 		expect(r.ok === false && r.preview?.valid).toBe(2);
 		expect(await snapshot(p.db)).toEqual(before);
 	});

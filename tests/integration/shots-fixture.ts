@@ -112,7 +112,10 @@ export async function ledgerState(db: DB, dieId: number) {
 		db.selectFrom('dies').select(['total_shots']).where('id', '=', dieId).executeTakeFirstOrThrow(),
 		db
 			.selectFrom('shot_entries')
-			.select((eb) => [eb.fn.coalesce(eb.fn.sum<number>('shots'), eb.lit(0)).as('sum'), eb.fn.countAll<number>().as('n')])
+			.select((eb) => [
+				eb.fn.coalesce(eb.fn.sum<number>('shots'), eb.lit(0)).as('sum'),
+				eb.fn.countAll<number>().as('n')
+			])
 			.where('die_id', '=', dieId)
 			.executeTakeFirstOrThrow(),
 		db
@@ -150,7 +153,11 @@ export async function snapshot(db: DB) {
 	const [entries, daily, dies, halves, audit] = await Promise.all([
 		db.selectFrom('shot_entries').selectAll().orderBy('id').execute(),
 		db.selectFrom('shot_daily').selectAll().orderBy('die_id').orderBy('day').execute(),
-		db.selectFrom('dies').select(['id', 'total_shots', 'last_counted_at', 'updated_at']).orderBy('id').execute(),
+		db
+			.selectFrom('dies')
+			.select(['id', 'total_shots', 'last_counted_at', 'updated_at'])
+			.orderBy('id')
+			.execute(),
 		db.selectFrom('die_halves').selectAll().orderBy('id').execute(),
 		db.selectFrom('audit_log').selectAll().orderBy('id').execute()
 	]);

@@ -1,12 +1,26 @@
 import { beforeEach, describe, expect, test } from 'vitest';
 import { listHalves, replaceHalf } from '../../src/lib/server/dies/halves';
 import { recordShots } from '../../src/lib/server/shots/ledger';
-import { hoursFromNow, LEAD, ledgerState, makeShotPlant, NOW, plant, snapshot, type ShotPlant } from './shots-fixture';
+import {
+	hoursFromNow,
+	LEAD,
+	ledgerState,
+	makeShotPlant,
+	NOW,
+	plant,
+	snapshot,
+	type ShotPlant
+} from './shots-fixture';
 
 let p: ShotPlant;
 beforeEach(async () => {
 	p = await makeShotPlant();
-	const r = await recordShots(p.db, [{ die: 'A-0001', shots: 800, countedAt: hoursFromNow(-48) }], plant, { source: 'manual', now: NOW });
+	const r = await recordShots(
+		p.db,
+		[{ die: 'A-0001', shots: 800, countedAt: hoursFromNow(-48) }],
+		plant,
+		{ source: 'manual', now: NOW }
+	);
 	expect(r.ok).toBe(true);
 });
 
@@ -27,10 +41,20 @@ describe('replacing a half', () => {
 			installed: { id: expect.any(Number), serial: 'A-0001-E2' },
 			dieTotal: 800
 		});
-		await recordShots(p.db, [{ die: 'A-0001', shots: 300, countedAt: hoursFromNow(-1) }], plant, { source: 'manual', now: NOW });
+		await recordShots(p.db, [{ die: 'A-0001', shots: 300, countedAt: hoursFromNow(-1) }], plant, {
+			source: 'manual',
+			now: NOW
+		});
 
 		const halves = await listHalves(p.db, p.dies.alu);
-		const view = halves.map((h) => [h.side, h.serial, h.active, h.shots, h.die_shots_at_install, h.removal_reason]);
+		const view = halves.map((h) => [
+			h.side,
+			h.serial,
+			h.active,
+			h.shots,
+			h.die_shots_at_install,
+			h.removal_reason
+		]);
 		expect(view).toEqual([
 			['cover', 'A-0001-C1', 1, 1100, 0, null],
 			['ejector', 'A-0001-E2', 1, 300, 800, null],
@@ -39,9 +63,14 @@ describe('replacing a half', () => {
 		const state = await ledgerState(p.db, p.dies.alu);
 		expect(state).toMatchObject({ total: 1100, ledgerSum: 1100 });
 		// Every active half carries exactly the shots since it went in.
-		for (const h of halves.filter((x) => x.active)) expect(h.shots).toBe(state.total - h.die_shots_at_install);
+		for (const h of halves.filter((x) => x.active))
+			expect(h.shots).toBe(state.total - h.die_shots_at_install);
 
-		const audit = await p.db.selectFrom('audit_log').selectAll().where('action', '=', 'half.replace').execute();
+		const audit = await p.db
+			.selectFrom('audit_log')
+			.selectAll()
+			.where('action', '=', 'half.replace')
+			.execute();
 		expect(audit).toHaveLength(1);
 		expect(JSON.parse(audit[0].detail)).toEqual({
 			side: 'ejector',
@@ -74,14 +103,20 @@ describe('replacing a half', () => {
 	test('a correction cannot take the new half below zero', async () => {
 		await replaceHalf(p.db, p.dies.alu, newEjector, LEAD);
 		const before = await snapshot(p.db);
-		const r = await recordShots(p.db, [{ die: 'A-0001', shots: -100, note: 'over-counted' }], plant, { source: 'correction', now: NOW });
+		const r = await recordShots(
+			p.db,
+			[{ die: 'A-0001', shots: -100, note: 'over-counted' }],
+			plant,
+			{ source: 'correction', now: NOW }
+		);
 		expect(r).toEqual({
 			ok: false,
 			issues: [
 				{
 					index: 0,
 					field: 'shots',
-					message: 'The correction would take a half of die A-0001 below zero shots (the newer half has 0).'
+					message:
+						'The correction would take a half of die A-0001 below zero shots (the newer half has 0).'
 				}
 			]
 		});
@@ -90,9 +125,17 @@ describe('replacing a half', () => {
 
 	test('a replacement and shot posts racing each other lose no shot', async () => {
 		const posts = Array.from({ length: 20 }, (_, i) =>
-			recordShots(p.db, [{ die: 'A-0001', shots: 10, countedAt: hoursFromNow(-20 + i * 0.5) }], plant, { source: 'api', now: NOW })
+			recordShots(
+				p.db,
+				[{ die: 'A-0001', shots: 10, countedAt: hoursFromNow(-20 + i * 0.5) }],
+				plant,
+				{ source: 'api', now: NOW }
+			)
 		);
-		const [replaced] = await Promise.all([replaceHalf(p.db, p.dies.alu, newEjector, LEAD), ...posts]);
+		const [replaced] = await Promise.all([
+			replaceHalf(p.db, p.dies.alu, newEjector, LEAD),
+			...posts
+		]);
 		expect(replaced.ok).toBe(true);
 		const state = await ledgerState(p.db, p.dies.alu);
 		expect(state.total).toBe(1000);

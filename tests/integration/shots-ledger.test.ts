@@ -82,7 +82,9 @@ describe('ledger totals equal the ledger', () => {
 			['B-0001', p.dies.bolt]
 		] as const) {
 			const expected =
-				pool.filter((r) => r.die === name && countedKeys.has(r.key!)).reduce((s, r) => s + r.shots, 0) +
+				pool
+					.filter((r) => r.die === name && countedKeys.has(r.key!))
+					.reduce((s, r) => s + r.shots, 0) +
 				keyless.filter((r) => r.die === name).reduce((s, r) => s + r.shots, 0);
 			const state = await ledgerState(p.db, dieId);
 			expect(state.total).toBe(expected);
@@ -99,16 +101,34 @@ describe('ledger totals equal the ledger', () => {
 		// The totals the answers report are the die totals at that moment; the last one is final.
 		const last = ok[ok.length - 1];
 		for (const d of last.dies) {
-			const row = await p.db.selectFrom('dies').select('total_shots').where('number', '=', d.die).executeTakeFirstOrThrow();
+			const row = await p.db
+				.selectFrom('dies')
+				.select('total_shots')
+				.where('number', '=', d.die)
+				.executeTakeFirstOrThrow();
 			expect(d.totalShots).toBeLessThanOrEqual(row.total_shots);
 		}
 	});
 
 	test('a retried key is acknowledged even after the die was retired, and counts nothing', async () => {
-		const first = await recordShots(p.db, [{ die: 'A-0001', shots: 120, key: 'k-1', countedAt: hoursFromNow(-5) }], plant, { source: 'api', now: NOW });
+		const first = await recordShots(
+			p.db,
+			[{ die: 'A-0001', shots: 120, key: 'k-1', countedAt: hoursFromNow(-5) }],
+			plant,
+			{ source: 'api', now: NOW }
+		);
 		expect(first).toMatchObject({ ok: true, accepted: 1, duplicates: 0 });
-		await p.db.updateTable('dies').set({ status: 'retired' }).where('id', '=', p.dies.alu).execute();
-		const again = await recordShots(p.db, [{ die: 'A-0001', shots: 120, key: 'k-1', countedAt: hoursFromNow(-5) }], plant, { source: 'api', now: NOW });
+		await p.db
+			.updateTable('dies')
+			.set({ status: 'retired' })
+			.where('id', '=', p.dies.alu)
+			.execute();
+		const again = await recordShots(
+			p.db,
+			[{ die: 'A-0001', shots: 120, key: 'k-1', countedAt: hoursFromNow(-5) }],
+			plant,
+			{ source: 'api', now: NOW }
+		);
 		expect(again).toEqual({
 			ok: true,
 			accepted: 0,
@@ -142,21 +162,101 @@ describe('every bad input gets its own message and changes nothing', () => {
 		actor?: 'customerAcme';
 		issue: { index: number; field: string; message: RegExp };
 	}[] = [
-		{ name: 'non-integer shots', rows: () => [{ die: 'A-0001', shots: 12.5 }], issue: { index: 0, field: 'shots', message: /^Shots must be a whole number\.$/ } },
-		{ name: 'zero shots', rows: () => [{ die: 'A-0001', shots: 0 }], issue: { index: 0, field: 'shots', message: /^Zero shots counts nothing/ } },
-		{ name: 'negative shots', rows: () => [{ die: 'A-0001', shots: -40 }], issue: { index: 0, field: 'shots', message: /^Shots must be a positive whole number; a correction/ } },
-		{ name: 'counter end below start', rows: () => [{ die: 'A-0001', shots: -10, counterStart: 500, counterEnd: 490 }], issue: { index: 0, field: 'counterEnd', message: /^The counter end is below the counter start\.$/ } },
-		{ name: 'counter that did not move', rows: () => [{ die: 'A-0001', shots: 0, counterStart: 500, counterEnd: 500 }], issue: { index: 0, field: 'counterEnd', message: /did not move/ } },
-		{ name: 'shots not matching the counters', rows: () => [{ die: 'A-0001', shots: 30, counterStart: 500, counterEnd: 520 }], issue: { index: 0, field: 'shots', message: /must equal counter end minus counter start \(20\)/ } },
-		{ name: 'only one counter reading', rows: () => [{ die: 'A-0001', shots: 20, counterStart: 500 }], issue: { index: 0, field: 'counterEnd', message: /Give both counter readings/ } },
-		{ name: 'more than a day in the future', rows: () => [{ die: 'A-0001', shots: 10, countedAt: hoursFromNow(25) }], issue: { index: 0, field: 'countedAt', message: /^Counted-at is more than a day in the future\.$/ } },
-		{ name: 'not a date', rows: () => [{ die: 'A-0001', shots: 10, countedAt: 'yesterday' }], issue: { index: 0, field: 'countedAt', message: /is not a date and time/ } },
-		{ name: '30 February', rows: () => [{ die: 'A-0001', shots: 10, countedAt: '2026-02-30T10:00:00.000Z' }], issue: { index: 0, field: 'countedAt', message: /is not a date and time/ } },
-		{ name: 'hour 24', rows: () => [{ die: 'A-0001', shots: 10, countedAt: '2026-06-01 24:00' }], issue: { index: 0, field: 'countedAt', message: /is not a date and time/ } },
-		{ name: 'a date before 2000', rows: () => [{ die: 'A-0001', shots: 10, countedAt: '0026-06-01T10:00:00Z' }], issue: { index: 0, field: 'countedAt', message: /before the year 2000/ } },
-		{ name: 'a retired die', rows: () => [{ die: 'R-0001', shots: 10 }], issue: { index: 0, field: 'die', message: /^Die R-0001 is retired and takes no more shots\.$/ } },
-		{ name: 'an unknown die', rows: () => [{ die: 'X-9999', shots: 10 }], issue: { index: 0, field: 'die', message: /^There is no die X-9999\.$/ } },
-		{ name: 'an unknown press', rows: () => [{ die: 'A-0001', shots: 10, machine: 'CC-999' }], issue: { index: 0, field: 'machine', message: /^There is no press called CC-999\.$/ } },
+		{
+			name: 'non-integer shots',
+			rows: () => [{ die: 'A-0001', shots: 12.5 }],
+			issue: { index: 0, field: 'shots', message: /^Shots must be a whole number\.$/ }
+		},
+		{
+			name: 'zero shots',
+			rows: () => [{ die: 'A-0001', shots: 0 }],
+			issue: { index: 0, field: 'shots', message: /^Zero shots counts nothing/ }
+		},
+		{
+			name: 'negative shots',
+			rows: () => [{ die: 'A-0001', shots: -40 }],
+			issue: {
+				index: 0,
+				field: 'shots',
+				message: /^Shots must be a positive whole number; a correction/
+			}
+		},
+		{
+			name: 'counter end below start',
+			rows: () => [{ die: 'A-0001', shots: -10, counterStart: 500, counterEnd: 490 }],
+			issue: {
+				index: 0,
+				field: 'counterEnd',
+				message: /^The counter end is below the counter start\.$/
+			}
+		},
+		{
+			name: 'counter that did not move',
+			rows: () => [{ die: 'A-0001', shots: 0, counterStart: 500, counterEnd: 500 }],
+			issue: { index: 0, field: 'counterEnd', message: /did not move/ }
+		},
+		{
+			name: 'shots not matching the counters',
+			rows: () => [{ die: 'A-0001', shots: 30, counterStart: 500, counterEnd: 520 }],
+			issue: {
+				index: 0,
+				field: 'shots',
+				message: /must equal counter end minus counter start \(20\)/
+			}
+		},
+		{
+			name: 'only one counter reading',
+			rows: () => [{ die: 'A-0001', shots: 20, counterStart: 500 }],
+			issue: { index: 0, field: 'counterEnd', message: /Give both counter readings/ }
+		},
+		{
+			name: 'more than a day in the future',
+			rows: () => [{ die: 'A-0001', shots: 10, countedAt: hoursFromNow(25) }],
+			issue: {
+				index: 0,
+				field: 'countedAt',
+				message: /^Counted-at is more than a day in the future\.$/
+			}
+		},
+		{
+			name: 'not a date',
+			rows: () => [{ die: 'A-0001', shots: 10, countedAt: 'yesterday' }],
+			issue: { index: 0, field: 'countedAt', message: /is not a date and time/ }
+		},
+		{
+			name: '30 February',
+			rows: () => [{ die: 'A-0001', shots: 10, countedAt: '2026-02-30T10:00:00.000Z' }],
+			issue: { index: 0, field: 'countedAt', message: /is not a date and time/ }
+		},
+		{
+			name: 'hour 24',
+			rows: () => [{ die: 'A-0001', shots: 10, countedAt: '2026-06-01 24:00' }],
+			issue: { index: 0, field: 'countedAt', message: /is not a date and time/ }
+		},
+		{
+			name: 'a date before 2000',
+			rows: () => [{ die: 'A-0001', shots: 10, countedAt: '0026-06-01T10:00:00Z' }],
+			issue: { index: 0, field: 'countedAt', message: /before the year 2000/ }
+		},
+		{
+			name: 'a retired die',
+			rows: () => [{ die: 'R-0001', shots: 10 }],
+			issue: {
+				index: 0,
+				field: 'die',
+				message: /^Die R-0001 is retired and takes no more shots\.$/
+			}
+		},
+		{
+			name: 'an unknown die',
+			rows: () => [{ die: 'X-9999', shots: 10 }],
+			issue: { index: 0, field: 'die', message: /^There is no die X-9999\.$/ }
+		},
+		{
+			name: 'an unknown press',
+			rows: () => [{ die: 'A-0001', shots: 10, machine: 'CC-999' }],
+			issue: { index: 0, field: 'machine', message: /^There is no press called CC-999\.$/ }
+		},
 		{
 			name: 'more shots than the press could make since the previous reading',
 			rows: () => [
@@ -165,10 +265,28 @@ describe('every bad input gets its own message and changes nothing', () => {
 				// after the previous reading 5000 shots is a typing error.
 				{ die: 'A-0001', shots: 5000, countedAt: hoursFromNow(-1) }
 			],
-			issue: { index: 1, field: 'shots', message: /5000 shots between the previous count .* is more than a press can make: at most 400 at 400 shots\/h\./ }
+			issue: {
+				index: 1,
+				field: 'shots',
+				message:
+					/5000 shots between the previous count .* is more than a press can make: at most 400 at 400 shots\/h\./
+			}
 		},
-		{ name: 'a customer-bound caller on another owner’s die', actor: 'customerAcme', rows: () => [{ die: 'B-0001', shots: 10 }], issue: { index: 0, field: 'die', message: /^There is no die B-0001\.$/ } },
-		{ name: 'a batch over 5000', rows: () => Array.from({ length: 5001 }, () => ({ die: 'A-0001', shots: 1 })), issue: { index: 5000, field: 'batch', message: /at most 5000 entries at once \(this batch has 5001\)/ } },
+		{
+			name: 'a customer-bound caller on another owner’s die',
+			actor: 'customerAcme',
+			rows: () => [{ die: 'B-0001', shots: 10 }],
+			issue: { index: 0, field: 'die', message: /^There is no die B-0001\.$/ }
+		},
+		{
+			name: 'a batch over 5000',
+			rows: () => Array.from({ length: 5001 }, () => ({ die: 'A-0001', shots: 1 })),
+			issue: {
+				index: 5000,
+				field: 'batch',
+				message: /at most 5000 entries at once \(this batch has 5001\)/
+			}
+		},
 		{
 			name: 'a key twice in one batch',
 			rows: () => [
@@ -177,17 +295,38 @@ describe('every bad input gets its own message and changes nothing', () => {
 			],
 			issue: { index: 1, field: 'key', message: /The key "same" appears twice in this batch/ }
 		},
-		{ name: 'an empty batch', rows: () => [], issue: { index: 0, field: 'batch', message: /^Nothing to count\.$/ } },
-		{ name: 'an entry above ten million', rows: () => [{ die: 'A-0001', shots: 20_000_000 }], issue: { index: 0, field: 'shots', message: /not plausible \(at most 10000000\)/ } },
-		{ name: 'a correction without reason', source: 'correction', rows: () => [{ die: 'A-0001', shots: -5 }], issue: { index: 0, field: 'note', message: /^A correction needs a reason\.$/ } },
-		{ name: 'a correction below zero', source: 'correction', rows: () => [{ die: 'A-0001', shots: -5, note: 'counter reset' }], issue: { index: 0, field: 'shots', message: /below zero shots \(it has 0\)/ } }
+		{
+			name: 'an empty batch',
+			rows: () => [],
+			issue: { index: 0, field: 'batch', message: /^Nothing to count\.$/ }
+		},
+		{
+			name: 'an entry above ten million',
+			rows: () => [{ die: 'A-0001', shots: 20_000_000 }],
+			issue: { index: 0, field: 'shots', message: /not plausible \(at most 10000000\)/ }
+		},
+		{
+			name: 'a correction without reason',
+			source: 'correction',
+			rows: () => [{ die: 'A-0001', shots: -5 }],
+			issue: { index: 0, field: 'note', message: /^A correction needs a reason\.$/ }
+		},
+		{
+			name: 'a correction below zero',
+			source: 'correction',
+			rows: () => [{ die: 'A-0001', shots: -5, note: 'counter reset' }],
+			issue: { index: 0, field: 'shots', message: /below zero shots \(it has 0\)/ }
+		}
 	];
 
 	for (const c of cases) {
 		test(c.name, async () => {
 			const before = await snapshot(p.db);
 			const actor = c.actor ? { ...customer, customerId: p.owners.acme } : plant;
-			const result = await recordShots(p.db, c.rows(), actor, { source: c.source ?? 'api', now: NOW });
+			const result = await recordShots(p.db, c.rows(), actor, {
+				source: c.source ?? 'api',
+				now: NOW
+			});
 			expect(result.ok).toBe(false);
 			if (result.ok) return;
 			expect(result.issues).toHaveLength(1);
@@ -198,10 +337,27 @@ describe('every bad input gets its own message and changes nothing', () => {
 	}
 
 	test('a key already used for another die is refused, not silently swallowed', async () => {
-		await recordShots(p.db, [{ die: 'Z-0001', shots: 10, key: 'gw-1', countedAt: hoursFromNow(-3) }], plant, { source: 'api', now: NOW });
+		await recordShots(
+			p.db,
+			[{ die: 'Z-0001', shots: 10, key: 'gw-1', countedAt: hoursFromNow(-3) }],
+			plant,
+			{ source: 'api', now: NOW }
+		);
 		const before = await snapshot(p.db);
-		const r = await recordShots(p.db, [{ die: 'A-0001', shots: 10, key: 'gw-1' }], plant, { source: 'api', now: NOW });
-		expect(r).toEqual({ ok: false, issues: [{ index: 0, field: 'key', message: `The key "gw-1" was already used for another die's count.` }] });
+		const r = await recordShots(p.db, [{ die: 'A-0001', shots: 10, key: 'gw-1' }], plant, {
+			source: 'api',
+			now: NOW
+		});
+		expect(r).toEqual({
+			ok: false,
+			issues: [
+				{
+					index: 0,
+					field: 'key',
+					message: `The key "gw-1" was already used for another die's count.`
+				}
+			]
+		});
 		expect(await snapshot(p.db)).toEqual(before);
 	});
 
@@ -219,7 +375,11 @@ describe('every bad input gets its own message and changes nothing', () => {
 			{ source: 'api', now: NOW }
 		);
 		expect(r.ok).toBe(false);
-		if (!r.ok) expect(r.issues.map((i) => [i.index, i.field])).toEqual([[1, 'die'], [3, 'shots']]);
+		if (!r.ok)
+			expect(r.issues.map((i) => [i.index, i.field])).toEqual([
+				[1, 'die'],
+				[3, 'shots']
+			]);
 		expect(await snapshot(p.db)).toEqual(before);
 	});
 
@@ -234,33 +394,68 @@ describe('every bad input gets its own message and changes nothing', () => {
 			{ source: 'api', now: NOW }
 		);
 		// 30 min after the reading at −10 h: at most 200 shots at 400/h.
-		const late = await recordShots(p.db, [{ die: 'A-0001', shots: 900, countedAt: hoursFromNow(-9.5) }], plant, { source: 'api', now: NOW });
+		const late = await recordShots(
+			p.db,
+			[{ die: 'A-0001', shots: 900, countedAt: hoursFromNow(-9.5) }],
+			plant,
+			{ source: 'api', now: NOW }
+		);
 		expect(late.ok).toBe(false);
-		const fine = await recordShots(p.db, [{ die: 'A-0001', shots: 150, countedAt: hoursFromNow(-9.5) }], plant, { source: 'api', now: NOW });
+		const fine = await recordShots(
+			p.db,
+			[{ die: 'A-0001', shots: 150, countedAt: hoursFromNow(-9.5) }],
+			plant,
+			{ source: 'api', now: NOW }
+		);
 		expect(fine.ok).toBe(true);
 	});
 });
 
 describe('corrections', () => {
 	test('a negative correction moves die and halves, is audited and leaves the rate check alone', async () => {
-		await recordShots(p.db, [{ die: 'A-0001', shots: 300, countedAt: hoursFromNow(-2) }], plant, { source: 'manual', now: NOW });
-		const r = await recordShots(p.db, [{ die: 'A-0001', shots: -120, note: 'Counter double-counted the dry cycles' }], plant, { source: 'correction', now: NOW });
+		await recordShots(p.db, [{ die: 'A-0001', shots: 300, countedAt: hoursFromNow(-2) }], plant, {
+			source: 'manual',
+			now: NOW
+		});
+		const r = await recordShots(
+			p.db,
+			[{ die: 'A-0001', shots: -120, note: 'Counter double-counted the dry cycles' }],
+			plant,
+			{ source: 'correction', now: NOW }
+		);
 		expect(r).toMatchObject({ ok: true, accepted: 1, dies: [{ die: 'A-0001', totalShots: 180 }] });
 		const state = await ledgerState(p.db, p.dies.alu);
 		expect(state).toMatchObject({ total: 180, ledgerSum: 180, dailySum: 180 });
 		for (const h of state.halves) expect(h.shots).toBe(180);
-		const audit = await p.db.selectFrom('audit_log').selectAll().where('action', '=', 'shots.correction').execute();
+		const audit = await p.db
+			.selectFrom('audit_log')
+			.selectAll()
+			.where('action', '=', 'shots.correction')
+			.execute();
 		expect(audit).toHaveLength(1);
 		expect(audit[0]).toMatchObject({ user_id: LEAD, die_id: p.dies.alu });
-		expect(JSON.parse(audit[0].detail)).toMatchObject({ shots: -120, reason: 'Counter double-counted the dry cycles' });
-		const die = await p.db.selectFrom('dies').select('last_counted_at').where('id', '=', p.dies.alu).executeTakeFirstOrThrow();
+		expect(JSON.parse(audit[0].detail)).toMatchObject({
+			shots: -120,
+			reason: 'Counter double-counted the dry cycles'
+		});
+		const die = await p.db
+			.selectFrom('dies')
+			.select('last_counted_at')
+			.where('id', '=', p.dies.alu)
+			.executeTakeFirstOrThrow();
 		expect(die.last_counted_at).toBe(hoursFromNow(-2));
 	});
 });
 
 describe('POST /api/v1/shots body handling', () => {
 	test('a single object answers 201 with the die total; the same key again counts nothing', async () => {
-		const body = { die: 'z-0001', shots: 250, key: 'press-7:1001', machine: 'hc-08', countedAt: hoursFromNow(-1) };
+		const body = {
+			die: 'z-0001',
+			shots: 250,
+			key: 'press-7:1001',
+			machine: 'hc-08',
+			countedAt: hoursFromNow(-1)
+		};
 		expect(await ingestShotBody(p.db, body, plant, NOW)).toEqual({
 			status: 201,
 			body: { accepted: 1, duplicates: 0, dies: [{ die: 'Z-0001', totalShots: 250 }] }
@@ -276,7 +471,15 @@ describe('POST /api/v1/shots body handling', () => {
 			status: 404,
 			body: { error: 'There is no die X-1.' }
 		});
-		const batch = await ingestShotBody(p.db, [{ die: 'Z-0001', shots: 5 }, { die: 'X-1', shots: 5 }], plant, NOW);
+		const batch = await ingestShotBody(
+			p.db,
+			[
+				{ die: 'Z-0001', shots: 5 },
+				{ die: 'X-1', shots: 5 }
+			],
+			plant,
+			NOW
+		);
 		expect(batch).toEqual({
 			status: 400,
 			body: {
@@ -306,7 +509,11 @@ describe('POST /api/v1/shots body handling', () => {
 			issues: [
 				{ index: 0, field: 'shots', message: 'shots must be a number.' },
 				{ index: 1, field: 'die', message: 'Die R-0001 is retired and takes no more shots.' },
-				{ index: 2, field: 'counted_at', message: 'Unknown field "counted_at"; use die, shots, countedAt, machine, key.' },
+				{
+					index: 2,
+					field: 'counted_at',
+					message: 'Unknown field "counted_at"; use die, shots, countedAt, machine, key.'
+				},
 				{ index: 3, field: 'entry', message: 'Each entry must be an object.' }
 			]
 		});
@@ -314,8 +521,14 @@ describe('POST /api/v1/shots body handling', () => {
 	});
 
 	test('bodies that are not entries get a plain 400', async () => {
-		expect(await ingestShotBody(p.db, 42, plant, NOW)).toMatchObject({ status: 400, body: { error: 'Send one entry object or an array of entries.' } });
-		expect(await ingestShotBody(p.db, [], plant, NOW)).toMatchObject({ status: 400, body: { error: 'The array is empty: nothing to count.' } });
+		expect(await ingestShotBody(p.db, 42, plant, NOW)).toMatchObject({
+			status: 400,
+			body: { error: 'Send one entry object or an array of entries.' }
+		});
+		expect(await ingestShotBody(p.db, [], plant, NOW)).toMatchObject({
+			status: 400,
+			body: { error: 'The array is empty: nothing to count.' }
+		});
 		const big = Array.from({ length: 5001 }, () => ({ die: 'Z-0001', shots: 1 }));
 		expect(await ingestShotBody(p.db, big, plant, NOW)).toMatchObject({
 			status: 400,

@@ -15,11 +15,24 @@ beforeEach(async () => {
 	p = await makeShotPlant();
 	// 25 readings on Z-0001 (hot press, api), 12 on A-0001 (cold press, csv), one per 3 hours.
 	const rows: ShotInput[] = [];
-	for (let i = 0; i < 25; i++) rows.push({ die: 'Z-0001', shots: 100 + i, countedAt: hoursFromNow(-300 + i * 3), machine: 'HC-08' });
+	for (let i = 0; i < 25; i++)
+		rows.push({
+			die: 'Z-0001',
+			shots: 100 + i,
+			countedAt: hoursFromNow(-300 + i * 3),
+			machine: 'HC-08'
+		});
 	const z = await recordShots(p.db, rows, plant, { source: 'api', now: NOW });
 	const a = await recordShots(
 		p.db,
-		Array.from({ length: 12 }, (_, i) => ({ die: 'A-0001', shots: 50, countedAt: hoursFromNow(-299 + i * 3), machine: 'CC-84', counterStart: i * 50, counterEnd: (i + 1) * 50 })),
+		Array.from({ length: 12 }, (_, i) => ({
+			die: 'A-0001',
+			shots: 50,
+			countedAt: hoursFromNow(-299 + i * 3),
+			machine: 'CC-84',
+			counterStart: i * 50,
+			counterEnd: (i + 1) * 50
+		})),
 		plant,
 		{ source: 'csv', now: NOW }
 	);
@@ -55,7 +68,13 @@ describe('the shot ledger list', () => {
 		const byDie = await listShotEntries(p.db, q({ q: 'a-0001', size: '50' }));
 		expect(byDie.rows).toHaveLength(12);
 		expect(new Set(byDie.rows.map((r) => r.die))).toEqual(new Set(['A-0001']));
-		expect(byDie.rows[0]).toMatchObject({ press: 'CC-84', source: 'csv', counterStart: 550, counterEnd: 600, enteredBy: 'Lead' });
+		expect(byDie.rows[0]).toMatchObject({
+			press: 'CC-84',
+			source: 'csv',
+			counterStart: 550,
+			counterEnd: 600,
+			enteredBy: 'Lead'
+		});
 
 		const prefix = await listShotEntries(p.db, q({ q: 'Z-', size: '50' }));
 		expect(prefix.rows).toHaveLength(25);
@@ -67,13 +86,24 @@ describe('the shot ledger list', () => {
 		expect(oneDay.rows.length).toBeGreaterThan(0);
 		for (const r of oneDay.rows) expect(r.countedAt.slice(0, 10)).toBe(day);
 
-		expect(await listShotEntries(p.db, q({ q: 'NOPE' }))).toMatchObject({ rows: [], nothingMatches: true });
-		expect(await listShotEntries(p.db, q({ press: 'CC-999' }))).toMatchObject({ rows: [], nothingMatches: true });
-		expect(await listShotEntries(p.db, q({ q: 'Z-0001', source: 'csv' }))).toMatchObject({ rows: [], nothingMatches: false });
+		expect(await listShotEntries(p.db, q({ q: 'NOPE' }))).toMatchObject({
+			rows: [],
+			nothingMatches: true
+		});
+		expect(await listShotEntries(p.db, q({ press: 'CC-999' }))).toMatchObject({
+			rows: [],
+			nothingMatches: true
+		});
+		expect(await listShotEntries(p.db, q({ q: 'Z-0001', source: 'csv' }))).toMatchObject({
+			rows: [],
+			nothingMatches: false
+		});
 	});
 
 	test('junk in the URL falls back to the defaults instead of failing', () => {
-		expect(shotListQuerySchema.parse({ source: 'x', from: '2026-13', before: 'bad', size: '9999' })).toMatchObject({
+		expect(
+			shotListQuerySchema.parse({ source: 'x', from: '2026-13', before: 'bad', size: '9999' })
+		).toMatchObject({
 			source: '',
 			from: '',
 			before: '',
@@ -118,13 +148,32 @@ describe('order check for a die', () => {
 		await p.db
 			.insertInto('service_tasks')
 			.values([
-				{ die_id: p.dies.alu, kind: 'stress_relief', interval_shots: 10_000, interval_days: null, last_done_at: NOW, last_done_shots: 0 },
-				{ die_id: p.dies.alu, kind: 'cooling_flush', interval_shots: null, interval_days: 30, last_done_at: NOW, last_done_shots: 0 }
+				{
+					die_id: p.dies.alu,
+					kind: 'stress_relief',
+					interval_shots: 10_000,
+					interval_days: null,
+					last_done_at: NOW,
+					last_done_shots: 0
+				},
+				{
+					die_id: p.dies.alu,
+					kind: 'cooling_flush',
+					interval_shots: null,
+					interval_days: 30,
+					last_done_at: NOW,
+					last_done_shots: 0
+				}
 			])
 			.execute();
 		const die = (await findDie(p.db, 'A-0001', { customerId: null }))!;
 		// 2 cavities, 5 % scrap: 20 000 parts → ⌈20000 / (2 × 0.95)⌉ = 10 527 shots.
-		const r = await checkDieOrder(p.db, die, { parts: 20_000, scrapPct: 5, shotsPerHour: 120 }, NOW);
+		const r = await checkDieOrder(
+			p.db,
+			die,
+			{ parts: 20_000, scrapPct: 5, shotsPerHour: 120 },
+			NOW
+		);
 		expect(r).toMatchObject({
 			die: 'A-0001',
 			cavities: 2,
@@ -142,10 +191,22 @@ describe('order check for a die', () => {
 
 	test('a die without shot-counted tasks is limited by its life only; a retired die by nothing left', async () => {
 		const die = (await findDie(p.db, 'Z-0001', { customerId: null }))!;
-		const fits = await checkDieOrder(p.db, die, { parts: 1000, scrapPct: 0, shotsPerHour: 300 }, NOW);
-		expect(fits).toMatchObject({ shotsToNextService: null, fits: true, blockedBy: null, shotsNeeded: 500 });
+		const fits = await checkDieOrder(
+			p.db,
+			die,
+			{ parts: 1000, scrapPct: 0, shotsPerHour: 300 },
+			NOW
+		);
+		expect(fits).toMatchObject({
+			shotsToNextService: null,
+			fits: true,
+			blockedBy: null,
+			shotsNeeded: 500
+		});
 		const retired = (await findDie(p.db, 'R-0001', { customerId: null }))!;
-		expect(await checkDieOrder(p.db, retired, { parts: 10, scrapPct: 0, shotsPerHour: 100 }, NOW)).toMatchObject({
+		expect(
+			await checkDieOrder(p.db, retired, { parts: 10, scrapPct: 0, shotsPerHour: 100 }, NOW)
+		).toMatchObject({
 			shotsToEndOfLife: 0,
 			fits: false,
 			blockedBy: 'end_of_life'

@@ -45,7 +45,11 @@ export async function replaceHalf(
 					.get(dieId);
 				if (!die) return { ok: false, field: 'die', message: 'That die does not exist.' };
 				if (die.status === 'retired') {
-					return { ok: false, field: 'die', message: `Die ${die.number} is retired; its halves stay as they are.` };
+					return {
+						ok: false,
+						field: 'die',
+						message: `Die ${die.number} is retired; its halves stay as they are.`
+					};
 				}
 				const clash = raw
 					.prepare<[string], { number: string }>(
@@ -78,7 +82,15 @@ export async function replaceHalf(
 						   installed_at, die_shots_at_install)
 						 values (?, ?, ?, ?, ?, 0, 1, ?, ?)`
 					)
-					.run(die.id, input.side, serial, input.steel.trim(), input.hardnessHrc, at, die.total_shots);
+					.run(
+						die.id,
+						input.side,
+						serial,
+						input.steel.trim(),
+						input.hardnessHrc,
+						at,
+						die.total_shots
+					);
 				const removed = old ? { serial: old.serial, shots: old.shots } : null;
 				raw
 					.prepare(

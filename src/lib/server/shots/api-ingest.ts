@@ -66,7 +66,8 @@ export async function ingestShotBody(
 		const parsed = apiShotEntrySchema.safeParse(item);
 		if (!parsed.success) {
 			for (const i of parsed.error.issues) {
-				const field = i.code === 'unrecognized_keys' ? i.keys.join(',') : String(i.path[0] ?? 'entry');
+				const field =
+					i.code === 'unrecognized_keys' ? i.keys.join(',') : String(i.path[0] ?? 'entry');
 				const message =
 					i.code === 'unrecognized_keys'
 						? `Unknown field ${i.keys.map((k) => `"${k}"`).join(', ')}; use die, shots, countedAt, machine, key.`

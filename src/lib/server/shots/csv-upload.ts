@@ -137,15 +137,22 @@ function readRow(cells: Record<Column, string>, line: number): CsvShotRow {
 	const shots = wholeNumber(row.shots);
 	const start = wholeNumber(row.counterStart);
 	const end = wholeNumber(row.counterEnd);
-	if (shots === 'bad') return wrong('shots', `Shots must be a whole number (found "${row.shots}").`);
+	if (shots === 'bad')
+		return wrong('shots', `Shots must be a whole number (found "${row.shots}").`);
 	if (start === 'bad') {
-		return wrong('counter_start', `counter_start must be a whole number (found "${row.counterStart}").`);
+		return wrong(
+			'counter_start',
+			`counter_start must be a whole number (found "${row.counterStart}").`
+		);
 	}
 	if (end === 'bad') {
 		return wrong('counter_end', `counter_end must be a whole number (found "${row.counterEnd}").`);
 	}
 	if ((start === null) !== (end === null)) {
-		return wrong(start === null ? 'counter_start' : 'counter_end', 'Give both counter readings, or shots.');
+		return wrong(
+			start === null ? 'counter_start' : 'counter_end',
+			'Give both counter readings, or shots.'
+		);
 	}
 	if (shots === null && start === null) {
 		return wrong('shots', 'Give shots, or counter_start and counter_end.');
@@ -207,7 +214,10 @@ export function parseShotCsv(text: string): ParsedCsv {
 	const index = new Map<Column, number>();
 	const ignoredColumns: string[] = [];
 	head.record.forEach((name, i) => {
-		const norm = name.toLowerCase().trim().replace(/[\s-]+/g, '_');
+		const norm = name
+			.toLowerCase()
+			.trim()
+			.replace(/[\s-]+/g, '_');
 		const column = (CSV_COLUMNS as readonly string[]).includes(norm)
 			? (norm as Column)
 			: ALIASES[norm.replace(/_/g, '')];
@@ -226,7 +236,8 @@ export function parseShotCsv(text: string): ParsedCsv {
 			message: `The header row lacks ${missing.join(', ')}. The first row must name the columns, e.g. die${delimiter}counted_at${delimiter}shots${delimiter}press.`
 		};
 	}
-	if (data.length === 0) return { ok: false, message: 'The file has a header row but no data rows.' };
+	if (data.length === 0)
+		return { ok: false, message: 'The file has a header row but no data rows.' };
 	if (data.length > MAX_CSV_ROWS) {
 		return {
 			ok: false,
@@ -256,9 +267,13 @@ export async function previewShotCsv(
 	now?: string
 ): Promise<{ preview: CsvPreview; inputs: { row: number; input: ShotInput }[] }> {
 	const readable = parsed.rows.flatMap((r, row) => (r.input ? [{ row, input: r.input }] : []));
-	const verdict = new Map<number, { status: RowStatus; column: string | null; reason: string | null }>();
+	const verdict = new Map<
+		number,
+		{ status: RowStatus; column: string | null; reason: string | null }
+	>();
 	parsed.rows.forEach((r, i) => {
-		if (r.problem) verdict.set(i, { status: 'wrong', column: r.problem.column, reason: r.problem.message });
+		if (r.problem)
+			verdict.set(i, { status: 'wrong', column: r.problem.column, reason: r.problem.message });
 	});
 	// A dry run answers per row only when every row passes, so refused rows are marked and the
 	// rest asked again (dropping a row can change what follows it, e.g. the elapsed-time check).
@@ -301,7 +316,11 @@ export async function previewShotCsv(
 	}
 	for (const r of candidates) {
 		if (!verdict.has(r.row)) {
-			verdict.set(r.row, { status: 'wrong', column: null, reason: 'Could not be checked; upload again.' });
+			verdict.set(r.row, {
+				status: 'wrong',
+				column: null,
+				reason: 'Could not be checked; upload again.'
+			});
 		}
 	}
 	const rows: PreviewRow[] = parsed.rows.map((r, i) => ({ ...strip(r), ...verdict.get(i)! }));
@@ -326,7 +345,13 @@ export async function previewShotCsv(
 }
 
 export type CommitResult =
-	| { ok: true; counted: number; duplicates: number; shots: number; dies: { die: string; totalShots: number }[] }
+	| {
+			ok: true;
+			counted: number;
+			duplicates: number;
+			shots: number;
+			dies: { die: string; totalShots: number }[];
+	  }
 	| { ok: false; message: string; preview: CsvPreview | null };
 
 /**
@@ -363,7 +388,11 @@ export async function commitShotCsv(
 	);
 	if (!result.ok) {
 		const { preview: fresh } = await previewShotCsv(db, parsed, actor, now);
-		return { ok: false, message: 'Some rows were refused as the ledger moved on; nothing was counted.', preview: fresh };
+		return {
+			ok: false,
+			message: 'Some rows were refused as the ledger moved on; nothing was counted.',
+			preview: fresh
+		};
 	}
 	return {
 		ok: true,

@@ -17,7 +17,8 @@ export function thinSeries<T>(points: T[], max = MAX_POINTS): T[] {
 	if (points.length <= max) return points;
 	const step = points.length / max;
 	const out: T[] = [];
-	for (let i = 1; i <= max; i++) out.push(points[Math.min(points.length, Math.round(i * step)) - 1]);
+	for (let i = 1; i <= max; i++)
+		out.push(points[Math.min(points.length, Math.round(i * step)) - 1]);
 	if (out[0] !== points[0]) out.unshift(points[0]);
 	return out;
 }
@@ -82,7 +83,11 @@ export async function getDieShotsView(db: DB, die: FoundDie) {
 	}
 	for (const h of halves) {
 		if (h.die_shots_at_install > 0) {
-			events.push({ day: h.installed_at.slice(0, 10), kind: 'half', label: `${h.side}:${h.serial}` });
+			events.push({
+				day: h.installed_at.slice(0, 10),
+				kind: 'half',
+				label: `${h.side}:${h.serial}`
+			});
 		}
 	}
 	events.sort((a, b) => a.day.localeCompare(b.day));

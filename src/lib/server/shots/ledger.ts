@@ -142,6 +142,22 @@ function calendarFieldsValid(text: string): boolean {
 	return text.length < 13 || Number(text.slice(11, 13)) <= 23;
 }
 
+/** Epoch ms of a text already in the stored form, read digit by digit (the ingest hot path). */
+function canonicalMs(t: string): number | null {
+	const n = (i: number) => t.charCodeAt(i) - 48;
+	const year = n(0) * 1000 + n(1) * 100 + n(2) * 10 + n(3);
+	if (year < 1000) return Date.parse(t);
+	const month = n(5) * 10 + n(6);
+	const day = n(8) * 10 + n(9);
+	const hour = n(11) * 10 + n(12);
+	const minute = n(14) * 10 + n(15);
+	const second = n(17) * 10 + n(18);
+	if (month < 1 || month > 12 || day < 1 || hour > 23 || minute > 59 || second > 59) return null;
+	const leap = month === 2 && year % 4 === 0 && (year % 100 !== 0 || year % 400 === 0);
+	if (day > MONTH_DAYS[month - 1] + (leap ? 1 : 0)) return null;
+	return Date.UTC(year, month - 1, day, hour, minute, second, n(20) * 100 + n(21) * 10 + n(22));
+}
+
 /**
  * An instant as stored (ISO-8601 UTC) with its epoch milliseconds, or null when the text is not
  * a real date and time. A time without an offset is read as UTC — the one zone Castellan shows —
@@ -150,8 +166,8 @@ function calendarFieldsValid(text: string): boolean {
 export function parseInstant(value: string): { iso: string; ms: number } | null {
 	let text = value.trim();
 	if (CANONICAL.test(text)) {
-		const ms = Date.parse(text);
-		return Number.isNaN(ms) || !calendarFieldsValid(text) ? null : { iso: text, ms };
+		const ms = canonicalMs(text);
+		return ms === null ? null : { iso: text, ms };
 	}
 	if (LOCAL_DATE_TIME.test(text)) text = text.replace(' ', 'T') + 'Z';
 	if (!/^\d{4}-\d{2}-\d{2}/.test(text) || !calendarFieldsValid(text)) return null;
@@ -200,7 +216,8 @@ function latestBefore(list: number[] | undefined, value: number): number | null 
 }
 
 const isCount = (v: unknown): v is number => Number.isSafeInteger(v) && (v as number) >= 0;
-const shortTime = (ms: number) => `${new Date(ms).toISOString().slice(0, 16).replace('T', ' ')} UTC`;
+const shortTime = (ms: number) =>
+	`${new Date(ms).toISOString().slice(0, 16).replace('T', ' ')} UTC`;
 
 /**
  * Checks every row against the register as it is now (inside the write transaction), so the
@@ -236,8 +253,12 @@ function checkRows(
 		}
 	}
 
+	let current = 0;
+	const issue = (field: string, message: string) => {
+		issues.push({ index: current, field, message });
+	};
 	inputs.forEach((input, index) => {
-		const issue = (field: string, message: string) => issues.push({ index, field, message });
+		current = index;
 		if (input === null || typeof input !== 'object') return issue('entry', 'Not an entry.');
 		const number = String(input.die ?? '')
 			.trim()
@@ -269,7 +290,10 @@ function checkRows(
 				return issue('counterEnd', 'The counter end is below the counter start.');
 			}
 			if (counterEnd === counterStart && !correction) {
-				return issue('counterEnd', 'The counter did not move (end equals start): nothing to count.');
+				return issue(
+					'counterEnd',
+					'The counter did not move (end equals start): nothing to count.'
+				);
 			}
 			if (shots !== counterEnd - counterStart) {
 				return issue(
@@ -326,7 +350,10 @@ function checkRows(
 		if (key !== null) {
 			if (key.length > MAX_KEY) return issue('key', `Keep the key under ${MAX_KEY} characters.`);
 			if (batchKeys.has(key)) {
-				return issue('key', `The key "${key}" appears twice in this batch; give each entry its own.`);
+				return issue(
+					'key',
+					`The key "${key}" appears twice in this batch; give each entry its own.`
+				);
 			}
 			batchKeys.add(key);
 			const owner = keyOwners.get(key);
@@ -369,7 +396,8 @@ function checkRows(
 					inLedger = before ? Date.parse(before) : null;
 				}
 			}
-			const previous = inBatch !== null && (inLedger === null || inBatch > inLedger) ? inBatch : inLedger;
+			const previous =
+				inBatch !== null && (inLedger === null || inBatch > inLedger) ? inBatch : inLedger;
 			if (previous !== null) {
 				const perHour = maxShotsPerHour(die.process, die.family);
 				const limit = maxShotsIn(countedMs - previous, perHour);

@@ -18,7 +18,19 @@ export const GET: RequestHandler = async (event) => {
 	);
 	return csvResponse(
 		`castellan-shots-${new Date().toISOString().slice(0, 10)}.csv`,
-		['die', 'counted_at', 'shots', 'counter_start', 'counter_end', 'press', 'source', 'key', 'note', 'entered_by', 'entered_at'],
+		[
+			'die',
+			'counted_at',
+			'shots',
+			'counter_start',
+			'counter_end',
+			'press',
+			'source',
+			'key',
+			'note',
+			'entered_by',
+			'entered_at'
+		],
 		rows.map((r) => [
 			r.die,
 			r.countedAt,

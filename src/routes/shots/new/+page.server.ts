@@ -71,7 +71,15 @@ export const actions: Actions = {
 			for (const issue of result.issues) {
 				// A count typed as counter readings is answered beside the counter end.
 				const field = issue.field === 'shots' && byCounter ? 'counterEnd' : issue.field;
-				const known = ['die', 'machine', 'countedAt', 'shots', 'counterStart', 'counterEnd', 'note'];
+				const known = [
+					'die',
+					'machine',
+					'countedAt',
+					'shots',
+					'counterStart',
+					'counterEnd',
+					'note'
+				];
 				setError(form, (known.includes(field) ? field : '') as 'die', issue.message);
 			}
 			return fail(400, { form });

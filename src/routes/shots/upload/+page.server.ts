@@ -33,7 +33,9 @@ export const actions: Actions = {
 		try {
 			text = new TextDecoder('utf-8', { fatal: true }).decode(await file.arrayBuffer());
 		} catch {
-			return fail(400, { fileError: 'The file is not UTF-8 text. Save it as "CSV UTF-8" and try again.' });
+			return fail(400, {
+				fileError: 'The file is not UTF-8 text. Save it as "CSV UTF-8" and try again.'
+			});
 		}
 		const parsed = parseShotCsv(text);
 		if (!parsed.ok) return fail(400, { fileError: parsed.message, fileName: file.name });
