@@ -6,7 +6,7 @@ import { migrateToLatest, openDatabase } from '../src/lib/server/db/connect';
 import { seedDemo } from './lib/demo-scenario';
 
 const port = process.env.E2E_PORT ?? '4173';
-const dir = path.resolve('test-results/e2e-data');
+const dir = path.resolve(`test-results/e2e-data-${port}`);
 fs.rmSync(dir, { recursive: true, force: true });
 fs.mkdirSync(path.join(dir, 'uploads'), { recursive: true });
 const dbPath = path.join(dir, 'castellan.db');
