@@ -42,7 +42,7 @@ try {
 	console.warn(`Fake mail server not started (${(err as Error).message}); is one already running?`);
 }
 
-const app = spawn(process.execPath, ['build'], {
+const app = spawn(process.execPath, ['scripts/start.js'], {
 	stdio: 'inherit',
 	env: {
 		...process.env,

@@ -17,10 +17,10 @@ if (!fs.existsSync('build/index.js')) {
 }
 const db = openDatabase(dbPath);
 await migrateToLatest(db);
-await seedDemo(db);
+await seedDemo(db, new Date(), path.join(dir, 'uploads'));
 await db.destroy();
 
-const app = spawn(process.execPath, ['build'], {
+const app = spawn(process.execPath, ['scripts/start.js'], {
 	stdio: 'inherit',
 	env: {
 		...process.env,

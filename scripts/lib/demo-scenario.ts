@@ -6,6 +6,8 @@ import type { AlloyFamily, DieProcess, DieStatus } from '../../src/lib/domain';
 import { recordShots, type ShotInput } from '../../src/lib/server/shots/ledger';
 import { createUser } from '../../src/lib/server/users/users';
 import { createApiToken } from '../../src/lib/server/auth/tokens';
+import { seedScheduleDemo } from './demo-schedule';
+import { seedToolroomDemo } from './demo-toolroom';
 
 export const DEMO_PASSWORD = 'castellan-demo';
 export const DEMO_PLANT = 'Kestrel Vale Diecast Works';
@@ -208,7 +210,11 @@ export interface SeedSummary {
 }
 
 /** Fills an empty, migrated database with the demo plant. */
-export async function seedDemo(db: DB, now = new Date()): Promise<SeedSummary> {
+export async function seedDemo(
+	db: DB,
+	now = new Date(),
+	uploadDir = process.env.UPLOAD_DIR || './data/uploads'
+): Promise<SeedSummary> {
 	const rand = mulberry32(20261201);
 	const nowIso = now.toISOString();
 	await db.insertInto('customers').values(CUSTOMERS).execute();
@@ -437,6 +443,10 @@ export async function seedDemo(db: DB, now = new Date()): Promise<SeedSummary> {
 		customerId: null,
 		createdBy: admin.id
 	});
+	// The toolroom's jobs, inspections (with drawn surface images) and cooling checks, then the
+	// planner's bookings for the coming weeks.
+	await seedToolroomDemo(db, now, uploadDir);
+	await seedScheduleDemo(db, now);
 	await sql`pragma optimize`.execute(db);
 	return { dies: specs.length, entries, token };
 }

@@ -16,6 +16,7 @@ import { TOOLROOM_READERS, TOOLROOM_WORKERS } from '$lib/server/toolroom/access'
 import { getJobPage } from '$lib/server/toolroom/job-page';
 import { assignJob, cancelJob, closeJob, getJob, moveJob } from '$lib/server/toolroom/jobs';
 import { setPhotoShared, uploadPhotos } from '$lib/server/toolroom/photos';
+import { announceJobClosed } from '$lib/server/toolroom/announce';
 import type { Actions, PageServerLoad } from './$types';
 
 async function loadJob(number: string) {
@@ -73,6 +74,7 @@ export const actions: Actions = {
 			actor: { userId: user.id, role: user.role }
 		});
 		if (!result.ok) return message(form, result.message, { status: result.status });
+		await announceJobClosed(getDb(), event.params.job);
 		redirect(303, `/jobs/${event.params.job.toUpperCase()}`);
 	},
 
