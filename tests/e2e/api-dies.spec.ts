@@ -4,7 +4,7 @@ import { signIn } from './support';
 async function createToken(page: Page, name: string, scopes: string[], customer: string | null) {
 	await page.goto('/admin/tokens');
 	await page.getByLabel('Name').fill(name);
-	for (const scope of ['dies:read', 'shots:write']) {
+	for (const scope of ['dies:read', 'shots:write', 'bookings:write']) {
 		const box = page.getByLabel(new RegExp(`^${scope}`));
 		if (scopes.includes(scope)) await box.check();
 		else await box.uncheck();

@@ -1,3 +1,4 @@
+import AxeBuilder from '@axe-core/playwright';
 import { expect, test } from '@playwright/test';
 import { signIn } from './support';
 
@@ -208,7 +209,6 @@ test('a planner adds a press in tonnes-force, takes it down, and cancels a booki
 });
 
 test('schedule pages have no serious or critical accessibility violations', async ({ page }) => {
-	const { default: AxeBuilder } = await import('@axe-core/playwright');
 	await signIn(page, 'scheduler');
 	for (const path of [
 		'/board',

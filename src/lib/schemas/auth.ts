@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { API_SCOPES } from '../roles';
 
 export const MIN_PASSWORD_LENGTH = 10;
 
@@ -45,7 +46,7 @@ export const resetPasswordSchema = z.object({ userId: z.string().min(1), passwor
 
 export const tokenSchema = z.object({
 	name: z.string().trim().min(2, 'Name the token after the system that uses it.').max(80),
-	scopes: z.array(z.enum(['shots:write', 'dies:read'])).min(1, 'Choose at least one scope.'),
+	scopes: z.array(z.enum(API_SCOPES)).min(1, 'Choose at least one scope.'),
 	customerId: z.preprocess(
 		(v) => (v === '' || v === null ? undefined : v),
 		z.coerce.number().int().positive().optional()

@@ -37,7 +37,8 @@ export async function recentDailyShots(db: DB, dieId: number, asOf: string, days
 		.selectFrom('shot_daily')
 		.select(['day', 'shots'])
 		.where('die_id', '=', dieId)
-		.where('day', '>', from)
+		// From the day that holds the window's start; lifeStatus keeps only what lies inside it.
+		.where('day', '>=', from)
 		.execute();
 	return rows.map((r) => ({ at: `${r.day}T12:00:00.000Z`, shots: r.shots }));
 }
