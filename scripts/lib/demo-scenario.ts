@@ -7,6 +7,7 @@ import { recordShots, type ShotInput } from '../../src/lib/server/shots/ledger';
 import { createUser } from '../../src/lib/server/users/users';
 import { createApiToken } from '../../src/lib/server/auth/tokens';
 import { seedScheduleDemo } from './demo-schedule';
+import { seedDemoShots } from './demo-shots';
 import { seedToolroomDemo } from './demo-toolroom';
 
 export const DEMO_PASSWORD = 'castellan-demo';
@@ -445,6 +446,7 @@ export async function seedDemo(
 	});
 	// The toolroom's jobs, inspections (with drawn surface images) and cooling checks, then the
 	// planner's bookings for the coming weeks.
+	await seedDemoShots(db, now);
 	await seedToolroomDemo(db, now, uploadDir);
 	await seedScheduleDemo(db, now);
 	await sql`pragma optimize`.execute(db);

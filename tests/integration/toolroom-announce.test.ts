@@ -10,13 +10,21 @@ describe('closing a toolroom job tells the planners the die is ready again', () 
 		const { db } = plant;
 		const opened = await openJob(db, {
 			dieId: plant.dieId,
-			form: openJobSchema.parse({ kind: 'repair', half: 'cover', description: 'Weld a crack at the gate' }),
+			form: openJobSchema.parse({
+				kind: 'repair',
+				half: 'cover',
+				description: 'Weld a crack at the gate'
+			}),
 			actor: plant.lead
 		});
 		if (!opened.ok) throw new Error(opened.message);
 		const closed = await closeJob(db, {
 			number: opened.number,
-			form: closeJobSchema.parse({ findings: 'Crack 4 mm at the gate', workDone: 'Welded and polished', hours: 2.5 }),
+			form: closeJobSchema.parse({
+				findings: 'Crack 4 mm at the gate',
+				workDone: 'Welded and polished',
+				hours: 2.5
+			}),
 			actor: plant.toolmaker
 		});
 		expect(closed).toMatchObject({ ok: true, dieStatus: 'ready' });
@@ -33,7 +41,12 @@ describe('closing a toolroom job tells the planners the die is ready again', () 
 		expect(rows.every((r) => r.role === 'scheduler')).toBe(true);
 		expect(new Set(rows.map((r) => r.kind)).size).toBe(1);
 		expect(rows[0].payload).toContain(opened.number);
-		const planners = await db.selectFrom('users').select('id').where('role', '=', 'scheduler').where('active', '=', 1).execute();
+		const planners = await db
+			.selectFrom('users')
+			.select('id')
+			.where('role', '=', 'scheduler')
+			.where('active', '=', 1)
+			.execute();
 		expect(rows.length).toBe(planners.length);
 	});
 });
