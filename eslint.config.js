@@ -43,6 +43,7 @@ export default ts.config(
 	{
 		ignores: [
 			'build/',
+			'**/.svelte-kit/',
 			'.svelte-kit/',
 			'node_modules/',
 			'data/',

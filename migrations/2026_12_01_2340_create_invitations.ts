@@ -4,7 +4,6 @@ import { sql, type Kysely } from 'kysely';
 // Invitations of tooling-owner users: a one-time link (only its sha256 is kept) that lets the
 // invited person set a password and get a `customer` account bound to one customer.
 
-// eslint-disable-next-line @typescript-eslint/no-explicit-any
 export async function up(db: Kysely<any>): Promise<void> {
 	await db.schema
 		.createTable('invitations')
@@ -36,7 +35,6 @@ export async function up(db: Kysely<any>): Promise<void> {
 	await db.schema.createIndex('invitations_email').on('invitations').column('email').execute();
 }
 
-// eslint-disable-next-line @typescript-eslint/no-explicit-any
 export async function down(db: Kysely<any>): Promise<void> {
 	await db.schema.dropTable('invitations').execute();
 }

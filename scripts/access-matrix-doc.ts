@@ -11,7 +11,12 @@ export function accessMatrixMarkdown(): string {
 				)
 			)
 			.join('\n');
-	return [header, rows('pages (GET)', PAGES), rows('form actions (POST)', ACTIONS), rows('endpoints', ENDPOINTS)].join('\n');
+	return [
+		header,
+		rows('pages (GET)', PAGES),
+		rows('form actions (POST)', ACTIONS),
+		rows('endpoints', ENDPOINTS)
+	].join('\n');
 }
 
 if (import.meta.url === `file://${process.argv[1]}`) console.log(accessMatrixMarkdown());

@@ -1,8 +1,22 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import SQLite from 'better-sqlite3';
-import { expect, request as playwrightRequest, test, type APIRequestContext, type APIResponse } from '@playwright/test';
-import { ACTIONS, ENDPOINTS, PAGES, PRINCIPALS, type Cells, type Outcome, type Principal } from './access-table';
+import {
+	expect,
+	request as playwrightRequest,
+	test,
+	type APIRequestContext,
+	type APIResponse
+} from '@playwright/test';
+import {
+	ACTIONS,
+	ENDPOINTS,
+	PAGES,
+	PRINCIPALS,
+	type Cells,
+	type Outcome,
+	type Principal
+} from './access-table';
 import { ACCOUNTS, DEMO_PASSWORD } from './support';
 
 // Every page, form action and endpoint under src/routes, called as every kind of caller, against
@@ -23,19 +37,23 @@ function discover(dir = ROUTES): Discovered {
 		const id = '/' + path.relative(ROUTES, d).split(path.sep).join('/');
 		const routeId = id === '/' ? '/' : id.replace(/\/$/, '');
 		const files = fs.readdirSync(d, { withFileTypes: true });
-		if (files.some((f) => /^\+page(@.*)?\.svelte$|^\+page(\.server)?\.ts$/.test(f.name))) found.pages.push(routeId);
+		if (files.some((f) => /^\+page(@.*)?\.svelte$|^\+page(\.server)?\.ts$/.test(f.name)))
+			found.pages.push(routeId);
 		const server = path.join(d, '+page.server.ts');
 		if (fs.existsSync(server)) {
 			const text = fs.readFileSync(server, 'utf8');
 			const at = text.indexOf('export const actions');
 			if (at >= 0) {
-				for (const m of text.slice(at).matchAll(/^\t(\w+):/gm)) found.actions.push(`${routeId}?/${m[1]}`);
+				for (const m of text.slice(at).matchAll(/^\t(\w+):/gm))
+					found.actions.push(`${routeId}?/${m[1]}`);
 			}
 		}
 		const endpoint = path.join(d, '+server.ts');
 		if (fs.existsSync(endpoint)) {
 			const text = fs.readFileSync(endpoint, 'utf8');
-			for (const m of text.matchAll(/export (?:const|async function|function) (GET|POST|PUT|PATCH|DELETE)\b/g)) {
+			for (const m of text.matchAll(
+				/export (?:const|async function|function) (GET|POST|PUT|PATCH|DELETE)\b/g
+			)) {
 				found.endpoints.push(`${m[1]} ${routeId}`);
 			}
 		}
@@ -47,14 +65,19 @@ function discover(dir = ROUTES): Discovered {
 
 /** Real ids from the e2e database, so every parameterised route is called with something that exists. */
 function parameters() {
-	const db = new SQLite(path.resolve(`test-results/e2e-data-${process.env.E2E_PORT ?? 4173}/castellan.db`), { readonly: true });
+	const db = new SQLite(
+		path.resolve(`test-results/e2e-data-${process.env.E2E_PORT ?? 4173}/castellan.db`),
+		{ readonly: true }
+	);
 	const one = <T>(sql: string) => db.prepare(sql).get() as T;
 	const values = {
 		booking: one<{ id: number }>('select id from press_bookings order by id limit 1').id,
 		press: one<{ id: number }>(
 			'select machine_id as id from shot_entries where machine_id is not null group by machine_id order by count(*) desc limit 1'
 		).id,
-		job: one<{ number: string }>("select toolroom_jobs.number from toolroom_jobs join dies on dies.id = toolroom_jobs.die_id order by toolroom_jobs.id limit 1").number,
+		job: one<{ number: string }>(
+			'select toolroom_jobs.number from toolroom_jobs join dies on dies.id = toolroom_jobs.die_id order by toolroom_jobs.id limit 1'
+		).number,
 		photo: one<{ public_id: string }>(
 			"select photos.public_id from photos join dies on dies.id = photos.die_id join customers on customers.id = dies.customer_id where photos.shared_with_owner = 1 and customers.code = 'BRKPUMP' limit 1"
 		).public_id
@@ -82,7 +105,8 @@ function classify(res: APIResponse): Outcome | `status ${number}` {
 	if (s === 401) return 'unauth';
 	if (s === 403) return 'deny';
 	if (s === 404) return 'none';
-	if (s >= 300 && s < 400) return (res.headers()['location'] ?? '').includes('/sign-in') ? 'login' : 'home';
+	if (s >= 300 && s < 400)
+		return (res.headers()['location'] ?? '').includes('/sign-in') ? 'login' : 'home';
 	if (s >= 500) return `status ${s}`;
 	return 'ok';
 }
@@ -111,9 +135,18 @@ test.setTimeout(240_000);
 
 test('every route under src/routes is declared in the access table', () => {
 	const found = discover();
-	expect(found.pages.filter((r) => !(r in PAGES)), 'pages missing from PAGES').toEqual([]);
-	expect(found.actions.filter((r) => !(r in ACTIONS)), 'actions missing from ACTIONS').toEqual([]);
-	expect(found.endpoints.filter((r) => !(r in ENDPOINTS)), 'endpoints missing from ENDPOINTS').toEqual([]);
+	expect(
+		found.pages.filter((r) => !(r in PAGES)),
+		'pages missing from PAGES'
+	).toEqual([]);
+	expect(
+		found.actions.filter((r) => !(r in ACTIONS)),
+		'actions missing from ACTIONS'
+	).toEqual([]);
+	expect(
+		found.endpoints.filter((r) => !(r in ENDPOINTS)),
+		'endpoints missing from ENDPOINTS'
+	).toEqual([]);
 	// And the table names nothing that no longer exists.
 	expect(Object.keys(PAGES).filter((r) => !found.pages.includes(r))).toEqual([]);
 	expect(Object.keys(ACTIONS).filter((r) => !found.actions.includes(r))).toEqual([]);
@@ -125,13 +158,17 @@ test('every page, action and endpoint answers each caller as declared', async ()
 	const ctx = await signedInContexts();
 	const differences: string[] = [];
 	const check = (key: string, who: Principal, expected: Cells, got: Outcome | string) => {
-		if (expected[who] !== got) differences.push(`${key} as ${who}: expected ${expected[who]}, got ${got}`);
+		if (expected[who] !== got)
+			differences.push(`${key} as ${who}: expected ${expected[who]}, got ${got}`);
 	};
 
 	for (const [routeId, cells] of Object.entries(PAGES)) {
 		if (routeId === '/sign-out') continue;
 		for (const who of PRINCIPALS) {
-			const res = await ctx[who].get(concrete(routeId, p), { maxRedirects: 0, headers: { accept: 'text/html' } });
+			const res = await ctx[who].get(concrete(routeId, p), {
+				maxRedirects: 0,
+				headers: { accept: 'text/html' }
+			});
 			check(`GET ${routeId}`, who, cells, classify(res));
 		}
 	}
@@ -142,12 +179,19 @@ test('every page, action and endpoint answers each caller as declared', async ()
 			const res =
 				method === 'GET'
 					? await ctx[who].get(url, { maxRedirects: 0 })
-					: await ctx[who].fetch(url, { method, data: {}, headers: { origin: BASE }, maxRedirects: 0 });
+					: await ctx[who].fetch(url, {
+							method,
+							data: {},
+							headers: { origin: BASE },
+							maxRedirects: 0
+						});
 			check(key, who, cells, classify(res));
 		}
 	}
 	// Actions last; signing out last of all, since it ends the session.
-	const actions = Object.entries(ACTIONS).sort(([a], [b]) => Number(a.startsWith('/sign-out')) - Number(b.startsWith('/sign-out')));
+	const actions = Object.entries(ACTIONS).sort(
+		([a], [b]) => Number(a.startsWith('/sign-out')) - Number(b.startsWith('/sign-out'))
+	);
 	for (const [key, cells] of actions) {
 		const [routeId, action] = key.split('?/');
 		const url = concrete(routeId, p) + (action === 'default' ? '' : `?/${action}`);

@@ -7,7 +7,15 @@
 // to a 400 for the empty input the test sends), home = redirected to the caller's home page,
 // login = sent to sign in, deny = 403, none = 404, unauth = 401.
 
-export const PRINCIPALS = ['anon', 'admin', 'toolroom_lead', 'toolmaker', 'scheduler', 'customer', 'otherCustomer'] as const;
+export const PRINCIPALS = [
+	'anon',
+	'admin',
+	'toolroom_lead',
+	'toolmaker',
+	'scheduler',
+	'customer',
+	'otherCustomer'
+] as const;
 export type Principal = (typeof PRINCIPALS)[number];
 export type Outcome = 'ok' | 'home' | 'login' | 'deny' | 'none' | 'unauth';
 export type Cells = Record<Principal, Outcome>;

@@ -7,5 +7,7 @@ test('DEVELOPERS.md shows the access matrix the e2e test enforces', () => {
 	const start = doc.indexOf('<!-- access-matrix:start -->');
 	const end = doc.indexOf('<!-- access-matrix:end -->');
 	expect(start).toBeGreaterThan(0);
-	expect(doc.slice(start, end).trim().split('\n').slice(1).join('\n').trim()).toBe(accessMatrixMarkdown().trim());
+	expect(doc.slice(start, end).trim().split('\n').slice(1).join('\n').trim()).toBe(
+		accessMatrixMarkdown().trim()
+	);
 });

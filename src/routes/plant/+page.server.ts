@@ -11,8 +11,16 @@ export const load: PageServerLoad = async (event) => {
 		fleetCounts(db),
 		diesNearEndOfLife(db, 90),
 		listServiceAttention(db),
-		db.selectFrom('users').select((eb) => eb.fn.countAll<number>().as('n')).where('active', '=', 1).executeTakeFirstOrThrow(),
-		db.selectFrom('api_tokens').select((eb) => eb.fn.countAll<number>().as('n')).where('revoked_at', 'is', null).executeTakeFirstOrThrow(),
+		db
+			.selectFrom('users')
+			.select((eb) => eb.fn.countAll<number>().as('n'))
+			.where('active', '=', 1)
+			.executeTakeFirstOrThrow(),
+		db
+			.selectFrom('api_tokens')
+			.select((eb) => eb.fn.countAll<number>().as('n'))
+			.where('revoked_at', 'is', null)
+			.executeTakeFirstOrThrow(),
 		outboxHealth(db)
 	]);
 	return {
