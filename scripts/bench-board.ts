@@ -3,11 +3,10 @@
 // and its serialisation, for the default 28-day window. Also the wider and filtered views, the
 // bookings API for the same window, and the planner's re-check of the next 14 days' bookings.
 //   npx tsx scripts/bench-board.ts        (also part of `npm run bench`)
+import { runWhenCalledDirectly, type BenchFigure } from './lib/bench-report';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { realpathSync } from 'node:fs';
-import { fileURLToPath } from 'node:url';
 import { migrateToLatest, openDatabase, rawHandle, type DB } from '../src/lib/server/db/connect';
 import { recordShots, type ShotInput } from '../src/lib/server/shots/ledger';
 import { boardQuerySchema } from '../src/lib/schemas/schedule';
@@ -22,15 +21,6 @@ const RUNS = 20;
 const NOW = '2027-03-03T09:00:00.000Z';
 const DAY = 86_400_000;
 const HOUR = 3_600_000;
-
-interface Figure {
-	figure: string;
-	value: number;
-	unit: string;
-	target: string;
-	pass: boolean;
-	ratio?: number;
-}
 
 /** Small deterministic generator, so every run times the same plant. */
 function random(seed: number) {
@@ -207,7 +197,7 @@ async function timeRuns(fn: () => Promise<unknown>, runs = RUNS) {
 	};
 }
 
-export async function run(): Promise<Figure[]> {
+export async function run(): Promise<BenchFigure[]> {
 	const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'castellan-bench-board-'));
 	const db = openDatabase(path.join(dir, 'bench.db'));
 	try {
@@ -248,7 +238,7 @@ export async function run(): Promise<Figure[]> {
 				`planner ${planner.cpuMs.toFixed(0)} ms (wall time is the figure; on a busy machine it runs higher)`
 		);
 
-		const figure = (name: string, ms: number, target = TARGET_MS): Figure => ({
+		const figure = (name: string, ms: number, target = TARGET_MS): BenchFigure => ({
 			figure: name,
 			value: ms,
 			unit: 'ms',
@@ -280,20 +270,4 @@ export async function run(): Promise<Figure[]> {
 	}
 }
 
-function isEntryPoint(): boolean {
-	const script = process.argv[1];
-	if (!script) return false;
-	try {
-		return realpathSync(script) === realpathSync(fileURLToPath(import.meta.url));
-	} catch {
-		return false;
-	}
-}
-
-if (isEntryPoint()) {
-	for (const f of await run()) {
-		console.log(
-			`${f.figure}: ${f.value.toFixed(1)} ${f.unit} (target ${f.target}) ${f.pass ? 'pass' : 'FAIL'}`
-		);
-	}
-}
+await runWhenCalledDirectly(import.meta.url, run);

@@ -6,24 +6,14 @@
 // fresh database with plain better-sqlite3 inserts in one transaction. Prints both rates and the
 // ratio; the target is the API path at ≥ 0.5 of the raw rate.
 //   npx tsx scripts/bench-ingest.ts              (also part of `npm run bench`)
+import { runWhenCalledDirectly, type BenchFigure } from './lib/bench-report';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { realpathSync } from 'node:fs';
-import { fileURLToPath } from 'node:url';
 import { migrateToLatest, openDatabase, rawHandle, type DB } from '../src/lib/server/db/connect';
 import { createApiToken, findActiveToken } from '../src/lib/server/auth/tokens';
 import { ingestShotBody } from '../src/lib/server/shots/api-ingest';
 import { BENCH_DIES, createBenchPlant, random } from './bench-register';
-
-interface Figure {
-	figure: string;
-	value: number;
-	unit: string;
-	target: string;
-	pass: boolean;
-	ratio?: number;
-}
 
 const ENTRIES = 200_000;
 const BATCH = 1000;
@@ -170,7 +160,7 @@ async function runRound(): Promise<Round> {
 	}
 }
 
-export async function run(): Promise<Figure[]> {
+export async function run(): Promise<BenchFigure[]> {
 	// Other processes on a shared machine only ever make a run slower: best of three per path.
 	const rounds: Round[] = [];
 	for (let i = 0; i < ROUNDS; i++) {
@@ -222,19 +212,4 @@ export async function run(): Promise<Figure[]> {
 	];
 }
 
-function isMain(): boolean {
-	const script = process.argv[1];
-	if (!script) return false;
-	try {
-		return realpathSync(script) === realpathSync(fileURLToPath(import.meta.url));
-	} catch {
-		return false;
-	}
-}
-
-if (isMain()) {
-	for (const f of await run()) {
-		const v = f.unit === '×' ? f.value.toFixed(2) : Math.round(f.value).toLocaleString('en-GB');
-		console.log(`${f.pass ? 'pass' : 'FAIL'}  ${f.figure}: ${v} ${f.unit} (target ${f.target})`);
-	}
-}
+await runWhenCalledDirectly(import.meta.url, run);

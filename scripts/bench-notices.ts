@@ -3,11 +3,10 @@
 // after the first, so a few tasks are new), a repeat run (nothing new), and the first run ever
 // with the whole backlog new (split into find + write and send).
 //   npx tsx scripts/bench-notices.ts        (also part of `npm run bench`)
+import { runWhenCalledDirectly, type BenchFigure } from './lib/bench-report';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { realpathSync } from 'node:fs';
-import { fileURLToPath } from 'node:url';
 import { migrateToLatest, openDatabase, rawHandle, type DB } from '../src/lib/server/db/connect';
 import { findNoticeItems } from '../src/lib/server/notices/find';
 import { listNoticeRecipients, writeOutbox } from '../src/lib/server/notices/outbox';
@@ -17,15 +16,6 @@ const DIES = 10_000;
 const TARGET_MS = 1000;
 const NOW = '2026-03-02T06:00:00.000Z';
 const DAY = 86_400_000;
-
-interface Figure {
-	figure: string;
-	value: number;
-	unit: string;
-	target: string;
-	pass: boolean;
-	ratio?: number;
-}
 
 /** Small deterministic generator, so every run times the same plant. */
 function random(seed: number) {
@@ -90,7 +80,7 @@ async function time<T>(fn: () => Promise<T>): Promise<{ ms: number; cpuMs: numbe
 	return { ms: performance.now() - started, cpuMs: (used.user + used.system) / 1000, result };
 }
 
-export async function run(): Promise<Figure[]> {
+export async function run(): Promise<BenchFigure[]> {
 	const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'castellan-bench-notices-'));
 	const db = openDatabase(path.join(dir, 'bench.db'));
 	try {
@@ -127,7 +117,7 @@ export async function run(): Promise<Figure[]> {
 				`repeat ${repeat.cpuMs.toFixed(0)}, next day ${daily.cpuMs.toFixed(0)} + send ` +
 				`${dailySend.cpuMs.toFixed(0)} (figures are wall time; on a busy machine they run higher)`
 		);
-		const figure = (name: string, ms: number): Figure => ({
+		const figure = (name: string, ms: number): BenchFigure => ({
 			figure: name,
 			value: ms,
 			unit: 'ms',
@@ -147,20 +137,4 @@ export async function run(): Promise<Figure[]> {
 	}
 }
 
-function isEntryPoint(): boolean {
-	const script = process.argv[1];
-	if (!script) return false;
-	try {
-		return realpathSync(script) === realpathSync(fileURLToPath(import.meta.url));
-	} catch {
-		return false;
-	}
-}
-
-if (isEntryPoint()) {
-	for (const f of await run()) {
-		console.log(
-			`${f.figure}: ${f.value.toFixed(1)} ${f.unit} (target ${f.target}) ${f.pass ? 'pass' : 'FAIL'}`
-		);
-	}
-}
+await runWhenCalledDirectly(import.meta.url, run);

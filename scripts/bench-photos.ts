@@ -3,11 +3,11 @@
 // decode-resize-encode of the same image on the calling thread; and how responsive the process
 // stays while 4 such uploads run: event-loop delay and the latency of simple database reads.
 //   npx tsx scripts/bench-photos.ts        (also part of `npm run bench`)
-import fs, { realpathSync } from 'node:fs';
+import { runWhenCalledDirectly, type BenchFigure } from './lib/bench-report';
+import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { monitorEventLoopDelay } from 'node:perf_hooks';
-import { fileURLToPath } from 'node:url';
 import { createJimp } from '@jimp/core';
 import jpeg from '@jimp/js-jpeg';
 import { methods as resizeMethods } from '@jimp/plugin-resize';
@@ -22,15 +22,6 @@ const HEIGHT = 3000; // 12 MP
 const RATIO_TARGET = 1.5;
 const P95_TARGET_MS = 100;
 const RUNS = 3;
-
-interface Figure {
-	figure: string;
-	value: number;
-	unit: string;
-	target: string;
-	pass: boolean;
-	ratio?: number;
-}
 
 const Jimp = createJimp({ formats: [jpeg], plugins: [resizeMethods] });
 
@@ -128,7 +119,7 @@ const percentile = (xs: number[], p: number) => {
 	return sorted[Math.min(sorted.length - 1, Math.ceil((p / 100) * sorted.length) - 1)];
 };
 
-export async function run(): Promise<Figure[]> {
+export async function run(): Promise<BenchFigure[]> {
 	const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'castellan-bench-photos-'));
 	const db = openDatabase(path.join(dir, 'bench.db'));
 	try {
@@ -232,21 +223,4 @@ export async function run(): Promise<Figure[]> {
 	}
 }
 
-function isEntryPoint(): boolean {
-	const script = process.argv[1];
-	if (!script) return false;
-	try {
-		return realpathSync(script) === realpathSync(fileURLToPath(import.meta.url));
-	} catch {
-		return false;
-	}
-}
-
-if (isEntryPoint()) {
-	for (const f of await run()) {
-		const ratio = f.ratio === undefined ? '' : ` (ratio ${f.ratio.toFixed(2)})`;
-		console.log(
-			`${f.figure}: ${f.value.toFixed(1)} ${f.unit}${ratio} (target ${f.target}) ${f.pass ? 'pass' : 'FAIL'}`
-		);
-	}
-}
+await runWhenCalledDirectly(import.meta.url, run);

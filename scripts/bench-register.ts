@@ -7,11 +7,10 @@
 // that no load grows with the ledger.
 //   npx tsx scripts/bench-register.ts            (also part of `npm run bench`)
 //   BENCH_ROWS=2000000 npx tsx scripts/bench-register.ts   (a smaller big database)
+import { runWhenCalledDirectly, type BenchFigure } from './lib/bench-report';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { realpathSync } from 'node:fs';
-import { fileURLToPath } from 'node:url';
 import { migrateToLatest, openDatabase, rawHandle, type DB } from '../src/lib/server/db/connect';
 import { dieListQuerySchema } from '../src/lib/schemas/die';
 import { shotListQuerySchema } from '../src/lib/schemas/shots';
@@ -20,15 +19,6 @@ import { listDies, listOwnerOptions } from '../src/lib/server/dies/register';
 import { getDieShotsView } from '../src/lib/server/shots/die-shots';
 import { findDieShotSummary } from '../src/lib/server/shots/die-summary';
 import { listPresses, listShotEntries } from '../src/lib/server/shots/ledger-list';
-
-interface Figure {
-	figure: string;
-	value: number;
-	unit: string;
-	target: string;
-	pass: boolean;
-	ratio?: number;
-}
 
 export const BENCH_DIES = 2000;
 const BIG_ROWS = Number(process.env.BENCH_ROWS ?? 5_000_000);
@@ -296,10 +286,10 @@ const LOAD_NAMES: Record<string, string> = {
 	pressRunLookup: 'press-run die look-up'
 };
 
-export async function run(): Promise<Figure[]> {
+export async function run(): Promise<BenchFigure[]> {
 	const big = await buildAndTime(BIG_ROWS);
 	const small = await buildAndTime(SMALL_ROWS);
-	const figures: Figure[] = [];
+	const figures: BenchFigure[] = [];
 	const bigLabel = `${(BIG_ROWS / 1e6).toLocaleString('en-GB')}M`;
 	for (const [key, name] of Object.entries(LOAD_NAMES)) {
 		const b = big.timings[key];
@@ -347,20 +337,4 @@ export async function run(): Promise<Figure[]> {
 	return figures;
 }
 
-function isMain(): boolean {
-	const script = process.argv[1];
-	if (!script) return false;
-	try {
-		return realpathSync(script) === realpathSync(fileURLToPath(import.meta.url));
-	} catch {
-		return false;
-	}
-}
-
-if (isMain()) {
-	const figures = await run();
-	for (const f of figures) {
-		const v = f.unit === '×' ? f.value.toFixed(2) : f.value.toFixed(f.value < 10 ? 2 : 1);
-		console.log(`${f.pass ? 'pass' : 'FAIL'}  ${f.figure}: ${v} ${f.unit} (target ${f.target})`);
-	}
-}
+await runWhenCalledDirectly(import.meta.url, run);

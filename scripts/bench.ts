@@ -3,15 +3,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { pathToFileURL } from 'node:url';
-
-export interface BenchFigure {
-	figure: string;
-	value: number;
-	unit: string;
-	target: string;
-	pass: boolean;
-	ratio?: number;
-}
+import type { BenchFigure } from './lib/bench-report';
 
 const dir = path.dirname(new URL(import.meta.url).pathname);
 const only = process.argv.slice(2);

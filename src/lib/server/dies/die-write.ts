@@ -32,6 +32,24 @@ async function checkReferences(
 	return null;
 }
 
+/** The die's register data as columns; empty optional text is stored as null. */
+function registerColumns(form: DieForm) {
+	return {
+		number: form.number,
+		part_name: form.partName,
+		part_number: form.partNumber || null,
+		customer_id: form.customerId,
+		alloy_id: form.alloyId,
+		process: form.process,
+		cavities: form.cavities,
+		projected_area_cm2: form.projectedAreaCm2,
+		has_slides: form.hasSlides ? 1 : 0,
+		location: form.location || null,
+		notes: form.notes || null,
+		expected_life_shots: form.expectedLifeShots ?? null
+	};
+}
+
 /** Registers a new die with both halves and the service plan of its alloy family, in one transaction. */
 export async function createDie(
 	db: DB,
@@ -50,18 +68,7 @@ export async function createDie(
 		const die = await trx
 			.insertInto('dies')
 			.values({
-				number: form.number,
-				part_name: form.partName,
-				part_number: form.partNumber || null,
-				customer_id: form.customerId,
-				alloy_id: form.alloyId,
-				process: form.process,
-				cavities: form.cavities,
-				projected_area_cm2: form.projectedAreaCm2,
-				has_slides: form.hasSlides ? 1 : 0,
-				location: form.location || null,
-				notes: form.notes || null,
-				expected_life_shots: form.expectedLifeShots ?? null,
+				...registerColumns(form),
 				created_at: at,
 				updated_at: at
 			})
@@ -118,18 +125,7 @@ export async function updateDie(
 		await trx
 			.updateTable('dies')
 			.set({
-				number: form.number,
-				part_name: form.partName,
-				part_number: form.partNumber || null,
-				customer_id: form.customerId,
-				alloy_id: form.alloyId,
-				process: form.process,
-				cavities: form.cavities,
-				projected_area_cm2: form.projectedAreaCm2,
-				has_slides: form.hasSlides ? 1 : 0,
-				location: form.location || null,
-				notes: form.notes || null,
-				expected_life_shots: form.expectedLifeShots ?? null,
+				...registerColumns(form),
 				updated_at: at
 			})
 			.where('id', '=', dieId)
