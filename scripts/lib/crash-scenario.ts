@@ -265,10 +265,13 @@ class ServerKeeper {
 				...process.env,
 				DATABASE_PATH: this.file,
 				PORT: String(port),
-				INGEST_USER_ID: USER_ID
+				INGEST_USER_ID: USER_ID,
+				INGEST_EXIT_WITH_PARENT: '1'
 			},
-			stdio: ['ignore', 'pipe', 'pipe']
+			stdio: ['pipe', 'pipe', 'pipe']
 		});
+		// The pipe is only there to close when this process dies (see ingest-server.ts).
+		child.stdin!.on('error', () => {});
 		child.stderr!.setEncoding('utf8');
 		child.stderr!.on('data', (text: string) => {
 			this.log.push(...text.trimEnd().split('\n'));

@@ -89,6 +89,13 @@ server.listen(Number(process.env.PORT ?? 0), '127.0.0.1', () => {
 	console.log(`ready ${port}`);
 });
 
+// Started by the crash scenario, it must not outlive it: if the test runner is killed or times
+// out, the pipe on stdin closes and the server goes with it.
+if (process.env.INGEST_EXIT_WITH_PARENT === '1') {
+	process.stdin.on('close', () => process.exit(0));
+	process.stdin.resume();
+}
+
 // A polite stop when asked; the scenario itself stops it with SIGKILL, on purpose.
 process.on('SIGTERM', () => {
 	server.close();
