@@ -1,6 +1,7 @@
-import type { Handle, ServerInit } from '@sveltejs/kit';
+import { json, text, type Handle, type ServerInit } from '@sveltejs/kit';
 import { sequence } from '@sveltejs/kit/hooks';
 import { building } from '$app/environment';
+import { CONTROL_CHARACTERS, CONTROL_CHARACTERS_MESSAGE } from '$lib/server/api/respond';
 import { getLucia } from '$lib/server/auth';
 import { getDb } from '$lib/server/db';
 import { migrateToLatest } from '$lib/server/db/connect';
@@ -47,6 +48,28 @@ const securityHeaders: Handle = async ({ event, resolve }) => {
 	return response;
 };
 
+// A form post carrying control characters is refused before any action sees it (the JSON API
+// does the same in readJsonBody); multipart uploads are left to their own checks.
+const refuseControlCharacters: Handle = async ({ event, resolve }) => {
+	const type = event.request.headers.get('content-type') ?? '';
+	if (event.request.method !== 'POST' || !type.startsWith('application/x-www-form-urlencoded')) {
+		return resolve(event);
+	}
+	const fields = new URLSearchParams(await event.request.clone().text());
+	const bad = [...fields].some(
+		([k, v]) => CONTROL_CHARACTERS.test(k) || CONTROL_CHARACTERS.test(v)
+	);
+	if (!bad) return resolve(event);
+	// A form sent by use:enhance expects an action result; a plain form post gets the sentence.
+	if (event.request.headers.get('x-sveltekit-action') === 'true') {
+		return json({ type: 'error', error: { message: CONTROL_CHARACTERS_MESSAGE } }, { status: 400 });
+	}
+	return text(CONTROL_CHARACTERS_MESSAGE, {
+		status: 400,
+		headers: { 'content-type': 'text/plain; charset=utf-8' }
+	});
+};
+
 const requestLog: Handle = async ({ event, resolve }) => {
 	const started = performance.now();
 	const response = await resolve(event);
@@ -57,4 +80,4 @@ const requestLog: Handle = async ({ event, resolve }) => {
 	return response;
 };
 
-export const handle = sequence(requestLog, securityHeaders, authenticate);
+export const handle = sequence(requestLog, securityHeaders, refuseControlCharacters, authenticate);

@@ -1,3 +1,5 @@
+import { createJimp } from '@jimp/core';
+import jpeg from '@jimp/js-jpeg';
 import { expect, test, type Locator, type Page } from '@playwright/test';
 import { ACCOUNTS, DEMO_PASSWORD } from './support';
 
@@ -5,6 +7,19 @@ import { ACCOUNTS, DEMO_PASSWORD } from './support';
 // Space, arrow keys and typing. Every control reached must show where the focus is. Die D-0125 is
 // used here and nowhere else.
 const DIE = 'D-0125';
+const Jimp = createJimp({ formats: [jpeg] });
+
+/** A small generated grey "surface" picture, so the test needs no binary fixture. */
+async function surfacePhoto(): Promise<Buffer> {
+	const width = 160;
+	const height = 120;
+	const data = Buffer.alloc(width * height * 4);
+	for (let i = 0; i < width * height; i++) {
+		const v = 100 + ((i * 7) % 50);
+		data.set([v, v, v + 6, 255], i * 4);
+	}
+	return new Jimp({ data, width, height }).getBuffer('image/jpeg', { quality: 85 });
+}
 
 /** Fails unless the focused element draws a visible focus indicator (outline or ring). */
 async function expectVisibleFocus(page: Page) {
@@ -51,8 +66,13 @@ test('a toolmaker repairs a die with the keyboard alone', async ({ page }, info)
 	await expect(skip).toBeInViewport();
 	await expectVisibleFocus(page);
 
+	// Following it skips the header: the next Tab is inside the main content, on the e-mail field.
+	await page.keyboard.press('Enter');
+	await page.keyboard.press('Tab');
+	await expect(page.getByLabel('E-mail')).toBeFocused();
+	await expectVisibleFocus(page);
+
 	// Sign in.
-	await tabTo(page, page.getByLabel('E-mail'));
 	await page.keyboard.type(ACCOUNTS.toolmaker);
 	await page.keyboard.press('Tab');
 	await expect(page.getByLabel('Password')).toBeFocused();
@@ -62,7 +82,10 @@ test('a toolmaker repairs a die with the keyboard alone', async ({ page }, info)
 	await expect(page).toHaveURL(/\/toolroom$/);
 
 	// Find the die through the register's search.
-	await tabTo(page, page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Die register' }));
+	await tabTo(
+		page,
+		page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Die register' })
+	);
 	await page.keyboard.press('Enter');
 	await expect(page).toHaveURL(/\/dies$/);
 	await tabTo(page, page.getByRole('searchbox', { name: 'Search' }));
@@ -76,7 +99,9 @@ test('a toolmaker repairs a die with the keyboard alone', async ({ page }, info)
 	// The die's toolroom tab, with the safety cautions before the job form.
 	await tabTo(
 		page,
-		page.getByRole('navigation', { name: 'Die sections' }).getByRole('link', { name: 'Toolroom jobs' })
+		page
+			.getByRole('navigation', { name: 'Die sections' })
+			.getByRole('link', { name: 'Toolroom jobs' })
 	);
 	await page.keyboard.press('Enter');
 	await expect(page).toHaveURL(new RegExp(`/dies/${DIE}/jobs$`));
@@ -112,6 +137,18 @@ test('a toolmaker repairs a die with the keyboard alone', async ({ page }, info)
 	await expect(
 		page.getByRole('region', { name: /TJ-\d{5}/ }).getByText('In progress', { exact: true })
 	).toBeVisible();
+
+	// A photo: Space on the file field opens the chooser (the test hands it the file).
+	await tabTo(page, page.getByLabel('Choose photos'));
+	const chooser = page.waitForEvent('filechooser');
+	await page.keyboard.press('Space');
+	await (
+		await chooser
+	).setFiles({ name: 'boss-core.jpg', mimeType: 'image/jpeg', buffer: await surfacePhoto() });
+	await tabTo(page, page.getByRole('button', { name: 'Upload photos' }));
+	await page.keyboard.press('Enter');
+	await expect(page.getByText('1 photo added.')).toBeVisible();
+	await expect(page.getByRole('heading', { name: 'Photos (1)' })).toBeVisible();
 
 	// Record findings and close it; Space ticks a checkbox.
 	await tabTo(page, page.getByLabel('Findings'));

@@ -102,6 +102,21 @@ for (const [who, paths] of Object.entries(PAGES)) {
 	}
 }
 
+test('a form showing its field errors has no serious or critical axe violations', async ({
+	page
+}) => {
+	await signIn(page, 'toolroom_lead');
+	await page.goto('/dies/new');
+	await page.getByRole('button', { name: 'Register die' }).click();
+	await expect(page.locator('[aria-invalid="true"]').first()).toBeVisible();
+	const results = await new AxeBuilder({ page }).analyze();
+	expect(
+		results.violations
+			.filter((v) => v.impact === 'serious' || v.impact === 'critical')
+			.map((v) => `${v.id}: ${v.nodes[0]?.target}`)
+	).toEqual([]);
+});
+
 test('the sign-in page is accessible and carries the security headers', async ({ page }) => {
 	const res = await page.goto('/sign-in');
 	const h = res!.headers();

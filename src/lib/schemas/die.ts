@@ -13,7 +13,11 @@ export const dieFormSchema = z.object({
 		.trim()
 		.toUpperCase()
 		.regex(dieNumberPattern, 'Use 2–20 capital letters, digits or dashes, e.g. D-0147.'),
-	partName: z.string().trim().min(1, 'Name the part this die casts.').max(120),
+	partName: z
+		.string()
+		.trim()
+		.min(1, 'Name the part this die casts.')
+		.max(120, 'Keep it under 120 characters.'),
 	partNumber: optionalText(60),
 	customerId: z.coerce.number({ error: 'Choose the owner.' }).int().positive('Choose the owner.'),
 	alloyId: z.coerce.number({ error: 'Choose the alloy.' }).int().positive('Choose the alloy.'),
@@ -39,9 +43,9 @@ export const dieFormSchema = z.object({
 			.max(10_000_000, 'More than 10 million shots is not plausible.')
 			.optional()
 	),
-	coverSerial: z.string().trim().max(40).optional(),
-	ejectorSerial: z.string().trim().max(40).optional(),
-	steel: z.string().trim().max(40).default('H13')
+	coverSerial: z.string().trim().max(40, 'Keep it under 40 characters.').optional(),
+	ejectorSerial: z.string().trim().max(40, 'Keep it under 40 characters.').optional(),
+	steel: z.string().trim().max(40, 'Keep it under 40 characters.').default('H13')
 });
 export type DieForm = z.infer<typeof dieFormSchema>;
 

@@ -16,7 +16,11 @@ export const customerSchema = z.object({
 		.trim()
 		.toUpperCase()
 		.regex(/^[A-Z0-9]{2,12}$/, 'Use 2–12 capital letters or digits, e.g. NORDPUMP.'),
-	name: z.string().trim().min(2, 'Enter the customer’s name.').max(120),
+	name: z
+		.string()
+		.trim()
+		.min(2, 'Enter the customer’s name.')
+		.max(120, 'Keep it under 120 characters.'),
 	contactEmail: z
 		.union([z.literal(''), z.string().trim().email('Enter a valid e-mail address.')])
 		.default('')

@@ -36,6 +36,33 @@ export function apiRoute<E extends RequestEvent>(handler: (event: E) => Promise<
 	};
 }
 
+/**
+ * C0 control characters other than tab, line feed and carriage return, and DEL. Nobody types
+ * them; pasted or forged, they vanish in the browser, break CSV cells and mail headers.
+ */
+// eslint-disable-next-line no-control-regex -- matching control characters is the point
+export const CONTROL_CHARACTERS = /[\u0000-\u0008\u000B\u000C\u000E-\u001F\u007F]/;
+export const CONTROL_CHARACTERS_MESSAGE =
+	'Text may not contain control characters such as NUL; remove them and send again.';
+
+/** True when any string (key or value) in a parsed JSON value holds a control character. */
+export function hasControlCharacters(value: unknown): boolean {
+	// Iterative, so a deeply nested body cannot overflow the stack.
+	const pending: unknown[] = [value];
+	while (pending.length) {
+		const v = pending.pop();
+		if (typeof v === 'string') {
+			if (CONTROL_CHARACTERS.test(v)) return true;
+		} else if (v && typeof v === 'object') {
+			for (const [key, inner] of Object.entries(v)) {
+				if (CONTROL_CHARACTERS.test(key)) return true;
+				pending.push(inner);
+			}
+		}
+	}
+	return false;
+}
+
 /** Reads a JSON body with a size cap and a clear answer for malformed input. */
 export async function readJsonBody(request: Request, maxBytes = 2_000_000): Promise<unknown> {
 	const type = request.headers.get('content-type') ?? '';
@@ -46,9 +73,12 @@ export async function readJsonBody(request: Request, maxBytes = 2_000_000): Prom
 	if (Buffer.byteLength(text) > maxBytes) {
 		throw new ApiError(413, `The body is larger than ${Math.round(maxBytes / 1e6)} MB.`);
 	}
+	let body: unknown;
 	try {
-		return JSON.parse(text);
+		body = JSON.parse(text);
 	} catch {
 		throw new ApiError(400, 'The body is not valid JSON.');
 	}
+	if (hasControlCharacters(body)) throw new ApiError(400, CONTROL_CHARACTERS_MESSAGE);
+	return body;
 }
