@@ -126,6 +126,8 @@ export interface HalfLife {
 	installedAt: string;
 	removedAt: string | null;
 	removalReason: string | null;
+	/** The die's total when the half went in (0 for the originals). */
+	dieShotsAtInstall: number;
 	active: boolean;
 	shots: number;
 	/** The half's own expected life when set, else the die's. */
@@ -152,6 +154,7 @@ export async function listHalfLives(db: DB, dieId: number): Promise<HalfLife[]> 
 				'die_halves.installed_at',
 				'die_halves.removed_at',
 				'die_halves.removal_reason',
+				'die_halves.die_shots_at_install',
 				'die_halves.active',
 				'die_halves.shots',
 				'die_halves.expected_life_shots as own',
@@ -183,6 +186,7 @@ export async function listHalfLives(db: DB, dieId: number): Promise<HalfLife[]> 
 			installedAt: h.installed_at,
 			removedAt: h.removed_at,
 			removalReason: h.removal_reason,
+			dieShotsAtInstall: h.die_shots_at_install,
 			active: h.active === 1,
 			shots: h.shots,
 			expectedLifeShots: h.expected,

@@ -39,6 +39,10 @@ const UNKNOWN_DIE = 'There is no die ';
 export const isUnknownDieIssue = (i: ShotIssue) =>
 	i.field === 'die' && i.message.startsWith(UNKNOWN_DIE);
 
+/** True for a refusal because the counter readings were already counted (overlap or went back). */
+export const isCounterOverlapIssue = (i: ShotIssue) =>
+	i.field === 'counterStart' && /overlaps|is below the last reading/.test(i.message);
+
 export interface LedgerActor {
 	userId: string | null;
 	tokenId: number | null;
