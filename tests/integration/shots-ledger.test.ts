@@ -464,11 +464,21 @@ describe('POST /api/v1/shots body handling', () => {
 		};
 		expect(await ingestShotBody(p.db, body, plant, NOW)).toEqual({
 			status: 201,
-			body: { accepted: 1, duplicates: 0, dies: [{ die: 'Z-0001', totalShots: 250 }] }
+			body: {
+				accepted: 1,
+				duplicates: 0,
+				dies: [{ die: 'Z-0001', totalShots: 250 }],
+				warnings: []
+			}
 		});
 		expect(await ingestShotBody(p.db, body, plant, NOW)).toEqual({
 			status: 201,
-			body: { accepted: 0, duplicates: 1, dies: [{ die: 'Z-0001', totalShots: 250 }] }
+			body: {
+				accepted: 0,
+				duplicates: 1,
+				dies: [{ die: 'Z-0001', totalShots: 250 }],
+				warnings: []
+			}
 		});
 	});
 
@@ -518,7 +528,8 @@ describe('POST /api/v1/shots body handling', () => {
 				{
 					index: 2,
 					field: 'counted_at',
-					message: 'Unknown field "counted_at"; use die, shots, countedAt, machine, key.'
+					message:
+						'Unknown field "counted_at"; use die, shots, counterStart, counterEnd, countedAt, press, key.'
 				},
 				{ index: 3, field: 'entry', message: 'Each entry must be an object.' }
 			]
