@@ -37,6 +37,28 @@ const optionalNote = z
 	.optional()
 	.default('');
 
+/**
+ * Counter readings come in pairs, or a count instead: the one refine the press-run form, the
+ * entry correction and the API share (each with its own words).
+ */
+function refineCounterPair(
+	v: { counterStart?: number | null; counterEnd?: number | null; shots?: number },
+	ctx: z.RefinementCtx,
+	words: { pair: string; missing: string | null }
+) {
+	const hasStart = v.counterStart != null;
+	const hasEnd = v.counterEnd != null;
+	if (hasStart !== hasEnd) {
+		ctx.addIssue({
+			code: 'custom',
+			path: [hasStart ? 'counterEnd' : 'counterStart'],
+			message: words.pair
+		});
+	} else if (!hasStart && v.shots === undefined && words.missing) {
+		ctx.addIssue({ code: 'custom', path: ['shots'], message: words.missing });
+	}
+}
+
 /** Press-run form: a shot count, or counter readings at start and end of the run. */
 export const pressRunSchema = z
 	.object({
@@ -55,23 +77,12 @@ export const pressRunSchema = z
 		/** A person's reason to count an entry the plausibility checks question. */
 		confirmReason: optionalNote
 	})
-	.superRefine((v, ctx) => {
-		const hasStart = v.counterStart !== undefined;
-		const hasEnd = v.counterEnd !== undefined;
-		if (hasStart !== hasEnd) {
-			ctx.addIssue({
-				code: 'custom',
-				path: [hasStart ? 'counterEnd' : 'counterStart'],
-				message: 'Give both counter readings, or leave both empty and enter the shots.'
-			});
-		} else if (!hasStart && v.shots === undefined) {
-			ctx.addIssue({
-				code: 'custom',
-				path: ['shots'],
-				message: 'Enter the shots, or the counter start and end.'
-			});
-		}
-	});
+	.superRefine((v, ctx) =>
+		refineCounterPair(v, ctx, {
+			pair: 'Give both counter readings, or leave both empty and enter the shots.',
+			missing: 'Enter the shots, or the counter start and end.'
+		})
+	);
 export type PressRunForm = z.infer<typeof pressRunSchema>;
 
 /** Shots of a press-run form: the count given, or the counter difference. */
@@ -135,21 +146,10 @@ export const entryChangeSchema = z
 	})
 	.superRefine((v, ctx) => {
 		if (v.action !== 'correct') return;
-		const hasStart = v.counterStart !== undefined;
-		const hasEnd = v.counterEnd !== undefined;
-		if (hasStart !== hasEnd) {
-			ctx.addIssue({
-				code: 'custom',
-				path: [hasStart ? 'counterEnd' : 'counterStart'],
-				message: 'Give both counter readings, or neither.'
-			});
-		} else if (!hasStart && v.shots === undefined && v.countedAt === '') {
-			ctx.addIssue({
-				code: 'custom',
-				path: ['shots'],
-				message: 'Enter the corrected shots, counter readings or time.'
-			});
-		}
+		refineCounterPair(v, ctx, {
+			pair: 'Give both counter readings, or neither.',
+			missing: v.countedAt === '' ? 'Enter the corrected shots, counter readings or time.' : null
+		});
 	});
 export type EntryChangeForm = z.infer<typeof entryChangeSchema>;
 
@@ -224,21 +224,10 @@ export const apiShotEntrySchema = z
 			.nullish()
 	})
 	.superRefine((v, ctx) => {
-		const hasStart = v.counterStart != null;
-		const hasEnd = v.counterEnd != null;
-		if (hasStart !== hasEnd) {
-			ctx.addIssue({
-				code: 'custom',
-				path: [hasStart ? 'counterEnd' : 'counterStart'],
-				message: 'Send both counterStart and counterEnd, or shots alone.'
-			});
-		} else if (!hasStart && v.shots === undefined) {
-			ctx.addIssue({
-				code: 'custom',
-				path: ['shots'],
-				message: 'shots is required (or counterStart and counterEnd).'
-			});
-		}
+		refineCounterPair(v, ctx, {
+			pair: 'Send both counterStart and counterEnd, or shots alone.',
+			missing: 'shots is required (or counterStart and counterEnd).'
+		});
 		if (v.press && v.machine && v.press.toLowerCase() !== v.machine.toLowerCase()) {
 			ctx.addIssue({
 				code: 'custom',

@@ -961,11 +961,54 @@ const dieTotalOf = (raw: SQLite.Database, dieId: number) =>
 		.get(dieId)!.total_shots;
 
 /**
+ * The frame every change to one entry shares: the reason is checked, then, in one IMMEDIATE
+ * transaction under the ledger's connection lock, the entry is found on the named die and handed
+ * to `change`. A thrown RefusedCorrection rolls everything back and comes back as a refusal.
+ */
+async function changeEntry(
+	db: DB,
+	dieNumber: string,
+	entryId: number,
+	reason: string,
+	what: string,
+	change: (raw: SQLite.Database, entry: EntryRow, reason: string) => EntryChangeResult
+): Promise<EntryChangeResult> {
+	const problem = checkReason(reason, what);
+	if (problem) return { ok: false, field: 'reason', message: problem };
+	const raw = rawHandle(db);
+	try {
+		return await db.connection().execute(async () =>
+			raw
+				.transaction((): EntryChangeResult => {
+					const entry = raw
+						.prepare<[number, string], EntryRow>(ENTRY_SELECT)
+						.get(entryId, dieNumber);
+					if (!entry) {
+						return { ok: false, field: 'entry', message: 'There is no such entry on this die.' };
+					}
+					return change(raw, entry, reason.trim());
+				})
+				.immediate()
+		);
+	} catch (e) {
+		if (!(e instanceof RefusedCorrection)) throw e;
+		const first = e.issues[0];
+		return { ok: false, field: first.field, message: first.message, issues: e.issues };
+	}
+}
+
+class RefusedCorrection extends Error {
+	constructor(readonly issues: ShotIssue[]) {
+		super('Correction refused');
+	}
+}
+
+/**
  * Voids a ledger entry (toolroom lead, with a reason): the entry stays in the ledger, shown struck
  * through, and its shots come off the die, the halves that took them and the daily roll-up in the
  * same transaction. Audited. A voided entry cannot be voided again.
  */
-export async function voidShotEntry(
+export function voidShotEntry(
 	db: DB,
 	dieNumber: string,
 	entryId: number,
@@ -973,44 +1016,34 @@ export async function voidShotEntry(
 	actor: LedgerActor,
 	now = new Date().toISOString()
 ): Promise<EntryChangeResult> {
-	const problem = checkReason(reason, 'void');
-	if (problem) return { ok: false, field: 'reason', message: problem };
-	const raw = rawHandle(db);
-	return db.connection().execute(async () =>
-		raw
-			.transaction((): EntryChangeResult => {
-				const entry = raw.prepare<[number, string], EntryRow>(ENTRY_SELECT).get(entryId, dieNumber);
-				if (!entry)
-					return { ok: false, field: 'entry', message: 'There is no such entry on this die.' };
-				if (entry.voided_at) {
-					return { ok: false, field: 'entry', message: 'This entry is already voided.' };
-				}
-				const total = dieTotalOf(raw, entry.die_id);
-				if (total - entry.shots < 0) {
-					return {
-						ok: false,
-						field: 'entry',
-						message: `Voiding it would take die ${entry.die_number} below zero shots (it has ${total}).`
-					};
-				}
-				voidNow(raw, entry, reason.trim(), actor, now);
-				prepared(raw).audit.run(
-					now,
-					actor.userId,
-					actor.tokenId,
-					'shots.void',
-					entry.die_id,
-					JSON.stringify({
-						entry: entry.id,
-						shots: entry.shots,
-						countedAt: entry.counted_at,
-						reason: reason.trim()
-					})
-				);
-				return { ok: true, entryId: entry.id, dieTotal: dieTotalOf(raw, entry.die_id) };
+	return changeEntry(db, dieNumber, entryId, reason, 'void', (raw, entry, why) => {
+		if (entry.voided_at) {
+			return { ok: false, field: 'entry', message: 'This entry is already voided.' };
+		}
+		const total = dieTotalOf(raw, entry.die_id);
+		if (total - entry.shots < 0) {
+			return {
+				ok: false,
+				field: 'entry',
+				message: `Voiding it would take die ${entry.die_number} below zero shots (it has ${total}).`
+			};
+		}
+		voidNow(raw, entry, why, actor, now);
+		prepared(raw).audit.run(
+			now,
+			actor.userId,
+			actor.tokenId,
+			'shots.void',
+			entry.die_id,
+			JSON.stringify({
+				entry: entry.id,
+				shots: entry.shots,
+				countedAt: entry.counted_at,
+				reason: why
 			})
-			.immediate()
-	);
+		);
+		return { ok: true, entryId: entry.id, dieTotal: dieTotalOf(raw, entry.die_id) };
+	});
 }
 
 export interface EntryCorrection {
@@ -1027,7 +1060,7 @@ export interface EntryCorrection {
  * (its counters against the others, its shots credited to the halves on the die at its time).
  * Warnings on the new figures are taken as confirmed by the lead's reason. Audited.
  */
-export async function correctShotEntry(
+export function correctShotEntry(
 	db: DB,
 	dieNumber: string,
 	entryId: number,
@@ -1036,95 +1069,65 @@ export async function correctShotEntry(
 	actor: LedgerActor,
 	now = new Date().toISOString()
 ): Promise<EntryChangeResult> {
-	const problem = checkReason(reason, 'correction');
-	if (problem) return { ok: false, field: 'reason', message: problem };
-	const raw = rawHandle(db);
-	return db
-		.connection()
-		.execute(async () =>
-			raw
-				.transaction((): EntryChangeResult => {
-					const entry = raw
-						.prepare<[number, string], EntryRow>(ENTRY_SELECT)
-						.get(entryId, dieNumber);
-					if (!entry)
-						return { ok: false, field: 'entry', message: 'There is no such entry on this die.' };
-					if (entry.voided_at) {
-						return { ok: false, field: 'entry', message: 'A voided entry cannot be corrected.' };
-					}
-					if (entry.source === 'correction') {
-						return {
-							ok: false,
-							field: 'entry',
-							message: 'A correcting entry is not corrected; void it and post a new correction.'
-						};
-					}
-					const counterStart =
-						change.counterStart !== undefined ? change.counterStart : entry.counter_start;
-					const counterEnd =
-						change.counterEnd !== undefined ? change.counterEnd : entry.counter_end;
-					const byCounter = counterStart != null && counterEnd != null;
-					const shots = byCounter ? counterEnd - counterStart : (change.shots ?? entry.shots);
-					voidNow(raw, entry, reason.trim(), actor, now);
-					const input: ShotInput = {
-						die: entry.die_number,
-						shots,
-						countedAt: change.countedAt || entry.counted_at,
-						machine: change.machine !== undefined ? change.machine : entry.machine,
-						counterStart: byCounter ? counterStart : null,
-						counterEnd: byCounter ? counterEnd : null,
-						note: entry.note,
-						confirmReason: reason
-					};
-					const result = recordRowsNow(
-						raw,
-						[input],
-						actor,
-						{ source: entry.source, replacesId: entry.id },
-						now
-					);
-					if (!result.ok) {
-						// Throwing rolls the void back with the refused replacement.
-						throw new RefusedCorrection(result.issues);
-					}
-					prepared(raw).audit.run(
-						now,
-						actor.userId,
-						actor.tokenId,
-						'shots.correct',
-						entry.die_id,
-						JSON.stringify({
-							entry: entry.id,
-							replacedBy: result.entryIds[0],
-							from: { shots: entry.shots, countedAt: entry.counted_at },
-							to: { shots, countedAt: input.countedAt },
-							reason: reason.trim()
-						})
-					);
-					return { ok: true, entryId: result.entryIds[0], dieTotal: dieTotalOf(raw, entry.die_id) };
-				})
-				.immediate()
-		)
-		.catch((e: unknown) => {
-			if (e instanceof RefusedCorrection) {
-				const first = e.issues[0];
-				return { ok: false as const, field: first.field, message: first.message, issues: e.issues };
-			}
-			throw e;
-		});
-}
-
-class RefusedCorrection extends Error {
-	constructor(readonly issues: ShotIssue[]) {
-		super('Correction refused');
-	}
+	return changeEntry(db, dieNumber, entryId, reason, 'correction', (raw, entry, why) => {
+		if (entry.voided_at) {
+			return { ok: false, field: 'entry', message: 'A voided entry cannot be corrected.' };
+		}
+		if (entry.source === 'correction') {
+			return {
+				ok: false,
+				field: 'entry',
+				message: 'A correcting entry is not corrected; void it and post a new correction.'
+			};
+		}
+		const counterStart =
+			change.counterStart !== undefined ? change.counterStart : entry.counter_start;
+		const counterEnd = change.counterEnd !== undefined ? change.counterEnd : entry.counter_end;
+		const byCounter = counterStart != null && counterEnd != null;
+		const shots = byCounter ? counterEnd - counterStart : (change.shots ?? entry.shots);
+		voidNow(raw, entry, why, actor, now);
+		const input: ShotInput = {
+			die: entry.die_number,
+			shots,
+			countedAt: change.countedAt || entry.counted_at,
+			machine: change.machine !== undefined ? change.machine : entry.machine,
+			counterStart: byCounter ? counterStart : null,
+			counterEnd: byCounter ? counterEnd : null,
+			note: entry.note,
+			confirmReason: why
+		};
+		const result = recordRowsNow(
+			raw,
+			[input],
+			actor,
+			{ source: entry.source, replacesId: entry.id },
+			now
+		);
+		// Throwing rolls the void back with the refused replacement.
+		if (!result.ok) throw new RefusedCorrection(result.issues);
+		prepared(raw).audit.run(
+			now,
+			actor.userId,
+			actor.tokenId,
+			'shots.correct',
+			entry.die_id,
+			JSON.stringify({
+				entry: entry.id,
+				replacedBy: result.entryIds[0],
+				from: { shots: entry.shots, countedAt: entry.counted_at },
+				to: { shots, countedAt: input.countedAt },
+				reason: why
+			})
+		);
+		return { ok: true, entryId: result.entryIds[0], dieTotal: dieTotalOf(raw, entry.die_id) };
+	});
 }
 
 /**
  * Confirms an entry that came in "to review" (toolroom lead, with a reason): it keeps counting as
  * it did and leaves the review list. Audited.
  */
-export async function confirmShotEntry(
+export function confirmShotEntry(
 	db: DB,
 	dieNumber: string,
 	entryId: number,
@@ -1132,34 +1135,24 @@ export async function confirmShotEntry(
 	actor: LedgerActor,
 	now = new Date().toISOString()
 ): Promise<EntryChangeResult> {
-	const problem = checkReason(reason, 'confirmation');
-	if (problem) return { ok: false, field: 'reason', message: problem };
-	const raw = rawHandle(db);
-	return db.connection().execute(async () =>
+	return changeEntry(db, dieNumber, entryId, reason, 'confirmation', (raw, entry, why) => {
+		if (entry.voided_at || entry.review_state !== 'to_review') {
+			return { ok: false, field: 'entry', message: 'This entry is not waiting for review.' };
+		}
 		raw
-			.transaction((): EntryChangeResult => {
-				const entry = raw.prepare<[number, string], EntryRow>(ENTRY_SELECT).get(entryId, dieNumber);
-				if (!entry)
-					return { ok: false, field: 'entry', message: 'There is no such entry on this die.' };
-				if (entry.voided_at || entry.review_state !== 'to_review') {
-					return { ok: false, field: 'entry', message: 'This entry is not waiting for review.' };
-				}
-				raw
-					.prepare(
-						`update shot_entries set review_state = 'confirmed', reviewed_by = ?, reviewed_at = ?,
-						   review_reason = ? where id = ?`
-					)
-					.run(actor.userId, now, reason.trim(), entry.id);
-				prepared(raw).audit.run(
-					now,
-					actor.userId,
-					actor.tokenId,
-					'shots.confirm',
-					entry.die_id,
-					JSON.stringify({ entry: entry.id, warning: entry.warning, reason: reason.trim() })
-				);
-				return { ok: true, entryId: entry.id, dieTotal: dieTotalOf(raw, entry.die_id) };
-			})
-			.immediate()
-	);
+			.prepare(
+				`update shot_entries set review_state = 'confirmed', reviewed_by = ?, reviewed_at = ?,
+				   review_reason = ? where id = ?`
+			)
+			.run(actor.userId, now, why, entry.id);
+		prepared(raw).audit.run(
+			now,
+			actor.userId,
+			actor.tokenId,
+			'shots.confirm',
+			entry.die_id,
+			JSON.stringify({ entry: entry.id, warning: entry.warning, reason: why })
+		);
+		return { ok: true, entryId: entry.id, dieTotal: dieTotalOf(raw, entry.die_id) };
+	});
 }
