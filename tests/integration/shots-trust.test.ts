@@ -11,6 +11,8 @@ import { listDies } from '../../src/lib/server/dies/register';
 import { findNoticeItems } from '../../src/lib/server/notices/find';
 import { loadOwnerDies } from '../../src/lib/server/owner/portfolio';
 import { dieListQuerySchema } from '../../src/lib/schemas/die';
+import { shotListQuerySchema } from '../../src/lib/schemas/shots';
+import { listShotEntries } from '../../src/lib/server/shots/ledger-list';
 import { ingestShotBody } from '../../src/lib/server/shots/api-ingest';
 import { commitShotCsv, parseShotCsv, previewShotCsv } from '../../src/lib/server/shots/csv-upload';
 import { findDieShotSummary } from '../../src/lib/server/shots/die-summary';
@@ -712,6 +714,13 @@ describe('the toolroom lead corrects or voids a ledger entry', () => {
 		).toMatchObject({
 			ok: false,
 			message: 'This entry is already voided.'
+		});
+		// The ledger list keeps it, marked voided with its reason (the page strikes it through).
+		const listed = await listShotEntries(p.db, shotListQuerySchema.parse({ q: 'A-0001' }));
+		expect(listed.rows.find((r) => r.id === entryId)).toMatchObject({
+			shots: 500,
+			voidedAt: NOW,
+			voidReason: 'Counted on the wrong die'
 		});
 		// Another die's number does not reach the entry.
 		expect((await voidShotEntry(p.db, 'Z-0001', entryId, 'wrong die here', plant, NOW)).ok).toBe(
