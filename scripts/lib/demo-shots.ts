@@ -1,7 +1,9 @@
-// Demo data for the shot ledger (invented): a half replaced part-way through the history, a
-// correction with its reason, and press runs typed in with counter readings. Runs after
-// seedDemo; touches only D-0126, D-0127 and D-0128 (Tollard Hand Tools), which no e2e test uses.
+// Demo data for the shot ledger (invented): halves replaced part-way through the history (the
+// D-0127 cover with entries on both sides of it), a correction with its reason, press runs typed
+// in with counter readings, and a gateway count for a held die waiting for review. Runs after
+// seedDemo; touches only D-0126, D-0127, D-0128 and D-0143, which no e2e test uses.
 import type { DB } from '../../src/lib/server/db/connect';
+import { replaceHalf } from '../../src/lib/server/dies/halves';
 import { recordShots } from '../../src/lib/server/shots/ledger';
 
 const DAY = 86_400_000;
@@ -119,4 +121,54 @@ export async function seedDemoShots(db: DB, now = new Date()): Promise<void> {
 		{ source: 'manual', now: now.toISOString() }
 	);
 	if (!run.ok) throw new Error(`Demo press run refused: ${JSON.stringify(run.issues)}`);
+
+	// D-0127: the cover half was replaced half-way through its history. The replacement is booked
+	// at its real time, so the entries on either side of it count on the half that was in the die
+	// then: the old cover keeps the first half of the history, the new one the rest.
+	const d127 = await dieId('D-0127');
+	const span = await db
+		.selectFrom('shot_entries')
+		.select((eb) => [eb.fn.min('counted_at').as('first'), eb.fn.max('counted_at').as('last')])
+		.where('die_id', '=', d127)
+		.where('voided_at', 'is', null)
+		.executeTakeFirstOrThrow();
+	const mid = new Date((Date.parse(span.first!) + Date.parse(span.last!)) / 2);
+	mid.setUTCHours(7, 15, 0, 0);
+	const replaced = await replaceHalf(
+		db,
+		d127,
+		{
+			side: 'cover',
+			serial: 'D-0127-C2',
+			steel: 'H13 ESR',
+			hardnessHrc: 46,
+			reason: 'Heat checking across the gate land, grade 4; cover insert beyond polishing'
+		},
+		lead.id,
+		mid.toISOString()
+	);
+	if (!replaced.ok) throw new Error(`Demo half replacement refused: ${replaced.message}`);
+
+	// D-0143 is held, yet the press-counter gateway sent a count for it: accepted (a gateway must
+	// not lose counts) with a warning, and waiting on the toolroom lead's review.
+	const gateway = await db
+		.selectFrom('api_tokens')
+		.select('id')
+		.where('name', '=', 'Demo press-counter gateway')
+		.executeTakeFirst();
+	const flagged = await recordShots(
+		db,
+		[
+			{
+				die: 'D-0143',
+				shots: 180,
+				machine: 'CC-25B',
+				countedAt: new Date(now.getTime() - 5 * 3_600_000).toISOString(),
+				key: 'demo-gateway-d0143-1'
+			}
+		],
+		{ userId: null, tokenId: gateway?.id ?? null, customerId: null },
+		{ source: 'api', now: now.toISOString(), onWarning: 'review' }
+	);
+	if (!flagged.ok) throw new Error(`Demo gateway count refused: ${JSON.stringify(flagged.issues)}`);
 }

@@ -81,3 +81,16 @@ export const HEAT_BALANCE_LABELS = {
 	balanced: 'Balanced',
 	ample: 'Cooling to spare'
 } as const;
+
+/** States of a ledger entry besides "counted": waiting for review, confirmed, voided. */
+export const ENTRY_STATE_LABELS = {
+	to_review: 'To review',
+	confirmed: 'Confirmed',
+	voided: 'Voided'
+} as const;
+/** What the toolroom lead can do to a ledger entry. */
+export const ENTRY_ACTION_LABELS = {
+	confirm: 'Confirm as counted',
+	correct: 'Correct the figures',
+	void: 'Void (counts nothing)'
+} as const;

@@ -125,6 +125,7 @@ export const ACTIONS: Record<string, Cells> = {
 	'/dies/[number]/plan?/intervals': roles(...LEADS),
 	'/dies/[number]/sharing?/job': roles(...LEADS),
 	'/dies/[number]/sharing?/photo': roles(...LEADS),
+	'/dies/[number]/shots?/changeEntry': roles(...LEADS),
 	'/dies/[number]/shots?/correct': roles(...LEADS),
 	'/dies/[number]/shots?/replaceHalf': roles(...LEADS),
 	'/dies/[number]/surface?/inspect': roles(...WORKERS),

@@ -101,7 +101,9 @@ describe('replacing a half', () => {
 	});
 
 	test('a correction cannot take the new half below zero', async () => {
-		await replaceHalf(p.db, p.dies.alu, newEjector, LEAD);
+		// Replaced an hour before the correction's time, so the correction lands on the new half
+		// (0 shots): −100 would take it to −100.
+		await replaceHalf(p.db, p.dies.alu, newEjector, LEAD, hoursFromNow(-1));
 		const before = await snapshot(p.db);
 		const r = await recordShots(
 			p.db,
@@ -116,7 +118,7 @@ describe('replacing a half', () => {
 					index: 0,
 					field: 'shots',
 					message:
-						'The correction would take a half of die A-0001 below zero shots (the newer half has 0).'
+						'The correction would take a half of die A-0001 below zero shots (the half on the die at that time has 0).'
 				}
 			]
 		});

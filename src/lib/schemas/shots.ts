@@ -37,6 +37,28 @@ const optionalNote = z
 	.optional()
 	.default('');
 
+/**
+ * Counter readings come in pairs, or a count instead: the one refine the press-run form, the
+ * entry correction and the API share (each with its own words).
+ */
+function refineCounterPair(
+	v: { counterStart?: number | null; counterEnd?: number | null; shots?: number },
+	ctx: z.RefinementCtx,
+	words: { pair: string; missing: string | null }
+) {
+	const hasStart = v.counterStart != null;
+	const hasEnd = v.counterEnd != null;
+	if (hasStart !== hasEnd) {
+		ctx.addIssue({
+			code: 'custom',
+			path: [hasStart ? 'counterEnd' : 'counterStart'],
+			message: words.pair
+		});
+	} else if (!hasStart && v.shots === undefined && words.missing) {
+		ctx.addIssue({ code: 'custom', path: ['shots'], message: words.missing });
+	}
+}
+
 /** Press-run form: a shot count, or counter readings at start and end of the run. */
 export const pressRunSchema = z
 	.object({
@@ -49,25 +71,18 @@ export const pressRunSchema = z
 		shots: optionalCount('Shots'),
 		counterStart: optionalCount('The counter start'),
 		counterEnd: optionalCount('The counter end'),
-		note: optionalNote
+		note: optionalNote,
+		/** Why the counter went back (a press controller swap); allows a smaller counter start. */
+		resetReason: optionalNote,
+		/** A person's reason to count an entry the plausibility checks question. */
+		confirmReason: optionalNote
 	})
-	.superRefine((v, ctx) => {
-		const hasStart = v.counterStart !== undefined;
-		const hasEnd = v.counterEnd !== undefined;
-		if (hasStart !== hasEnd) {
-			ctx.addIssue({
-				code: 'custom',
-				path: [hasStart ? 'counterEnd' : 'counterStart'],
-				message: 'Give both counter readings, or leave both empty and enter the shots.'
-			});
-		} else if (!hasStart && v.shots === undefined) {
-			ctx.addIssue({
-				code: 'custom',
-				path: ['shots'],
-				message: 'Enter the shots, or the counter start and end.'
-			});
-		}
-	});
+	.superRefine((v, ctx) =>
+		refineCounterPair(v, ctx, {
+			pair: 'Give both counter readings, or leave both empty and enter the shots.',
+			missing: 'Enter the shots, or the counter start and end.'
+		})
+	);
 export type PressRunForm = z.infer<typeof pressRunSchema>;
 
 /** Shots of a press-run form: the count given, or the counter difference. */
@@ -100,6 +115,44 @@ export const correctionSchema = z.object({
 		.max(500, 'Keep the reason under 500 characters.')
 });
 
+/**
+ * The toolroom lead's change to one ledger entry: confirm it (it was flagged "to review"),
+ * correct its figures, or void it. Always with a reason.
+ */
+export const entryChangeSchema = z
+	.object({
+		entry: z
+			.number({ error: 'Choose the entry.' })
+			.int('Choose the entry.')
+			.positive('Choose the entry.'),
+		action: z.enum(['confirm', 'correct', 'void'], { error: 'Choose what to do with the entry.' }),
+		shots: optionalCount('Shots'),
+		counterStart: optionalCount('The counter start'),
+		counterEnd: optionalCount('The counter end'),
+		countedAt: z
+			.string()
+			.trim()
+			.refine(
+				(s) => s === '' || DATETIME_LOCAL.test(s),
+				'Enter a date and time, or leave it empty.'
+			)
+			.optional()
+			.default(''),
+		reason: z
+			.string({ error: 'Give the reason.' })
+			.trim()
+			.min(5, 'Give the reason (at least 5 characters).')
+			.max(500, 'Keep the reason under 500 characters.')
+	})
+	.superRefine((v, ctx) => {
+		if (v.action !== 'correct') return;
+		refineCounterPair(v, ctx, {
+			pair: 'Give both counter readings, or neither.',
+			missing: v.countedAt === '' ? 'Enter the corrected shots, counter readings or time.' : null
+		});
+	});
+export type EntryChangeForm = z.infer<typeof entryChangeSchema>;
+
 /** Replacing the cover or ejector half of a die. */
 export const halfReplaceSchema = z.object({
 	side: z.enum(['cover', 'ejector'], { error: 'Choose the half to replace.' }),
@@ -124,33 +177,65 @@ export const halfReplaceSchema = z.object({
 		.max(500, 'Keep the reason under 500 characters.')
 });
 
-/** One entry of `POST /api/v1/shots` (DESIGN.md "Interfaces"); unknown fields are refused. */
-export const apiShotEntrySchema = z.strictObject({
-	die: z
-		.string({ error: 'die must be a die number, e.g. "D-0147".' })
+const apiCount = (name: string) =>
+	z
+		.number({ error: `${name} must be a number.` })
+		.int(`${name} must be a whole number.`)
+		.min(0, `${name} must be 0 or more.`)
+		.max(Number.MAX_SAFE_INTEGER, `${name} is too large.`)
+		.nullish();
+const apiPress = (name: string) =>
+	z
+		.string({ error: `${name} must be a press name.` })
 		.trim()
-		.min(1, 'die must not be empty.')
-		.max(20, 'die has at most 20 characters.'),
-	shots: z
-		.number({ error: 'shots must be a number.' })
-		.int('shots must be a whole number.')
-		.positive('shots must be a positive whole number.'),
-	countedAt: z
-		.string({ error: 'countedAt must be an ISO-8601 date-time string.' })
-		.max(40, 'countedAt is too long for a date-time.')
-		.optional(),
-	machine: z
-		.string({ error: 'machine must be a press name.' })
-		.trim()
-		.max(40, 'machine has at most 40 characters.')
-		.nullish(),
-	key: z
-		.string({ error: 'key must be a string.' })
-		.trim()
-		.min(1, 'key must not be empty (leave it out instead).')
-		.max(200, 'key has at most 200 characters.')
-		.nullish()
-});
+		.max(40, `${name} has at most 40 characters.`)
+		.nullish();
+
+/**
+ * One entry of `POST /api/v1/shots` (DESIGN.md "Interfaces"): `shots`, or `counterStart` and
+ * `counterEnd` (then `shots`, if given, must match); `press` names the press (`machine` is its
+ * old name, still accepted). Unknown fields are refused.
+ */
+export const apiShotEntrySchema = z
+	.strictObject({
+		die: z
+			.string({ error: 'die must be a die number, e.g. "D-0147".' })
+			.trim()
+			.min(1, 'die must not be empty.')
+			.max(20, 'die has at most 20 characters.'),
+		shots: z
+			.number({ error: 'shots must be a number.' })
+			.int('shots must be a whole number.')
+			.positive('shots must be a positive whole number.')
+			.optional(),
+		counterStart: apiCount('counterStart'),
+		counterEnd: apiCount('counterEnd'),
+		countedAt: z
+			.string({ error: 'countedAt must be an ISO-8601 date-time string.' })
+			.max(40, 'countedAt is too long for a date-time.')
+			.optional(),
+		press: apiPress('press'),
+		machine: apiPress('machine'),
+		key: z
+			.string({ error: 'key must be a string.' })
+			.trim()
+			.min(1, 'key must not be empty (leave it out instead).')
+			.max(200, 'key has at most 200 characters.')
+			.nullish()
+	})
+	.superRefine((v, ctx) => {
+		refineCounterPair(v, ctx, {
+			pair: 'Send both counterStart and counterEnd, or shots alone.',
+			missing: 'shots is required (or counterStart and counterEnd).'
+		});
+		if (v.press && v.machine && v.press.toLowerCase() !== v.machine.toLowerCase()) {
+			ctx.addIssue({
+				code: 'custom',
+				path: ['machine'],
+				message: 'press and machine (its old name) name different presses; send press alone.'
+			});
+		}
+	});
 export type ApiShotEntry = z.infer<typeof apiShotEntrySchema>;
 
 /** Filters of the shot ledger list, all in the URL. */

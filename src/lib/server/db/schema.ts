@@ -121,6 +121,8 @@ export interface DieHalvesTable {
 	die_shots_at_install: Generated<number>;
 	removed_at: string | null;
 	removal_reason: string | null;
+	/** Null: the die's expected life applies. */
+	expected_life_shots: number | null;
 }
 
 export interface ShotEntriesTable {
@@ -137,7 +139,25 @@ export interface ShotEntriesTable {
 	token_id: number | null;
 	note: string | null;
 	created_at: string;
+	/** 1 when the counter went back (controller swap); reset_reason says why. */
+	counter_reset: Generated<Flag>;
+	reset_reason: string | null;
+	/** Plausibility warnings the entry was accepted with (one per line). */
+	warning: string | null;
+	review_state: ReviewState | null;
+	reviewed_by: string | null;
+	reviewed_at: string | null;
+	review_reason: string | null;
+	/** A voided entry stays in the ledger, counts nothing and is shown struck through. */
+	voided_at: string | null;
+	voided_by: string | null;
+	void_reason: string | null;
+	/** The entry this one corrects (which was voided in the same transaction). */
+	replaces_id: number | null;
 }
+
+/** to_review: accepted through the API with warnings; confirmed: a person gave a reason. */
+export type ReviewState = 'to_review' | 'confirmed';
 
 export interface ShotDailyTable {
 	die_id: number;

@@ -1,4 +1,5 @@
 import { sql } from 'kysely';
+import { lifeUsedRatioSql } from './life';
 import type { DB } from '../db/connect';
 import { nowIso } from '../time';
 import { sortWorstFirst, viewServiceTask, type ServiceTaskView } from './service-summary';
@@ -75,14 +76,10 @@ export async function diesNearEndOfLife(db: DB, minPct = 90, customerId: number 
 			'dies.status',
 			'customers.name as customerName',
 			'dies.total_shots as totalShots',
-			sql<number>`100.0 * dies.total_shots / coalesce(dies.expected_life_shots, alloys.expected_life_shots)`.as(
-				'lifeUsedPct'
-			)
+			sql<number>`100.0 * ${lifeUsedRatioSql}`.as('lifeUsedPct')
 		])
 		.where('dies.status', '!=', 'retired')
-		.where(
-			sql<boolean>`100.0 * dies.total_shots / coalesce(dies.expected_life_shots, alloys.expected_life_shots) >= ${minPct}`
-		)
+		.where(sql<boolean>`100.0 * ${lifeUsedRatioSql} >= ${minPct}`)
 		.$if(customerId !== null, (q) => q.where('dies.customer_id', '=', customerId!))
 		.orderBy('lifeUsedPct', 'desc')
 		.execute();

@@ -1,7 +1,7 @@
 import { sql } from 'kysely';
-import { lifeStatus } from '../../calc/life';
 import type { DB } from '../db/connect';
 import { nowIso } from '../time';
+import { loadDieLife, type DieLife } from './life';
 import type { DieScope } from './register';
 import { sortWorstFirst, viewServiceTask } from './service-summary';
 
@@ -28,28 +28,12 @@ export async function findDie(db: DB, number: string, scope: DieScope) {
 }
 export type FoundDie = NonNullable<Awaited<ReturnType<typeof findDie>>>;
 
-const DAY_MS = 86_400_000;
-
-/** Daily shots of the trailing window, from the roll-up (never the ledger). */
-export async function recentDailyShots(db: DB, dieId: number, asOf: string, days = 28) {
-	const from = new Date(Date.parse(asOf) - days * DAY_MS).toISOString().slice(0, 10);
-	const rows = await db
-		.selectFrom('shot_daily')
-		.select(['day', 'shots'])
-		.where('die_id', '=', dieId)
-		// From the day that holds the window's start; lifeStatus keeps only what lies inside it.
-		.where('day', '>=', from)
-		.execute();
-	return rows.map((r) => ({ at: `${r.day}T12:00:00.000Z`, shots: r.shots }));
-}
-
-export async function dieLife(db: DB, die: FoundDie, asOf = nowIso()) {
-	return lifeStatus({
-		totalShots: die.total_shots,
-		expectedLifeShots: die.expectedLifeShots,
-		recentShots: await recentDailyShots(db, die.id, asOf),
-		asOf
-	});
+/**
+ * The die's life used, shots remaining and projected end of life — those of its most-worn active
+ * half (dies/life.ts, the one definition).
+ */
+export function dieLife(db: DB, die: Pick<FoundDie, 'id'>, asOf = nowIso()): Promise<DieLife> {
+	return loadDieLife(db, die.id, asOf);
 }
 
 /** Cumulative shots by day, built backwards from the kept total so the ledger is never summed. */

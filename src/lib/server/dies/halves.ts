@@ -91,7 +91,22 @@ export async function replaceHalf(
 						at,
 						die.total_shots
 					);
-				const removed = old ? { serial: old.serial, shots: old.shots } : null;
+				// Entries already counted after the replacement time (a backdated replacement, or a
+				// count dated ahead) belong to the new half: shots follow the time, not the typing.
+				const after = old
+					? raw
+							.prepare<[number, string], { shots: number }>(
+								`select coalesce(sum(shots), 0) as shots from shot_entries
+								  where die_id = ? and counted_at > ? and voided_at is null`
+							)
+							.get(die.id, at)!.shots
+					: 0;
+				if (old && after !== 0) {
+					const move = raw.prepare('update die_halves set shots = shots + ? where id = ?');
+					move.run(-after, old.id);
+					move.run(after, Number(inserted.lastInsertRowid));
+				}
+				const removed = old ? { serial: old.serial, shots: old.shots - after } : null;
 				raw
 					.prepare(
 						'insert into audit_log (at, user_id, token_id, action, die_id, detail) values (?, ?, null, ?, ?, ?)'

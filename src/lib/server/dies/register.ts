@@ -3,6 +3,7 @@ import type { DB } from '../db/connect';
 import type { DieListQuery } from '../../schemas/die';
 import { sortWorstFirst, viewServiceTask, type ServiceTaskView } from './service-summary';
 import { nowIso } from '../time';
+import { lifeExpectedSql, lifeShotsSql, lifeUsedPctOf, lifeUsedRatioSql } from './life';
 
 /** Limits what a caller may see: a customer-bound caller sees only its own dies. */
 export interface DieScope {
@@ -57,7 +58,7 @@ const SORT_COLUMNS = {
 	alloy: sql`alloys.code`,
 	status: sql`dies.status`,
 	shots: sql`dies.total_shots`,
-	life: sql`(dies.total_shots * 1.0 / ${expectedLife})`
+	life: lifeUsedRatioSql
 } as const;
 
 /** One page of the die register with life used and the worst service task of each die. */
@@ -81,7 +82,9 @@ export async function listDies(
 				'alloys.family',
 				'dies.status',
 				'dies.total_shots as totalShots',
-				expectedLife.as('expectedLifeShots')
+				expectedLife.as('expectedLifeShots'),
+				lifeShotsSql.as('lifeShots'),
+				lifeExpectedSql.as('lifeExpectedShots')
 			])
 			.orderBy(SORT_COLUMNS[query.sort], query.dir)
 			.orderBy('dies.number', 'asc')
@@ -96,9 +99,10 @@ export async function listDies(
 	);
 	return {
 		total: Number(countRow.n),
-		rows: rows.map((r) => ({
+		rows: rows.map(({ lifeShots, lifeExpectedShots, ...r }) => ({
 			...r,
-			lifeUsedPct: (100 * r.totalShots) / r.expectedLifeShots,
+			// Life follows the steel: the most-worn active half (dies/life.ts).
+			lifeUsedPct: lifeUsedPctOf({ lifeShots, lifeExpectedShots }),
 			nextService: r.status === 'retired' ? null : (tasksByDie.get(r.id) ?? null)
 		}))
 	};

@@ -1,4 +1,4 @@
-import { lifeStatus } from '../../calc/life';
+import { lifeExpectedSql, lifeShotsSql, lifeUsedPctOf } from '../dies/life';
 import { serviceKindLabel, SERVICE_STATE_LABELS } from '../../labels';
 import type { DB } from '../db/connect';
 import { viewServiceTask } from '../dies/service-summary';
@@ -51,10 +51,9 @@ export async function findNoticeItems(
 				'dies.part_name',
 				'dies.total_shots',
 				'customers.name as customer_name',
-				(eb) =>
-					eb.fn
-						.coalesce('dies.expected_life_shots', 'alloys.expected_life_shots')
-						.as('expected_life')
+				// Life follows the steel: the most-worn active half (dies/life.ts).
+				lifeShotsSql.as('life_shots'),
+				lifeExpectedSql.as('expected_life')
 			])
 			.where('dies.status', '!=', 'retired')
 			.orderBy('dies.number')
@@ -104,12 +103,7 @@ export async function findNoticeItems(
 	for (const die of dies) {
 		const expected = Number(die.expected_life);
 		if (!(expected > 0)) continue;
-		const { lifeUsedPct } = lifeStatus({
-			totalShots: die.total_shots,
-			expectedLifeShots: expected,
-			recentShots: [],
-			asOf
-		});
+		const lifeUsedPct = lifeUsedPctOf({ lifeShots: die.life_shots, lifeExpectedShots: expected });
 		const passed = LIFE_NOTICE_THRESHOLDS.find((t) => lifeUsedPct >= t);
 		if (passed === undefined) continue;
 		items.push({
@@ -125,7 +119,7 @@ export async function findNoticeItems(
 				customerName: die.customer_name,
 				threshold: passed,
 				lifeUsedPct,
-				totalShots: die.total_shots,
+				totalShots: die.life_shots,
 				expectedLifeShots: expected
 			}
 		});

@@ -4,7 +4,8 @@
  * customer id first; nothing of another owner can come out of these functions.
  */
 import { sql } from 'kysely';
-import { lifeStatus, TRAILING_RATE_DAYS } from '../../calc/life';
+import { TRAILING_RATE_DAYS } from '../../calc/life';
+import { dieLifeOf, lifeExpectedSql, lifeShotsSql, lifeSideSql } from '../dies/life';
 import { serviceStateRank } from '../../calc/service';
 import type { DieStatus } from '../../domain';
 import type { OwnerDieQuery } from '../../schemas/owner';
@@ -103,7 +104,10 @@ export async function loadOwnerDies(
 				'alloys.family',
 				sql<number>`coalesce(dies.expected_life_shots, alloys.expected_life_shots)`.as(
 					'expectedLifeShots'
-				)
+				),
+				lifeShotsSql.as('lifeShots'),
+				lifeExpectedSql.as('lifeExpectedShots'),
+				lifeSideSql.as('lifeSide')
 			])
 			.where('dies.customer_id', '=', customerId)
 			.orderBy('dies.number')
@@ -145,14 +149,15 @@ export async function loadOwnerDies(
 	}
 	const jobByDie = new Map(lastJobs.map((j) => [j.dieId, j]));
 
-	return dies.map((d) => {
+	return dies.map(({ lifeShots, lifeExpectedShots, lifeSide, ...d }) => {
 		const recent = recentByDie.get(d.id) ?? [];
-		const life = lifeStatus({
-			totalShots: d.totalShots,
-			expectedLifeShots: d.expectedLifeShots,
-			recentShots: recent,
+		const windowShots = recent.reduce((s, r) => s + r.shots, 0);
+		// Life follows the steel: the most-worn active half (dies/life.ts), at the die's rate.
+		const life = dieLifeOf(
+			{ lifeShots, lifeExpectedShots, lifeSide },
+			Math.max(0, windowShots) / TRAILING_RATE_DAYS,
 			asOf
-		});
+		);
 		const retired = d.status === 'retired';
 		const task = retired ? undefined : tasks.get(d.id);
 		const job = jobByDie.get(d.id);
@@ -161,7 +166,7 @@ export async function loadOwnerDies(
 			lifeUsedPct: life.lifeUsedPct,
 			shotsRemaining: life.shotsRemaining,
 			shotsPerDay: life.shotsPerDay,
-			shotsLast28Days: recent.reduce((s, r) => s + r.shots, 0),
+			shotsLast28Days: windowShots,
 			projectedEndOfLife: retired ? null : life.projectedEndOfLife,
 			nextService: task ? { kind: task.kind, state: task.state, fraction: task.fraction } : null,
 			lastJob:

@@ -3,6 +3,7 @@ import { addDaysToDate } from '../../calc/dates';
 import type { AlloyFamily } from '../../calc/life';
 import { projectServiceDue } from '../../calc/service';
 import type { BoardQuery } from '../../schemas/schedule';
+import { lifeExpectedSql, lifeShotsSql, lifeUsedPctOf } from '../dies/life';
 import type { DB } from '../db/connect';
 import type { DieProcess, DieStatus } from '../db/schema';
 import type { DieScope } from '../dies/register';
@@ -124,6 +125,8 @@ interface DieBase {
 	has_slides: number;
 	total_shots: number;
 	expectedLife: number;
+	lifeShots: number;
+	lifeExpectedShots: number;
 	alloyCode: string;
 }
 
@@ -163,7 +166,9 @@ export async function loadBoard(
 				'dies.total_shots',
 				sql<number>`coalesce(dies.expected_life_shots, alloys.expected_life_shots)`.as(
 					'expectedLife'
-				)
+				),
+				lifeShotsSql.as('lifeShots'),
+				lifeExpectedSql.as('lifeExpectedShots')
 			])
 			.where('dies.status', '!=', 'retired')
 			.$if(scope.customerId !== null, (q) => q.where('dies.customer_id', '=', scope.customerId!))
@@ -255,7 +260,8 @@ export async function loadBoard(
 				d.owner,
 				d.family,
 				d.status,
-				Math.round((1000 * d.total_shots) / d.expectedLife) / 10
+				// Life follows the steel: the most-worn active half (dies/life.ts).
+				Math.round(10 * lifeUsedPctOf(d)) / 10
 			])
 		},
 		bookings: {

@@ -1,6 +1,7 @@
 import { apiShotEntrySchema } from '../../schemas/shots';
 import type { DB } from '../db/connect';
 import {
+	isCounterOverlapIssue,
 	isUnknownDieIssue,
 	MAX_BATCH,
 	recordShots,
@@ -10,9 +11,15 @@ import {
 } from './ledger';
 
 export interface IngestAnswer {
-	status: 201 | 400 | 404;
+	status: 201 | 400 | 404 | 409;
 	body:
-		| { accepted: number; duplicates: number; dies: { die: string; totalShots: number }[] }
+		| {
+				accepted: number;
+				duplicates: number;
+				dies: { die: string; totalShots: number }[];
+				/** Plausibility warnings; those entries are counted and marked "to review". */
+				warnings: { index: number; message: string }[];
+		  }
 		| { error: string; issues?: { index: number; field: string; message: string }[] };
 }
 
@@ -70,7 +77,7 @@ export async function ingestShotBody(
 					i.code === 'unrecognized_keys' ? i.keys.join(',') : String(i.path[0] ?? 'entry');
 				const message =
 					i.code === 'unrecognized_keys'
-						? `Unknown field ${i.keys.map((k) => `"${k}"`).join(', ')}; use die, shots, countedAt, machine, key.`
+						? `Unknown field ${i.keys.map((k) => `"${k}"`).join(', ')}; use die, shots, counterStart, counterEnd, countedAt, press, key.`
 						: i.path.length === 0
 							? 'Each entry must be an object.'
 							: i.message;
@@ -81,7 +88,17 @@ export async function ingestShotBody(
 		const e = parsed.data;
 		valid.push({
 			index,
-			input: { die: e.die, shots: e.shots, countedAt: e.countedAt, machine: e.machine, key: e.key }
+			input: {
+				die: e.die,
+				shots:
+					e.shots ??
+					(e.counterStart != null && e.counterEnd != null ? e.counterEnd - e.counterStart : 0),
+				counterStart: e.counterStart ?? null,
+				counterEnd: e.counterEnd ?? null,
+				countedAt: e.countedAt,
+				machine: e.press || e.machine,
+				key: e.key
+			}
 		});
 	});
 
@@ -89,7 +106,12 @@ export async function ingestShotBody(
 	// With shape problems nothing is written, but the rest still gets its meaning checked so the
 	// caller can fix everything in one go.
 	const result = inputs.length
-		? await recordShots(db, inputs, actor, { source: 'api', now, dryRun: issues.length > 0 })
+		? await recordShots(db, inputs, actor, {
+				source: 'api',
+				now,
+				dryRun: issues.length > 0,
+				onWarning: 'review'
+			})
 		: null;
 	if (result && !result.ok) {
 		for (const i of result.issues) issues.push({ ...i, index: valid[i.index]?.index ?? i.index });
@@ -98,6 +120,10 @@ export async function ingestShotBody(
 		issues.sort((a, b) => a.index - b.index);
 		if (single && issues.every(isUnknownDieIssue)) {
 			return { status: 404, body: { error: issues[0].message } };
+		}
+		// A single entry whose counter readings are already in the ledger conflicts with it.
+		if (single && issues.length === 1 && isCounterOverlapIssue(issues[0])) {
+			return { status: 409, body: { error: issues[0].message, issues: issues.map(plain) } };
 		}
 		const rows = new Set(issues.map((i) => i.index)).size;
 		return {
@@ -113,6 +139,11 @@ export async function ingestShotBody(
 	if (!result || !result.ok) throw new Error('Unreachable: no issues and no result.');
 	return {
 		status: 201,
-		body: { accepted: result.accepted, duplicates: result.duplicates, dies: result.dies }
+		body: {
+			accepted: result.accepted,
+			duplicates: result.duplicates,
+			dies: result.dies,
+			warnings: result.warnings
+		}
 	};
 }

@@ -21,7 +21,8 @@ export const CSV_COLUMNS = [
 	'counter_end',
 	'press',
 	'key',
-	'note'
+	'note',
+	'reset_reason'
 ] as const;
 type Column = (typeof CSV_COLUMNS)[number];
 const ALIASES: Record<string, Column> = { machine: 'press', countedat: 'counted_at' };
@@ -38,6 +39,7 @@ export interface CsvShotRow {
 	press: string;
 	key: string;
 	note: string;
+	resetReason: string;
 	/** What the ledger gets, or why the row could not even be read. */
 	input: ShotInput | null;
 	problem: { column: string; message: string } | null;
@@ -47,7 +49,8 @@ export type ParsedCsv =
 	| { ok: true; delimiter: ',' | ';'; rows: CsvShotRow[]; ignoredColumns: string[] }
 	| { ok: false; message: string };
 
-export type RowStatus = 'valid' | 'duplicate' | 'wrong';
+/** confirm: plausibility warnings; counted only with the uploader's confirm reason. */
+export type RowStatus = 'valid' | 'duplicate' | 'confirm' | 'wrong';
 export interface PreviewRow extends Omit<CsvShotRow, 'input' | 'problem'> {
 	status: RowStatus;
 	column: string | null;
@@ -59,6 +62,8 @@ export interface CsvPreview {
 	rows: PreviewRow[];
 	valid: number;
 	duplicates: number;
+	/** Rows that need a confirm reason to be counted. */
+	confirm: number;
 	wrong: number;
 	/** Shots the valid rows add. */
 	shots: number;
@@ -74,7 +79,8 @@ const LEDGER_TO_COLUMN: Record<string, string> = {
 	countedAt: 'counted_at',
 	machine: 'press',
 	key: 'key',
-	note: 'note'
+	note: 'note',
+	resetReason: 'reset_reason'
 };
 
 /** Picks the delimiter from the header line: semicolon files come from spreadsheet locales. */
@@ -124,6 +130,7 @@ function readRow(cells: Record<Column, string>, line: number): CsvShotRow {
 		press: cells.press,
 		key: cells.key,
 		note: cells.note,
+		resetReason: cells.reset_reason ?? '',
 		input: null,
 		problem: null
 	};
@@ -168,6 +175,7 @@ function readRow(cells: Record<Column, string>, line: number): CsvShotRow {
 			counterStart: start,
 			counterEnd: end,
 			note: row.note || null,
+			resetReason: cells.reset_reason || null,
 			key:
 				row.key ||
 				deriveRowKey({
@@ -265,7 +273,11 @@ export async function previewShotCsv(
 	parsed: Extract<ParsedCsv, { ok: true }>,
 	actor: LedgerActor,
 	now?: string
-): Promise<{ preview: CsvPreview; inputs: { row: number; input: ShotInput }[] }> {
+): Promise<{
+	preview: CsvPreview;
+	inputs: { row: number; input: ShotInput }[];
+	flagged: { row: number; input: ShotInput }[];
+}> {
 	const readable = parsed.rows.flatMap((r, row) => (r.input ? [{ row, input: r.input }] : []));
 	const verdict = new Map<
 		number,
@@ -300,6 +312,10 @@ export async function previewShotCsv(
 		for (const issue of result.issues) {
 			refused.add(issue.index);
 			const row = candidates[issue.index].row;
+			if (issue.field === 'confirm') {
+				verdict.set(row, { status: 'confirm', column: null, reason: issue.message });
+				continue;
+			}
 			// A derived key means nothing to the person who wrote the file; say what it stands for.
 			const derived = issue.field === 'key' && !parsed.rows[row].key;
 			verdict.set(row, {
@@ -326,8 +342,10 @@ export async function previewShotCsv(
 	const rows: PreviewRow[] = parsed.rows.map((r, i) => ({ ...strip(r), ...verdict.get(i)! }));
 	let shots = 0;
 	const inputs: { row: number; input: ShotInput }[] = [];
+	const flagged: { row: number; input: ShotInput }[] = [];
 	rows.forEach((r, i) => {
-		if (r.status !== 'wrong') inputs.push({ row: i, input: parsed.rows[i].input! });
+		if (r.status === 'confirm') flagged.push({ row: i, input: parsed.rows[i].input! });
+		else if (r.status !== 'wrong') inputs.push({ row: i, input: parsed.rows[i].input! });
 		if (r.status === 'valid') shots += parsed.rows[i].input!.shots;
 	});
 	return {
@@ -337,10 +355,12 @@ export async function previewShotCsv(
 			rows,
 			valid: rows.filter((r) => r.status === 'valid').length,
 			duplicates: rows.filter((r) => r.status === 'duplicate').length,
+			confirm: flagged.length,
 			wrong: rows.filter((r) => r.status === 'wrong').length,
 			shots
 		},
-		inputs
+		inputs,
+		flagged
 	};
 }
 
@@ -358,18 +378,35 @@ export type CommitResult =
  * Commits an upload: the file text comes back from the browser, so it is read and judged again
  * from scratch; then every valid row is counted in one transaction, or none is. `expectedValid`
  * is what the preview promised — if the file or the ledger changed since, the new preview is
- * shown instead of counting something the user did not see.
+ * shown instead of counting something the user did not see. Rows the plausibility checks
+ * flagged are counted only with `confirmReason` (at least 5 characters), which is kept on each.
  */
 export async function commitShotCsv(
 	db: DB,
 	text: string,
 	expectedValid: number,
 	actor: LedgerActor,
-	now?: string
+	now?: string,
+	confirmReason = ''
 ): Promise<CommitResult> {
 	const parsed = parseShotCsv(text);
 	if (!parsed.ok) return { ok: false, message: parsed.message, preview: null };
-	const { preview, inputs } = await previewShotCsv(db, parsed, actor, now);
+	const { preview, inputs: plain, flagged } = await previewShotCsv(db, parsed, actor, now);
+	const reason = confirmReason.trim();
+	if (reason && reason.length < 5) {
+		return {
+			ok: false,
+			message: 'Give the reason for counting the flagged rows (at least 5 characters).',
+			preview
+		};
+	}
+	// Flagged rows go back in file order, carrying the person's reason.
+	const inputs = reason
+		? [
+				...plain,
+				...flagged.map((f) => ({ row: f.row, input: { ...f.input, confirmReason: reason } }))
+			].sort((a, b) => a.row - b.row)
+		: plain;
 	if (preview.valid !== expectedValid) {
 		return {
 			ok: false,
@@ -377,7 +414,7 @@ export async function commitShotCsv(
 			preview
 		};
 	}
-	if (preview.valid === 0) {
+	if (preview.valid === 0 && !(reason && flagged.length)) {
 		return { ok: false, message: 'No row is left to count.', preview };
 	}
 	const result = await recordShots(
@@ -398,7 +435,7 @@ export async function commitShotCsv(
 		ok: true,
 		counted: result.accepted,
 		duplicates: result.duplicates,
-		shots: preview.shots,
+		shots: preview.shots + (reason ? flagged.reduce((sum, f) => sum + f.input.shots, 0) : 0),
 		dies: result.dies
 	};
 }

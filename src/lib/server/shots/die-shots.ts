@@ -1,7 +1,7 @@
 import { sql } from 'kysely';
 import type { DB } from '../db/connect';
 import { cumulativeShotSeries, type FoundDie } from '../dies/die-detail';
-import { listHalves } from '../dies/halves';
+import { listHalfLives } from '../dies/life';
 
 export interface ChartEvent {
 	day: string;
@@ -34,8 +34,23 @@ export async function monthlyShotTotals(db: DB, dieId: number) {
 		.execute();
 }
 
-/** The newest ledger entries of one die, with who or what counted them. */
+/**
+ * The newest ledger entries of one die, with who or what counted them, their review and void
+ * state — plus every entry still waiting for review, however old, so none is out of sight.
+ */
 export async function latestDieEntries(db: DB, dieId: number, limit = 20) {
+	const [latest, waiting] = await Promise.all([
+		dieEntries(db, dieId).limit(limit).execute(),
+		dieEntries(db, dieId)
+			.where('e.review_state', '=', 'to_review')
+			.where('e.voided_at', 'is', null)
+			.execute()
+	]);
+	const seen = new Set(latest.map((e) => e.id));
+	return [...latest, ...waiting.filter((e) => !seen.has(e.id))];
+}
+
+function dieEntries(db: DB, dieId: number) {
 	return db
 		.selectFrom('shot_entries as e')
 		.leftJoin('machines', 'machines.id', 'e.machine_id')
@@ -51,13 +66,18 @@ export async function latestDieEntries(db: DB, dieId: number, limit = 20) {
 			'e.note',
 			'machines.name as press',
 			'users.name as enteredBy',
-			'api_tokens.name as token'
+			'api_tokens.name as token',
+			'e.warning',
+			'e.review_state as reviewState',
+			'e.review_reason as reviewReason',
+			'e.voided_at as voidedAt',
+			'e.void_reason as voidReason',
+			'e.reset_reason as resetReason',
+			'e.replaces_id as replacesId'
 		])
 		.where('e.die_id', '=', dieId)
 		.orderBy('e.counted_at', 'desc')
-		.orderBy('e.id', 'desc')
-		.limit(limit)
-		.execute();
+		.orderBy('e.id', 'desc');
 }
 
 /** Everything the "Shots & halves" tab shows, queried together; nothing sums the ledger. */
@@ -66,7 +86,7 @@ export async function getDieShotsView(db: DB, die: FoundDie) {
 		cumulativeShotSeries(db, die.id, die.total_shots),
 		monthlyShotTotals(db, die.id),
 		latestDieEntries(db, die.id),
-		listHalves(db, die.id),
+		listHalfLives(db, die.id),
 		db
 			.selectFrom('service_tasks')
 			.select(['kind', 'last_done_at', 'last_done_shots'])
@@ -82,9 +102,9 @@ export async function getDieShotsView(db: DB, die: FoundDie) {
 		}
 	}
 	for (const h of halves) {
-		if (h.die_shots_at_install > 0) {
+		if (h.dieShotsAtInstall > 0) {
 			events.push({
-				day: h.installed_at.slice(0, 10),
+				day: h.installedAt.slice(0, 10),
 				kind: 'half',
 				label: `${h.side}:${h.serial}`
 			});

@@ -1,4 +1,5 @@
 import { sql } from 'kysely';
+import { lifeExpectedSql, lifeShotsSql, lifeUsedPctOf } from '../dies/life';
 import type { DB } from '../db/connect';
 import type { DieStatus } from '../db/schema';
 
@@ -32,7 +33,9 @@ export async function findDieShotSummary(db: DB, number: string): Promise<DieSho
 			'dies.last_counted_at as lastCountedAt',
 			sql<number>`coalesce(dies.expected_life_shots, alloys.expected_life_shots)`.as(
 				'expectedLifeShots'
-			)
+			),
+			lifeShotsSql.as('lifeShots'),
+			lifeExpectedSql.as('lifeExpectedShots')
 		])
 		.where('dies.number', '=', number.trim().toUpperCase())
 		.executeTakeFirst();
@@ -44,6 +47,7 @@ export async function findDieShotSummary(db: DB, number: string): Promise<DieSho
 			.select('counter_end')
 			.where('die_id', '=', die.id)
 			.where('counter_end', 'is not', null)
+			.where('voided_at', 'is', null)
 			.orderBy('counted_at', 'desc')
 			.limit(1)
 			.executeTakeFirst(),
@@ -69,7 +73,7 @@ export async function findDieShotSummary(db: DB, number: string): Promise<DieSho
 		status: die.status,
 		totalShots: die.totalShots,
 		expectedLifeShots: die.expectedLifeShots,
-		lifeUsedPct: (100 * die.totalShots) / die.expectedLifeShots,
+		lifeUsedPct: lifeUsedPctOf(die),
 		lastCountedAt: die.lastCountedAt,
 		lastCounterEnd: counter?.counter_end ?? null,
 		lastPress: press?.name ?? null

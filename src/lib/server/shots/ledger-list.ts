@@ -1,7 +1,7 @@
 import { sql } from 'kysely';
 import type { ShotListQuery } from '../../schemas/shots';
 import type { DB } from '../db/connect';
-import type { ShotSource } from '../db/schema';
+import type { ReviewState, ShotSource } from '../db/schema';
 
 export interface ShotListRow {
 	id: number;
@@ -18,6 +18,9 @@ export interface ShotListRow {
 	note: string | null;
 	key: string | null;
 	createdAt: string;
+	reviewState: ReviewState | null;
+	voidedAt: string | null;
+	voidReason: string | null;
 }
 
 export interface ShotListPage {
@@ -108,7 +111,10 @@ export async function listShotEntries(
 			'api_tokens.name as token',
 			'e.note',
 			'e.idem_key as key',
-			'e.created_at as createdAt'
+			'e.created_at as createdAt',
+			'e.review_state as reviewState',
+			'e.voided_at as voidedAt',
+			'e.void_reason as voidReason'
 		]);
 	if (dieIds && dieIds.length <= FEW_DIES) {
 		q = q.where('e.die_id', 'in', dieIds);

@@ -1,6 +1,8 @@
 import type SQLite from 'better-sqlite3';
 import { rawHandle, type DB } from '../db/connect';
 import type { AlloyFamily, DieProcess, DieStatus, ShotSource } from '../db/schema';
+import { formatShots } from '../../format';
+import { dayOf } from '../time';
 import { maxShotsIn, maxShotsPerHour } from './plausibility';
 
 /** One counted entry as every source hands it in (form, CSV row, API object). */
@@ -13,6 +15,16 @@ export interface ShotInput {
 	counterStart?: number | null;
 	counterEnd?: number | null;
 	note?: string | null;
+	/** A person's reason for counting an entry despite plausibility warnings (form, CSV). */
+	confirmReason?: string | null;
+	/** Why the counter went back (a press controller swap): allows a smaller counter start. */
+	resetReason?: string | null;
+}
+
+/** A plausibility warning on an accepted (or to-be-confirmed) row. */
+export interface ShotWarning {
+	index: number;
+	message: string;
 }
 
 /** Why a row was refused. */
@@ -27,6 +39,10 @@ const UNKNOWN_DIE = 'There is no die ';
 export const isUnknownDieIssue = (i: ShotIssue) =>
 	i.field === 'die' && i.message.startsWith(UNKNOWN_DIE);
 
+/** True for a refusal because the counter readings were already counted (overlap or went back). */
+export const isCounterOverlapIssue = (i: ShotIssue) =>
+	i.field === 'counterStart' && /overlaps|is below the last reading/.test(i.message);
+
 export interface LedgerActor {
 	userId: string | null;
 	tokenId: number | null;
@@ -39,6 +55,14 @@ export interface RecordOptions {
 	now?: string;
 	/** Validate and report, write nothing. */
 	dryRun?: boolean;
+	/**
+	 * What a plausibility warning does to a row without a confirm reason: `refuse` it (forms and
+	 * CSV, where a person can confirm), or accept it marked "to review" (the API: a gateway must not
+	 * lose counts).
+	 */
+	onWarning?: 'refuse' | 'review';
+	/** The entry a correction replaces (voided in the same transaction). */
+	replacesId?: number;
 }
 
 export type RowOutcome = 'counted' | 'duplicate';
@@ -51,6 +75,10 @@ export type RecordResult =
 			dies: { die: string; totalShots: number }[];
 			/** Per input row: counted, or skipped as an already-seen key. */
 			outcome: RowOutcome[];
+			/** Plausibility warnings of accepted rows (to review, or confirmed with a reason). */
+			warnings: ShotWarning[];
+			/** Ids of the entries written, in input order (empty for a dry run). */
+			entryIds: number[];
 	  }
 	| { ok: false; issues: ShotIssue[] };
 
@@ -63,7 +91,25 @@ interface DieRow {
 	family: AlloyFamily;
 	total_shots: number;
 	last_counted_at: string | null;
-	min_half_shots: number | null;
+}
+
+interface HalfRow {
+	id: number;
+	side: string;
+	installed_at: string;
+	removed_at: string | null;
+	shots: number;
+}
+
+/** An earlier counter interval a new one runs into. */
+interface IntervalRow {
+	id: number;
+	counted_at: string;
+	counter_start: number;
+	counter_end: number;
+	shots: number;
+	who: string | null;
+	press: string | null;
 }
 
 const MAX_FUTURE_MS = 24 * 3_600_000;
@@ -79,13 +125,41 @@ function statements(raw: SQLite.Database) {
 	return {
 		die: raw.prepare<[string], DieRow>(
 			`select dies.id, dies.number, dies.status, dies.customer_id, dies.process, alloys.family,
-			        dies.total_shots, dies.last_counted_at,
-			        (select min(h.shots) from die_halves h where h.die_id = dies.id and h.active = 1)
-			          as min_half_shots
+			        dies.total_shots, dies.last_counted_at
 			   from dies join alloys on alloys.id = dies.alloy_id where dies.number = ?`
 		),
-		machine: raw.prepare<[string], { id: number }>(
-			`select id from machines where name = ? collate nocase`
+		halvesOf: raw.prepare<[number], HalfRow>(
+			`select id, side, installed_at, removed_at, shots from die_halves
+			  where die_id = ? order by side, installed_at, id`
+		),
+		machine: raw.prepare<[string], { id: number; name: string; chamber: 'hot' | 'cold' }>(
+			`select id, name, chamber from machines where name = ? collate nocase`
+		),
+		// Counter intervals: the latest reset at or before t, the first interval overlapping
+		// [start, end) since then, and the reading just before t (to see a counter that went back).
+		dieReset: raw.prepare<[number, string], { at: string | null }>(
+			`select max(counted_at) as at from shot_entries
+			  where die_id = ? and counter_reset = 1 and voided_at is null and counted_at <= ?`
+		),
+		machineReset: raw.prepare<[number, string], { at: string | null }>(
+			`select max(counted_at) as at from shot_entries
+			  where machine_id = ? and counter_reset = 1 and voided_at is null and counted_at <= ?`
+		),
+		dieOverlap: raw.prepare<[number, number, number, string], IntervalRow>(
+			`${INTERVAL_SELECT} where e.die_id = ? and e.counter_end is not null and e.voided_at is null
+			    and e.counter_end > ? and e.counter_start < ? and e.counted_at >= ?
+			  order by e.counted_at limit 1`
+		),
+		machineOverlap: raw.prepare<[number, number, number, string], IntervalRow>(
+			`${INTERVAL_SELECT} where e.machine_id = ? and e.machine_id is not null
+			    and e.counter_end is not null and e.voided_at is null
+			    and e.counter_end > ? and e.counter_start < ? and e.counted_at >= ?
+			  order by e.counted_at limit 1`
+		),
+		dieLastReading: raw.prepare<[number, string, string], IntervalRow>(
+			`${INTERVAL_SELECT} where e.die_id = ? and e.counter_end is not null and e.voided_at is null
+			    and e.counted_at < ? and e.counted_at >= ?
+			  order by e.counted_at desc limit 1`
 		),
 		keyOwners: raw.prepare<string[], { idem_key: string; die_id: number }>(
 			`select idem_key, die_id from shot_entries
@@ -94,14 +168,15 @@ function statements(raw: SQLite.Database) {
 		// Index seek on (die_id, counted_at), walking back past corrections (they are not readings).
 		previousReading: raw.prepare<[number, string], { counted_at: string }>(
 			`select counted_at from shot_entries
-			  where die_id = ? and counted_at < ? and source <> 'correction'
+			  where die_id = ? and counted_at < ? and source <> 'correction' and voided_at is null
 			  order by counted_at desc limit 1`
 		),
 		// Positional parameters: measurably cheaper than named ones on the hot path.
 		insert: raw.prepare(
 			`insert into shot_entries (die_id, machine_id, counted_at, shots, counter_start, counter_end,
-			   source, idem_key, entered_by, token_id, note, created_at)
-			 values (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`
+			   source, idem_key, entered_by, token_id, note, created_at, counter_reset, reset_reason,
+			   warning, review_state, reviewed_by, reviewed_at, review_reason, replaces_id)
+			 values (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`
 		),
 		daily: raw.prepare(
 			`insert into shot_daily (die_id, day, shots) values (?, ?, ?)
@@ -113,12 +188,18 @@ function statements(raw: SQLite.Database) {
 			     else max(coalesce(last_counted_at, ''), ?) end,
 			   updated_at = ? where id = ?`
 		),
-		halves: raw.prepare(`update die_halves set shots = shots + ? where die_id = ? and active = 1`),
+		half: raw.prepare(`update die_halves set shots = shots + ? where id = ?`),
 		audit: raw.prepare(
 			`insert into audit_log (at, user_id, token_id, action, die_id, detail) values (?, ?, ?, ?, ?, ?)`
 		)
 	};
 }
+const INTERVAL_SELECT = `select e.id, e.counted_at, e.counter_start, e.counter_end, e.shots,
+	    coalesce(u.name, case when t.name is not null then 'API token ' || t.name end) as who,
+	    m.name as press
+	  from shot_entries e left join users u on u.id = e.entered_by
+	  left join api_tokens t on t.id = e.token_id left join machines m on m.id = e.machine_id`;
+
 const statementCache = new WeakMap<SQLite.Database, ReturnType<typeof statements>>();
 function prepared(raw: SQLite.Database) {
 	let s = statementCache.get(raw);
@@ -188,6 +269,37 @@ interface CheckedRow {
 	key: string | null;
 	duplicate: boolean;
 	input: ShotInput;
+	/** Halves installed on the die at countedAt (one per side); they take the row's shots. */
+	halfIds: number[];
+	/** Plausibility warnings the row is accepted with. */
+	warnings: string[];
+	reviewState: 'to_review' | 'confirmed' | null;
+	counterReset: boolean;
+}
+
+/**
+ * The halves a count at `countedAt` belongs to: per side, the half whose time on the die holds
+ * it — the latest installed strictly before it (a count at the very moment of a replacement
+ * closes the old half's last run). A count from before the first half on record goes to that
+ * first half (opening balances carried over from an older register). Halves come sorted by side,
+ * then install time.
+ */
+export function halvesAt(halves: readonly HalfRow[], countedAt: string): number[] {
+	const ids: number[] = [];
+	let side: string | null = null;
+	let chosen: number | null = null;
+	for (const h of halves) {
+		if (h.side !== side) {
+			if (chosen !== null) ids.push(chosen);
+			side = h.side;
+			chosen = h.id; // the first half of the side, unless a later one holds the time
+		} else if (h.installed_at < countedAt) {
+			// Halves of a side follow each other: the latest installed before the count holds it.
+			chosen = h.id;
+		}
+	}
+	if (chosen !== null) ids.push(chosen);
+	return ids;
 }
 
 /** Sorted insert, so "latest reading before t" within a batch is a binary search. */
@@ -219,29 +331,55 @@ const isCount = (v: unknown): v is number => Number.isSafeInteger(v) && (v as nu
 const shortTime = (ms: number) =>
 	`${new Date(ms).toISOString().slice(0, 16).replace('T', ' ')} UTC`;
 
+const MIN_REASON = 5;
+const counterText = (start: number, end: number) => `${formatShots(start)} → ${formatShots(end)}`;
+
+/** "the entry of 2026-03-01 14:30 UTC by Pat Planner on HC-42M (50 200 → 50 512, 312 shots)" */
+function describeEntry(e: IntervalRow): string {
+	const who = e.who ? ` by ${e.who}` : '';
+	const press = e.press ? ` on ${e.press}` : '';
+	return `the entry of ${shortTime(Date.parse(e.counted_at))}${who}${press} (counter ${counterText(e.counter_start, e.counter_end)}, ${formatShots(e.shots)} shots)`;
+}
+
+interface BatchInterval {
+	start: number;
+	end: number;
+	index: number;
+	countedAt: string;
+}
+const overlapsIn = (list: BatchInterval[] | undefined, start: number, end: number) =>
+	list?.find((i) => i.end > start && i.start < end);
+
 /**
  * Checks every row against the register as it is now (inside the write transaction), so the
  * answer and the write agree. A key already in the ledger for the same die marks the row a
  * duplicate and skips the checks that depend on the die's present state, so a retried post is
- * acknowledged even after the die moved on. Returns one issue per refused row.
+ * acknowledged even after the die moved on. Returns one issue per refused row; plausibility
+ * warnings either refuse the row (no confirm reason, `onWarning: 'refuse'`) or ride along with it.
  */
 function checkRows(
 	raw: SQLite.Database,
 	inputs: ShotInput[],
 	actor: LedgerActor,
-	opts: { source: ShotSource; now: string }
+	opts: { source: ShotSource; now: string; onWarning: 'refuse' | 'review' }
 ): { issues: ShotIssue[]; rows: CheckedRow[] } {
 	const st = prepared(raw);
 	const issues: ShotIssue[] = [];
 	const rows: CheckedRow[] = [];
 	const dies = new Map<string, DieRow | undefined>();
-	const machines = new Map<string, number | undefined>();
+	const machines = new Map<
+		string,
+		{ id: number; name: string; chamber: 'hot' | 'cold' } | undefined
+	>();
+	const halvesByDie = new Map<number, HalfRow[]>();
 	const batchKeys = new Set<string>();
 	// Running state per die within this batch: readings accepted so far and the running totals.
 	const readings = new Map<number, number[]>();
 	const lastCountedMs = new Map<number, number>();
 	const runningTotal = new Map<number, number>();
-	const runningHalf = new Map<number, number | null>();
+	const runningHalf = new Map<number, number>();
+	const dieIntervals = new Map<number, BatchInterval[]>();
+	const machineIntervals = new Map<number, BatchInterval[]>();
 	const nowMs = Date.parse(opts.now);
 	const correction = opts.source === 'correction';
 	// Which of the batch's keys the ledger already holds: one index walk for the whole batch.
@@ -273,7 +411,8 @@ function checkRows(
 		const shots = input.shots;
 		if (!Number.isSafeInteger(shots)) return issue('shots', 'Shots must be a whole number.');
 		const { counterStart, counterEnd } = input;
-		if (counterStart != null || counterEnd != null) {
+		const byCounter = counterStart != null || counterEnd != null;
+		if (byCounter) {
 			if (counterStart == null || counterEnd == null) {
 				return issue(
 					counterStart == null ? 'counterStart' : 'counterEnd',
@@ -321,6 +460,22 @@ function checkRows(
 		const note = input.note?.trim() ?? '';
 		if (correction && !note) return issue('note', 'A correction needs a reason.');
 		if (note.length > MAX_NOTE) return issue('note', `Keep the note under ${MAX_NOTE} characters.`);
+		const resetReason = input.resetReason?.trim() ?? '';
+		if (resetReason) {
+			if (!byCounter) {
+				return issue('resetReason', 'A counter reset needs the counter start and end.');
+			}
+			if (resetReason.length < MIN_REASON) {
+				return issue('resetReason', 'Say why the counter went back (at least 5 characters).');
+			}
+			if (resetReason.length > MAX_NOTE) {
+				return issue('resetReason', `Keep the reason under ${MAX_NOTE} characters.`);
+			}
+		}
+		const confirmReason = input.confirmReason?.trim() ?? '';
+		if (confirmReason.length > MAX_NOTE) {
+			return issue('confirmReason', `Keep the reason under ${MAX_NOTE} characters.`);
+		}
 
 		let countedAt = opts.now;
 		let countedMs = nowMs;
@@ -337,14 +492,19 @@ function checkRows(
 		}
 		if (countedAt < EARLIEST) return issue('countedAt', 'Counted-at is before the year 2000.');
 
-		let machineId: number | null = null;
+		let machine: { id: number; name: string; chamber: 'hot' | 'cold' } | null = null;
 		const machineName = input.machine?.trim();
 		if (machineName) {
-			if (!machines.has(machineName)) machines.set(machineName, st.machine.get(machineName)?.id);
-			const id = machines.get(machineName);
-			if (id === undefined) return issue('machine', `There is no press called ${machineName}.`);
-			machineId = id;
+			if (!machines.has(machineName)) machines.set(machineName, st.machine.get(machineName));
+			const found = machines.get(machineName);
+			if (found === undefined) return issue('machine', `There is no press called ${machineName}.`);
+			machine = found;
 		}
+		const machineId = machine?.id ?? null;
+
+		let halves = halvesByDie.get(die.id);
+		if (!halves) halvesByDie.set(die.id, (halves = st.halvesOf.all(die.id)));
+		const halfIds = halvesAt(halves, countedAt);
 
 		const key = input.key?.trim() || null;
 		if (key !== null) {
@@ -361,7 +521,19 @@ function checkRows(
 				if (owner !== die.id) {
 					return issue('key', `The key "${key}" was already used for another die's count.`);
 				}
-				rows.push({ index, die, machineId, countedAt, key, duplicate: true, input });
+				rows.push({
+					index,
+					die,
+					machineId,
+					countedAt,
+					key,
+					duplicate: true,
+					input,
+					halfIds,
+					warnings: [],
+					reviewState: null,
+					counterReset: false
+				});
 				return;
 			}
 		}
@@ -370,21 +542,92 @@ function checkRows(
 			return issue('die', `Die ${die.number} is retired and takes no more shots.`);
 		}
 		const total = runningTotal.get(die.id) ?? die.total_shots;
-		const halfLow = runningHalf.has(die.id) ? runningHalf.get(die.id)! : die.min_half_shots;
 		if (total + shots < 0) {
 			return issue(
 				'shots',
 				`The correction would take die ${die.number} below zero shots (it has ${total}).`
 			);
 		}
-		if (halfLow !== null && halfLow + shots < 0) {
-			return issue(
-				'shots',
-				`The correction would take a half of die ${die.number} below zero shots (the newer half has ${halfLow}).`
-			);
+		for (const id of halfIds) {
+			const half = runningHalf.get(id) ?? halves.find((h) => h.id === id)!.shots;
+			if (half + shots < 0) {
+				return issue(
+					'shots',
+					`The correction would take a half of die ${die.number} below zero shots (the half on the die at that time has ${half}).`
+				);
+			}
+		}
+
+		const warnings: string[] = [];
+		if (!correction && byCounter && !resetReason) {
+			// Counter readings are intervals on the die's counter and the press's: no two may overlap.
+			const start = counterStart!;
+			const end = counterEnd!;
+			const dieSince = st.dieReset.get(die.id, countedAt)?.at ?? EARLIEST;
+			const dieClash = st.dieOverlap.get(die.id, start, end, dieSince);
+			if (dieClash) {
+				return issue(
+					'counterStart',
+					`Counter ${counterText(start, end)} overlaps ${describeEntry(dieClash)} on die ${die.number}; these shots are already counted. If the counter was reset, give the reason.`
+				);
+			}
+			const inBatch = overlapsIn(dieIntervals.get(die.id), start, end);
+			if (inBatch) {
+				return issue(
+					'counterStart',
+					`Counter ${counterText(start, end)} overlaps row ${inBatch.index + 1} of this batch (counter ${counterText(inBatch.start, inBatch.end)}) on die ${die.number}.`
+				);
+			}
+			if (machine) {
+				const since = st.machineReset.get(machine.id, countedAt)?.at ?? EARLIEST;
+				const pressClash = st.machineOverlap.get(machine.id, start, end, since);
+				if (pressClash) {
+					return issue(
+						'counterStart',
+						`Counter ${counterText(start, end)} overlaps ${describeEntry(pressClash)} on press ${machine.name}; these shots are already counted. If the counter was reset, give the reason.`
+					);
+				}
+				const pressBatch = overlapsIn(machineIntervals.get(machine.id), start, end);
+				if (pressBatch) {
+					return issue(
+						'counterStart',
+						`Counter ${counterText(start, end)} overlaps row ${pressBatch.index + 1} of this batch (counter ${counterText(pressBatch.start, pressBatch.end)}) on press ${machine.name}.`
+					);
+				}
+			}
+			const previous = st.dieLastReading.get(die.id, countedAt, dieSince);
+			if (previous && start < previous.counter_end) {
+				return issue(
+					'counterStart',
+					`The counter start ${formatShots(start)} is below the last reading ${formatShots(previous.counter_end)} (${describeEntry(previous)}). If the counter was reset, give the reason.`
+				);
+			}
+		}
+		if (!correction && byCounter) {
+			let list = dieIntervals.get(die.id);
+			if (!list) dieIntervals.set(die.id, (list = []));
+			list.push({ start: counterStart!, end: counterEnd!, index, countedAt });
+			if (machine) {
+				let pl = machineIntervals.get(machine.id);
+				if (!pl) machineIntervals.set(machine.id, (pl = []));
+				pl.push({ start: counterStart!, end: counterEnd!, index, countedAt });
+			}
 		}
 
 		if (!correction) {
+			if (die.status === 'in_toolroom' || die.status === 'held') {
+				warnings.push(
+					`Die ${die.number} is ${die.status === 'held' ? 'held (quarantined)' : 'in the toolroom'}; it should not be running.`
+				);
+			}
+			if (machine) {
+				const dieChamber = die.process === 'hot_chamber' ? 'hot' : 'cold';
+				if (machine.chamber !== dieChamber) {
+					warnings.push(
+						`Press ${machine.name} is a ${machine.chamber}-chamber press; die ${die.number} is made for ${dieChamber} chamber.`
+					);
+				}
+			}
 			const inBatch = latestBefore(readings.get(die.id), countedMs);
 			let inLedger: number | null = null;
 			if (die.last_counted_at !== null) {
@@ -402,31 +645,65 @@ function checkRows(
 				const perHour = maxShotsPerHour(die.process, die.family);
 				const limit = maxShotsIn(countedMs - previous, perHour);
 				if (shots > limit) {
-					return issue(
-						'shots',
-						`${shots} shots between the previous count (${shortTime(previous)}) and this one (${shortTime(countedMs)}) is more than a press can make: at most ${limit} at ${perHour} shots/h.`
+					warnings.push(
+						`${formatShots(shots)} shots between the previous count (${shortTime(previous)}) and this one (${shortTime(countedMs)}) is more than a press can plausibly make: at most ${formatShots(limit)} at ${formatShots(perHour)} shots/h.`
 					);
 				}
 			}
+		}
+		let reviewState: CheckedRow['reviewState'] = null;
+		if (warnings.length) {
+			if (confirmReason.length >= MIN_REASON) reviewState = 'confirmed';
+			else if (opts.onWarning === 'review') reviewState = 'to_review';
+			else {
+				return issue(
+					'confirm',
+					`${warnings.join(' ')} To count it anyway, confirm with a reason${confirmReason ? ' (at least 5 characters)' : ''}.`
+				);
+			}
+		}
+
+		if (!correction) {
 			let list = readings.get(die.id);
 			if (!list) readings.set(die.id, (list = []));
 			insertSorted(list, countedMs);
 		}
 		runningTotal.set(die.id, total + shots);
-		if (halfLow !== null) runningHalf.set(die.id, halfLow + shots);
-		rows.push({ index, die, machineId, countedAt, key, duplicate: false, input });
+		for (const id of halfIds) {
+			runningHalf.set(id, (runningHalf.get(id) ?? halves.find((h) => h.id === id)!.shots) + shots);
+		}
+		rows.push({
+			index,
+			die,
+			machineId,
+			countedAt,
+			key,
+			duplicate: false,
+			input,
+			halfIds,
+			warnings,
+			reviewState,
+			counterReset: Boolean(resetReason)
+		});
 	});
 	return { issues, rows };
 }
 
 /** The answer for rows that passed every check; `added` holds the shots per die id. */
-function summarize(rows: CheckedRow[], total: number, added: Map<number, number>): RecordResult {
+function summarize(
+	rows: CheckedRow[],
+	total: number,
+	added: Map<number, number>,
+	entryIds: number[]
+): RecordResult {
 	const outcome: RowOutcome[] = new Array(total);
 	const touched = new Map<number, DieRow>();
+	const warnings: ShotWarning[] = [];
 	let accepted = 0;
 	for (const row of rows) {
 		outcome[row.index] = row.duplicate ? 'duplicate' : 'counted';
 		if (!row.duplicate) accepted++;
+		for (const message of row.warnings) warnings.push({ index: row.index, message });
 		// Dies named only by duplicates still report their total.
 		touched.set(row.die.id, row.die);
 	}
@@ -438,15 +715,126 @@ function summarize(rows: CheckedRow[], total: number, added: Map<number, number>
 			die: d.number,
 			totalShots: d.total_shots + (added.get(d.id) ?? 0)
 		})),
-		outcome
+		outcome,
+		warnings,
+		entryIds
 	};
 }
 
 /**
+ * Adds `shots` (negative to take off) to the die total, the credited halves and the daily
+ * roll-up: the one place every ledger change moves the kept totals.
+ */
+function moveTotals(
+	raw: SQLite.Database,
+	change: { dieId: number; halfIds: readonly number[]; countedAt: string; shots: number },
+	lastCountedAt: string | null,
+	now: string
+) {
+	const st = prepared(raw);
+	st.daily.run(change.dieId, dayOf(change.countedAt), change.shots);
+	st.dieTotal.run(change.shots, lastCountedAt, lastCountedAt, now, change.dieId);
+	for (const id of change.halfIds) st.half.run(change.shots, id);
+}
+
+/** Writes checked rows and moves the totals; runs inside the caller's transaction. */
+function writeRows(
+	raw: SQLite.Database,
+	rows: CheckedRow[],
+	actor: LedgerActor,
+	source: ShotSource,
+	now: string,
+	replacesId: number | null
+): { added: Map<number, number>; entryIds: number[] } {
+	const st = prepared(raw);
+	const added = new Map<number, number>();
+	const entryIds: number[] = [];
+	const daily = new Map<string, { dieId: number; day: string; shots: number }>();
+	const latest = new Map<number, string>();
+	const halves = new Map<number, { dieId: number; shots: number }>();
+	for (const row of rows) {
+		if (row.duplicate) continue;
+		const shots = row.input.shots;
+		added.set(row.die.id, (added.get(row.die.id) ?? 0) + shots);
+		const confirmed = row.reviewState === 'confirmed';
+		const inserted = st.insert.run(
+			row.die.id,
+			row.machineId,
+			row.countedAt,
+			shots,
+			row.input.counterStart ?? null,
+			row.input.counterEnd ?? null,
+			source,
+			row.key,
+			actor.userId,
+			actor.tokenId,
+			row.input.note?.trim() || null,
+			now,
+			row.counterReset ? 1 : 0,
+			row.counterReset ? row.input.resetReason!.trim() : null,
+			row.warnings.length ? row.warnings.join('\n') : null,
+			row.reviewState,
+			confirmed ? actor.userId : null,
+			confirmed ? now : null,
+			confirmed ? row.input.confirmReason!.trim() : null,
+			replacesId
+		);
+		entryIds.push(Number(inserted.lastInsertRowid));
+		const day = dayOf(row.countedAt);
+		const dayKey = `${row.die.id}|${day}`;
+		const d = daily.get(dayKey);
+		if (d) d.shots += shots;
+		else daily.set(dayKey, { dieId: row.die.id, day, shots });
+		for (const id of row.halfIds) {
+			const h = halves.get(id);
+			if (h) h.shots += shots;
+			else halves.set(id, { dieId: row.die.id, shots });
+		}
+		// A correction is not a reading: it leaves "last counted at" (and so the rate check) alone.
+		if (source !== 'correction') {
+			const prev = latest.get(row.die.id);
+			if (!prev || row.countedAt > prev) latest.set(row.die.id, row.countedAt);
+		}
+		if (source === 'correction') {
+			st.audit.run(
+				now,
+				actor.userId,
+				actor.tokenId,
+				'shots.correction',
+				row.die.id,
+				JSON.stringify({ shots, reason: row.input.note?.trim(), countedAt: row.countedAt })
+			);
+		}
+		if (row.counterReset) {
+			st.audit.run(
+				now,
+				actor.userId,
+				actor.tokenId,
+				'shots.counter_reset',
+				row.die.id,
+				JSON.stringify({
+					counterStart: row.input.counterStart,
+					counterEnd: row.input.counterEnd,
+					reason: row.input.resetReason?.trim()
+				})
+			);
+		}
+	}
+	// Totals are applied once per die, half and die-day per batch: a gateway's batch stays cheap.
+	for (const d of daily.values()) st.daily.run(d.dieId, d.day, d.shots);
+	for (const [dieId, shots] of added) {
+		const at = latest.get(dieId) ?? null;
+		st.dieTotal.run(shots, at, at, now, dieId);
+	}
+	for (const [id, h] of halves) st.half.run(h.shots, id);
+	return { added, entryIds };
+}
+
+/**
  * Counts shots into the ledger: every row is checked, then all rows are written with die, daily
- * and active-half totals in one IMMEDIATE transaction — or nothing is written. A key seen before
- * for the same die is acknowledged and not counted again. Totals are applied once per die (and
- * per die-day) per batch, which keeps a gateway's batch of readings cheap.
+ * and half totals (each row credited to the halves on the die at its counted-at) in one
+ * IMMEDIATE transaction — or nothing is written. A key seen before for the same die is
+ * acknowledged and not counted again.
  */
 export async function recordShots(
 	db: DB,
@@ -470,68 +858,301 @@ export async function recordShots(
 		};
 	}
 	const now = (options.now && normalizeInstant(options.now)) || new Date().toISOString();
-	const source = options.source;
 	const raw = rawHandle(db);
 	return db.connection().execute(async () => {
-		const run = raw.transaction((): RecordResult => {
-			const { issues, rows } = checkRows(raw, inputs, actor, { source, now });
-			if (issues.length) return { ok: false, issues };
-			const added = new Map<number, number>();
-			for (const row of rows) {
-				if (!row.duplicate) added.set(row.die.id, (added.get(row.die.id) ?? 0) + row.input.shots);
-			}
-			if (options.dryRun) return summarize(rows, inputs.length, added);
-
-			const st = prepared(raw);
-			const daily = new Map<string, { dieId: number; day: string; shots: number }>();
-			const latest = new Map<number, string>();
-			for (const row of rows) {
-				if (row.duplicate) continue;
-				const shots = row.input.shots;
-				st.insert.run(
-					row.die.id,
-					row.machineId,
-					row.countedAt,
-					shots,
-					row.input.counterStart ?? null,
-					row.input.counterEnd ?? null,
-					source,
-					row.key,
-					actor.userId,
-					actor.tokenId,
-					row.input.note?.trim() || null,
-					now
-				);
-				const day = row.countedAt.slice(0, 10);
-				const dayKey = `${row.die.id}|${day}`;
-				const d = daily.get(dayKey);
-				if (d) d.shots += shots;
-				else daily.set(dayKey, { dieId: row.die.id, day, shots });
-				// A correction is not a reading: it leaves "last counted at" (and so the rate check) alone.
-				if (source !== 'correction') {
-					const prev = latest.get(row.die.id);
-					if (!prev || row.countedAt > prev) latest.set(row.die.id, row.countedAt);
-				}
-				if (source === 'correction') {
-					st.audit.run(
-						now,
-						actor.userId,
-						actor.tokenId,
-						'shots.correction',
-						row.die.id,
-						JSON.stringify({ shots, reason: row.input.note?.trim(), countedAt: row.countedAt })
-					);
-				}
-			}
-			for (const d of daily.values()) st.daily.run(d.dieId, d.day, d.shots);
-			for (const [dieId, shots] of added) {
-				const at = latest.get(dieId) ?? null;
-				st.dieTotal.run(shots, at, at, now, dieId);
-				st.halves.run(shots, dieId);
-			}
-			return summarize(rows, inputs.length, added);
-		});
+		const run = raw.transaction((): RecordResult =>
+			recordRowsNow(raw, inputs, actor, options, now)
+		);
 		// A dry run only reads; it needs no write lock.
 		return options.dryRun ? run.deferred() : run.immediate();
+	});
+}
+
+function recordRowsNow(
+	raw: SQLite.Database,
+	inputs: ShotInput[],
+	actor: LedgerActor,
+	options: RecordOptions,
+	now: string
+): RecordResult {
+	const source = options.source;
+	const { issues, rows } = checkRows(raw, inputs, actor, {
+		source,
+		now,
+		onWarning: options.onWarning ?? 'refuse'
+	});
+	if (issues.length) return { ok: false, issues };
+	if (options.dryRun) {
+		const added = new Map<number, number>();
+		for (const row of rows) {
+			if (!row.duplicate) added.set(row.die.id, (added.get(row.die.id) ?? 0) + row.input.shots);
+		}
+		return summarize(rows, inputs.length, added, []);
+	}
+	const { added, entryIds } = writeRows(raw, rows, actor, source, now, options.replacesId ?? null);
+	return summarize(rows, inputs.length, added, entryIds);
+}
+
+/** A ledger entry as the correct/void/confirm actions see it. */
+interface EntryRow {
+	id: number;
+	die_id: number;
+	die_number: string;
+	machine: string | null;
+	counted_at: string;
+	shots: number;
+	counter_start: number | null;
+	counter_end: number | null;
+	source: ShotSource;
+	note: string | null;
+	voided_at: string | null;
+	review_state: string | null;
+	warning: string | null;
+}
+
+const ENTRY_SELECT = `select e.id, e.die_id, d.number as die_number, m.name as machine, e.counted_at,
+	  e.shots, e.counter_start, e.counter_end, e.source, e.note, e.voided_at, e.review_state, e.warning
+	  from shot_entries e join dies d on d.id = e.die_id left join machines m on m.id = e.machine_id
+	 where e.id = ? and d.number = ?`;
+
+export type EntryChangeResult =
+	| { ok: true; entryId: number; dieTotal: number }
+	| { ok: false; field: string; message: string; issues?: ShotIssue[] };
+
+function checkReason(reason: string, what: string): string | null {
+	const r = reason.trim();
+	if (r.length < MIN_REASON) return `Give the reason for the ${what} (at least 5 characters).`;
+	if (r.length > MAX_NOTE) return `Keep the reason under ${MAX_NOTE} characters.`;
+	return null;
+}
+
+/** Takes a live entry out of the totals and marks it voided (inside the caller's transaction). */
+function voidNow(
+	raw: SQLite.Database,
+	entry: EntryRow,
+	reason: string,
+	actor: LedgerActor,
+	now: string
+) {
+	const st = prepared(raw);
+	const halves = st.halvesOf.all(entry.die_id);
+	raw
+		.prepare(
+			`update shot_entries set voided_at = ?, voided_by = ?, void_reason = ? where id = ? and voided_at is null`
+		)
+		.run(now, actor.userId, reason, entry.id);
+	moveTotals(
+		raw,
+		{
+			dieId: entry.die_id,
+			halfIds: halvesAt(halves, entry.counted_at),
+			countedAt: entry.counted_at,
+			shots: -entry.shots
+		},
+		null,
+		now
+	);
+}
+
+/** The kept die total after a change. */
+const dieTotalOf = (raw: SQLite.Database, dieId: number) =>
+	raw
+		.prepare<[number], { total_shots: number }>('select total_shots from dies where id = ?')
+		.get(dieId)!.total_shots;
+
+/**
+ * The frame every change to one entry shares: the reason is checked, then, in one IMMEDIATE
+ * transaction under the ledger's connection lock, the entry is found on the named die and handed
+ * to `change`. A thrown RefusedCorrection rolls everything back and comes back as a refusal.
+ */
+async function changeEntry(
+	db: DB,
+	dieNumber: string,
+	entryId: number,
+	reason: string,
+	what: string,
+	change: (raw: SQLite.Database, entry: EntryRow, reason: string) => EntryChangeResult
+): Promise<EntryChangeResult> {
+	const problem = checkReason(reason, what);
+	if (problem) return { ok: false, field: 'reason', message: problem };
+	const raw = rawHandle(db);
+	try {
+		return await db.connection().execute(async () =>
+			raw
+				.transaction((): EntryChangeResult => {
+					const entry = raw
+						.prepare<[number, string], EntryRow>(ENTRY_SELECT)
+						.get(entryId, dieNumber);
+					if (!entry) {
+						return { ok: false, field: 'entry', message: 'There is no such entry on this die.' };
+					}
+					return change(raw, entry, reason.trim());
+				})
+				.immediate()
+		);
+	} catch (e) {
+		if (!(e instanceof RefusedCorrection)) throw e;
+		const first = e.issues[0];
+		return { ok: false, field: first.field, message: first.message, issues: e.issues };
+	}
+}
+
+class RefusedCorrection extends Error {
+	constructor(readonly issues: ShotIssue[]) {
+		super('Correction refused');
+	}
+}
+
+/**
+ * Voids a ledger entry (toolroom lead, with a reason): the entry stays in the ledger, shown struck
+ * through, and its shots come off the die, the halves that took them and the daily roll-up in the
+ * same transaction. Audited. A voided entry cannot be voided again.
+ */
+export function voidShotEntry(
+	db: DB,
+	dieNumber: string,
+	entryId: number,
+	reason: string,
+	actor: LedgerActor,
+	now = new Date().toISOString()
+): Promise<EntryChangeResult> {
+	return changeEntry(db, dieNumber, entryId, reason, 'void', (raw, entry, why) => {
+		if (entry.voided_at) {
+			return { ok: false, field: 'entry', message: 'This entry is already voided.' };
+		}
+		const total = dieTotalOf(raw, entry.die_id);
+		if (total - entry.shots < 0) {
+			return {
+				ok: false,
+				field: 'entry',
+				message: `Voiding it would take die ${entry.die_number} below zero shots (it has ${total}).`
+			};
+		}
+		voidNow(raw, entry, why, actor, now);
+		prepared(raw).audit.run(
+			now,
+			actor.userId,
+			actor.tokenId,
+			'shots.void',
+			entry.die_id,
+			JSON.stringify({
+				entry: entry.id,
+				shots: entry.shots,
+				countedAt: entry.counted_at,
+				reason: why
+			})
+		);
+		return { ok: true, entryId: entry.id, dieTotal: dieTotalOf(raw, entry.die_id) };
+	});
+}
+
+export interface EntryCorrection {
+	shots?: number;
+	countedAt?: string;
+	counterStart?: number | null;
+	counterEnd?: number | null;
+	machine?: string | null;
+}
+
+/**
+ * Corrects a ledger entry (toolroom lead, with a reason): the old entry is voided and a new one
+ * with the corrected figures is counted in its place, in one transaction, checked like any entry
+ * (its counters against the others, its shots credited to the halves on the die at its time).
+ * Warnings on the new figures are taken as confirmed by the lead's reason. Audited.
+ */
+export function correctShotEntry(
+	db: DB,
+	dieNumber: string,
+	entryId: number,
+	change: EntryCorrection,
+	reason: string,
+	actor: LedgerActor,
+	now = new Date().toISOString()
+): Promise<EntryChangeResult> {
+	return changeEntry(db, dieNumber, entryId, reason, 'correction', (raw, entry, why) => {
+		if (entry.voided_at) {
+			return { ok: false, field: 'entry', message: 'A voided entry cannot be corrected.' };
+		}
+		if (entry.source === 'correction') {
+			return {
+				ok: false,
+				field: 'entry',
+				message: 'A correcting entry is not corrected; void it and post a new correction.'
+			};
+		}
+		const counterStart =
+			change.counterStart !== undefined ? change.counterStart : entry.counter_start;
+		const counterEnd = change.counterEnd !== undefined ? change.counterEnd : entry.counter_end;
+		const byCounter = counterStart != null && counterEnd != null;
+		const shots = byCounter ? counterEnd - counterStart : (change.shots ?? entry.shots);
+		voidNow(raw, entry, why, actor, now);
+		const input: ShotInput = {
+			die: entry.die_number,
+			shots,
+			countedAt: change.countedAt || entry.counted_at,
+			machine: change.machine !== undefined ? change.machine : entry.machine,
+			counterStart: byCounter ? counterStart : null,
+			counterEnd: byCounter ? counterEnd : null,
+			note: entry.note,
+			confirmReason: why
+		};
+		const result = recordRowsNow(
+			raw,
+			[input],
+			actor,
+			{ source: entry.source, replacesId: entry.id },
+			now
+		);
+		// Throwing rolls the void back with the refused replacement.
+		if (!result.ok) throw new RefusedCorrection(result.issues);
+		prepared(raw).audit.run(
+			now,
+			actor.userId,
+			actor.tokenId,
+			'shots.correct',
+			entry.die_id,
+			JSON.stringify({
+				entry: entry.id,
+				replacedBy: result.entryIds[0],
+				from: { shots: entry.shots, countedAt: entry.counted_at },
+				to: { shots, countedAt: input.countedAt },
+				reason: why
+			})
+		);
+		return { ok: true, entryId: result.entryIds[0], dieTotal: dieTotalOf(raw, entry.die_id) };
+	});
+}
+
+/**
+ * Confirms an entry that came in "to review" (toolroom lead, with a reason): it keeps counting as
+ * it did and leaves the review list. Audited.
+ */
+export function confirmShotEntry(
+	db: DB,
+	dieNumber: string,
+	entryId: number,
+	reason: string,
+	actor: LedgerActor,
+	now = new Date().toISOString()
+): Promise<EntryChangeResult> {
+	return changeEntry(db, dieNumber, entryId, reason, 'confirmation', (raw, entry, why) => {
+		if (entry.voided_at || entry.review_state !== 'to_review') {
+			return { ok: false, field: 'entry', message: 'This entry is not waiting for review.' };
+		}
+		raw
+			.prepare(
+				`update shot_entries set review_state = 'confirmed', reviewed_by = ?, reviewed_at = ?,
+				   review_reason = ? where id = ?`
+			)
+			.run(actor.userId, now, why, entry.id);
+		prepared(raw).audit.run(
+			now,
+			actor.userId,
+			actor.tokenId,
+			'shots.confirm',
+			entry.die_id,
+			JSON.stringify({ entry: entry.id, warning: entry.warning, reason: why })
+		);
+		return { ok: true, entryId: entry.id, dieTotal: dieTotalOf(raw, entry.die_id) };
 	});
 }

@@ -29,7 +29,10 @@ export const GET: RequestHandler = async (event) => {
 			'key',
 			'note',
 			'entered_by',
-			'entered_at'
+			'entered_at',
+			// A voided entry is listed (the ledger keeps it) but counts nothing.
+			'state',
+			'void_reason'
 		],
 		rows.map((r) => [
 			r.die,
@@ -42,7 +45,9 @@ export const GET: RequestHandler = async (event) => {
 			r.key ?? '',
 			r.note ?? '',
 			r.enteredBy ?? r.token ?? '',
-			r.createdAt
+			r.createdAt,
+			r.voidedAt ? 'voided' : (r.reviewState ?? 'counted'),
+			r.voidReason ?? ''
 		])
 	);
 };

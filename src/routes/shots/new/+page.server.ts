@@ -61,7 +61,9 @@ export const actions: Actions = {
 					machine: d.machine,
 					counterStart: d.counterStart ?? null,
 					counterEnd: d.counterEnd ?? null,
-					note: d.note
+					note: d.note,
+					resetReason: d.resetReason,
+					confirmReason: d.confirmReason
 				}
 			],
 			{ userId: user.id, tokenId: null, customerId: null },
@@ -70,7 +72,12 @@ export const actions: Actions = {
 		if (!result.ok) {
 			for (const issue of result.issues) {
 				// A count typed as counter readings is answered beside the counter end.
-				const field = issue.field === 'shots' && byCounter ? 'counterEnd' : issue.field;
+				const field =
+					issue.field === 'shots' && byCounter
+						? 'counterEnd'
+						: issue.field === 'confirm'
+							? 'confirmReason'
+							: issue.field;
 				const known = [
 					'die',
 					'machine',
@@ -78,7 +85,9 @@ export const actions: Actions = {
 					'shots',
 					'counterStart',
 					'counterEnd',
-					'note'
+					'note',
+					'resetReason',
+					'confirmReason'
 				];
 				setError(form, (known.includes(field) ? field : '') as 'die', issue.message);
 			}

@@ -52,7 +52,15 @@ export const actions: Actions = {
 		if (typeof text !== 'string' || !text || !Number.isInteger(expected)) {
 			return fail(400, { fileError: 'The preview was lost. Upload the file again.' });
 		}
-		const result = await commitShotCsv(getDb(), text, expected, actorOf(user));
+		const confirmReason = String(data.get('confirmReason') ?? '').slice(0, 500);
+		const result = await commitShotCsv(
+			getDb(),
+			text,
+			expected,
+			actorOf(user),
+			undefined,
+			confirmReason
+		);
 		if (!result.ok) {
 			return fail(409, {
 				fileError: result.message,

@@ -3,7 +3,9 @@ import { ApiError, apiRoute } from '$lib/server/api/respond';
 import { authorizeApi } from '$lib/server/auth/principal';
 import { getDb } from '$lib/server/db';
 import { dieApiView } from '$lib/server/dies/api-view';
-import { findDie, dieLife } from '$lib/server/dies/die-detail';
+import { findDie } from '$lib/server/dies/die-detail';
+import { listHalfLives, loadDieLife } from '$lib/server/dies/life';
+import { countToReview } from '$lib/server/shots/review';
 import { worstTasks } from '$lib/server/dies/register';
 import { nowIso } from '$lib/server/time';
 
@@ -14,9 +16,11 @@ export const GET = apiRoute(async (event) => {
 	const die = await findDie(db, event.params.number ?? '', { customerId: principal.customerId });
 	if (!die) throw new ApiError(404, `There is no die ${event.params.number}.`);
 	const asOf = nowIso();
-	const [tasks, life] = await Promise.all([
+	const [tasks, life, halves, toReview] = await Promise.all([
 		worstTasks(db, [{ id: die.id, totalShots: die.total_shots }], asOf),
-		dieLife(db, die, asOf)
+		loadDieLife(db, die.id, asOf),
+		listHalfLives(db, die.id),
+		countToReview(db, [die.id])
 	]);
 	return json({
 		...dieApiView({
@@ -33,7 +37,19 @@ export const GET = apiRoute(async (event) => {
 			lifeUsedPct: life.lifeUsedPct,
 			nextService: die.status === 'retired' ? null : (tasks.get(die.id) ?? null)
 		}),
+		shotsRemaining: life.shotsRemaining,
 		shotsPerDay: life.shotsPerDay,
-		projectedEndOfLife: life.projectedEndOfLife
+		projectedEndOfLife: life.projectedEndOfLife,
+		// Life follows the steel: the figures above are those of the most-worn active half.
+		lifeSide: life.lifeSide,
+		halves: halves.map((h) => ({
+			side: h.side,
+			serial: h.serial,
+			installedAt: h.installedAt,
+			removedAt: h.removedAt,
+			shots: h.shots,
+			lifeUsedPct: Math.round(h.lifeUsedPct * 100) / 100
+		})),
+		toReview: toReview.get(die.id) ?? 0
 	});
 });
