@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { decimalNumber, optionalWholeNumber, wholeNumber } from './numbers';
 
 export const SHOT_SOURCES = ['manual', 'csv', 'api', 'correction', 'seed'] as const;
 export const SHOT_SOURCE_LABELS: Record<(typeof SHOT_SOURCES)[number], string> = {
@@ -22,13 +23,12 @@ const dieNumber = z
 	.min(1, 'Enter the die number.')
 	.max(20, 'A die number has at most 20 characters.');
 
+// Read strictly from the text typed (see ./numbers): `3.9`, `12abc` and `2e1` are refused.
 const optionalCount = (what: string) =>
-	z
-		.number({ error: `${what} must be a whole number.` })
-		.int(`${what} must be a whole number.`)
-		.min(0, `${what} cannot be negative.`)
-		.max(2_000_000_000, `${what} is too large.`)
-		.optional();
+	optionalWholeNumber({
+		min: [0, `${what} cannot be negative.`],
+		max: [2_000_000_000, `${what} is too large.`]
+	});
 
 const optionalNote = z
 	.string()
@@ -81,12 +81,9 @@ export function pressRunShots(v: Pick<PressRunForm, 'shots' | 'counterStart' | '
 /** A correcting entry: signed, with a mandatory reason. */
 export const correctionSchema = z.object({
 	// Optional in the schema only so the field starts empty; the refine makes it required.
-	shots: z
-		.number({ error: 'Enter the correction in shots (negative to take shots off).' })
-		.int('Enter whole shots.')
-		.optional()
-		.refine((n) => n !== undefined, 'Enter the correction in shots (negative to take shots off).')
-		.refine((n) => n !== 0, 'A correction must change the count (not 0).'),
+	shots: wholeNumber({
+		required: 'Enter the correction in shots (negative to take shots off).'
+	}).refine((n) => n !== 0, 'A correction must change the count (not 0).'),
 	countedAt: z
 		.string()
 		.trim()
@@ -113,10 +110,11 @@ export const halfReplaceSchema = z.object({
 		.trim()
 		.min(2, 'Enter the steel grade, e.g. H13.')
 		.max(40),
-	hardnessHrc: z
-		.number({ error: 'Enter the hardness in HRC.' })
-		.min(20, 'Below 20 HRC is not a hardened die steel.')
-		.max(70, 'Above 70 HRC is not plausible for a die steel.'),
+	hardnessHrc: decimalNumber({
+		required: 'Enter the hardness in HRC.',
+		min: [20, 'Below 20 HRC is not a hardened die steel.'],
+		max: [70, 'Above 70 HRC is not plausible for a die steel.']
+	}),
 	reason: z
 		.string({ error: 'Give the reason for the replacement.' })
 		.trim()

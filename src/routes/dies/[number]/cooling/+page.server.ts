@@ -105,11 +105,13 @@ export const actions: Actions = {
 			return message(form, result.message, { status: result.status });
 		}
 		const pct = Math.round(result.figures.pctOfNominal);
+		// Says how the typed flow was read (a decimal comma, grouping), so nothing is reread silently.
+		const flow = `flow read as ${form.data.measuredFlowLpm} L/min is ${pct} % of nominal`;
 		return message(
 			form,
 			result.figures.weak
-				? `Check recorded: flow is ${pct} % of nominal — below ${WEAK_FLOW_THRESHOLD_PCT} %, flagged as weak.`
-				: `Check recorded: flow is ${pct} % of nominal.`
+				? `Check recorded: ${flow} — below ${WEAK_FLOW_THRESHOLD_PCT} %, flagged as weak.`
+				: `Check recorded: ${flow}.`
 		);
 	}
 };
