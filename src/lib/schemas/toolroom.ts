@@ -231,3 +231,23 @@ export const photoShareSchema = z.object({
 		.regex(/^[A-Za-z0-9_-]{16,40}$/, 'Unknown photo.'),
 	shared: z.enum(['0', '1']).transform((v) => v === '1')
 });
+
+const voidReason = z
+	.string({ error: 'Give the reason.' })
+	.trim()
+	.min(5, 'Give the reason (at least 5 characters).')
+	.max(300, 'Keep the reason under 300 characters.');
+
+/** Voiding an inspection, a cooling check or a job: which one, and why (toolroom lead). */
+export const voidRecordSchema = z.object({
+	id: wholeNumber({ required: 'Choose the record.', min: [1, 'Choose the record.'] }),
+	reason: voidReason
+});
+export type VoidRecordForm = z.infer<typeof voidRecordSchema>;
+
+/** Correcting a cooling check: the right reading and why the first one was wrong. */
+export const correctCheckSchema = coolingCheckSchema.omit({ circuitId: true }).extend({
+	checkId: wholeNumber({ required: 'Choose the check.', min: [1, 'Choose the check.'] }),
+	reason: voidReason
+});
+export type CorrectCheckForm = z.infer<typeof correctCheckSchema>;
