@@ -251,3 +251,13 @@ export const correctCheckSchema = coolingCheckSchema.omit({ circuitId: true }).e
 	reason: voidReason
 });
 export type CorrectCheckForm = z.infer<typeof correctCheckSchema>;
+
+/** Correcting an inspection's figures; half, zone, notes and photos stay as recorded. */
+export const correctInspectionSchema = z.object({
+	id: wholeNumber({ required: 'Choose the inspection.', min: [1, 'Choose the inspection.'] }),
+	shotsAt: inspectionSchema.shape.shotsAt,
+	grade: inspectionSchema.shape.grade,
+	longestCrackMm: inspectionSchema.shape.longestCrackMm,
+	reason: voidReason
+});
+export type CorrectInspectionForm = z.infer<typeof correctInspectionSchema>;
