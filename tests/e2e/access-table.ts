@@ -140,6 +140,7 @@ export const ACTIONS: Record<string, Cells> = {
 	'/jobs/[job]?/share': roles(...WORKERS),
 	'/jobs/[job]?/status': roles(...WORKERS),
 	'/jobs/[job]?/upload': roles(...WORKERS),
+	'/jobs/[job]?/void': roles(...LEADS),
 	'/presses/[id]?/delete': roles(...PLANNERS),
 	'/presses/[id]?/save': roles(...PLANNERS),
 	'/presses/new?/default': roles(...PLANNERS),

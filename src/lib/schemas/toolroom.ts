@@ -261,3 +261,6 @@ export const correctInspectionSchema = z.object({
 	reason: voidReason
 });
 export type CorrectInspectionForm = z.infer<typeof correctInspectionSchema>;
+
+/** Voiding a toolroom job: the reason (the job is the page's). */
+export const voidJobSchema = z.object({ reason: voidReason });
