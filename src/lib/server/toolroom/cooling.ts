@@ -299,6 +299,7 @@ export async function recordCheck(
 				action: 'cooling.check',
 				dieId: input.dieId,
 				detail: {
+					check: row.id,
 					circuit: circuit.label,
 					flowLpm: form.measuredFlowLpm,
 					pctOfNominal: Math.round(figures.pctOfNominal),

@@ -122,6 +122,7 @@ export async function recordInspection(
 					action: 'surface.inspect',
 					dieId: input.dieId,
 					detail: {
+						inspection: row.id,
 						half: form.half,
 						zone: form.zone,
 						grade: form.grade,
