@@ -235,3 +235,17 @@ describe('cooling check form: decimal readings', () => {
 		expect(await checks()).toEqual([]);
 	});
 });
+
+describe('the order-check API reads its query numbers the same way', async () => {
+	const { orderCheckQuerySchema } = await import('../../src/lib/schemas/shots');
+	it('refuses 1e7 parts and 12abc shots per hour, takes a decimal comma for scrap', () => {
+		const bad = orderCheckQuerySchema.safeParse({ parts: '1e7', shotsPerHour: '12abc' });
+		expect(bad.error?.issues.map((i) => i.message)).toEqual([
+			'“1e7” is written as a power of ten; type the number in full digits.',
+			'“12abc” is not a number; use digits and one decimal point.'
+		]);
+		expect(
+			orderCheckQuerySchema.parse({ parts: '5000', scrapPct: '2,5', shotsPerHour: '120' })
+		).toEqual({ parts: 5000, scrapPct: 2.5, shotsPerHour: 120 });
+	});
+});
