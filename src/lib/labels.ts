@@ -94,3 +94,33 @@ export const ENTRY_ACTION_LABELS = {
 	correct: 'Correct the figures',
 	void: 'Void (counts nothing)'
 } as const;
+/** Audit actions of a die's history in words (src/lib/history.ts words the whole entry). */
+export const AUDIT_ACTION_LABELS: Record<string, string> = {
+	'die.create': 'Die registered',
+	'die.edit': 'Register data edited',
+	'die.status': 'State changed',
+	'half.replace': 'Half replaced',
+	'shots.correction': 'Shot correction',
+	'service.done': 'Service done',
+	'service.intervals': 'Service interval changed',
+	'service.add': 'Service task added',
+	'service.deactivate': 'Service task taken off the plan',
+	'job.open': 'Toolroom job opened',
+	'job.status': 'Toolroom job moved',
+	'job.assign': 'Toolroom job assigned',
+	'job.close': 'Toolroom job closed',
+	'job.cancel': 'Toolroom job cancelled',
+	'job.void': 'Toolroom job voided',
+	'job.owner_summary': 'Owner summary changed',
+	'surface.inspect': 'Surface inspection',
+	'surface.void': 'Surface inspection voided',
+	'surface.correct': 'Surface inspection corrected',
+	'cooling.circuit': 'Cooling circuit added',
+	'cooling.check': 'Cooling check',
+	'cooling.void': 'Cooling check voided',
+	'cooling.correct': 'Cooling check corrected',
+	'booking.create': 'Press booking made',
+	'booking.cancel': 'Press booking cancelled',
+	'photo.add': 'Photos added',
+	'photo.share': 'Photo sharing changed'
+};

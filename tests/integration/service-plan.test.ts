@@ -152,7 +152,8 @@ describe('editing intervals', () => {
 		const days = taskIntervalsSchema.safeParse({ taskId: 1, intervalDays: '4000' });
 		expect(days.error!.issues[0].message).toMatch(/5 years/);
 		const fraction = taskIntervalsSchema.safeParse({ taskId: 1, intervalShots: '1500.5' });
-		expect(fraction.error!.issues[0].message).toBe('Enter whole shots.');
+		// The strict reader names what was typed (src/lib/parse-number.ts).
+		expect(fraction.error!.issues[0].message).toBe('“1500.5” is not a whole number.');
 		const ok = taskIntervalsSchema.safeParse({
 			taskId: 1,
 			intervalShots: '20000',

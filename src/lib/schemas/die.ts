@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { decimalNumber, optionalWholeNumber, wholeNumber } from './numbers';
 
 // Optional text stays a string ('' when empty) so the form can round-trip it; the server stores
 // empty text as null.
@@ -19,30 +20,26 @@ export const dieFormSchema = z.object({
 		.min(1, 'Name the part this die casts.')
 		.max(120, 'Keep it under 120 characters.'),
 	partNumber: optionalText(60),
-	customerId: z.coerce.number({ error: 'Choose the owner.' }).int().positive('Choose the owner.'),
-	alloyId: z.coerce.number({ error: 'Choose the alloy.' }).int().positive('Choose the alloy.'),
+	customerId: wholeNumber({ required: 'Choose the owner.', min: [1, 'Choose the owner.'] }),
+	alloyId: wholeNumber({ required: 'Choose the alloy.', min: [1, 'Choose the alloy.'] }),
 	process: z.enum(['hot_chamber', 'cold_chamber'], { error: 'Choose hot or cold chamber.' }),
-	cavities: z.coerce
-		.number({ error: 'Enter the number of cavities.' })
-		.int('Cavities must be a whole number.')
-		.min(1, 'A die has at least one cavity.')
-		.max(128, 'More than 128 cavities is not plausible.'),
-	projectedAreaCm2: z.coerce
-		.number({ error: 'Enter the projected area in cm².' })
-		.gt(0, 'The projected area must be greater than 0.')
-		.max(50000, 'More than 50 000 cm² is not plausible for a die-casting die.'),
+	cavities: wholeNumber({
+		required: 'Enter the number of cavities.',
+		min: [1, 'A die has at least one cavity.'],
+		max: [128, 'More than 128 cavities is not plausible.']
+	}),
+	projectedAreaCm2: decimalNumber({
+		required: 'Enter the projected area in cm².',
+		gt: [0, 'The projected area must be greater than 0.'],
+		max: [50000, 'More than 50 000 cm² is not plausible for a die-casting die.']
+	}),
 	hasSlides: z.boolean().default(false),
 	location: optionalText(60),
 	notes: optionalText(2000),
-	expectedLifeShots: z.preprocess(
-		(v) => (v === '' || v === null || v === undefined ? undefined : v),
-		z.coerce
-			.number()
-			.int('Enter whole shots.')
-			.positive('Expected life must be above 0.')
-			.max(10_000_000, 'More than 10 million shots is not plausible.')
-			.optional()
-	),
+	expectedLifeShots: optionalWholeNumber({
+		min: [1, 'Expected life must be above 0.'],
+		max: [10_000_000, 'More than 10 million shots is not plausible.']
+	}),
 	coverSerial: z.string().trim().max(40, 'Keep it under 40 characters.').optional(),
 	ejectorSerial: z.string().trim().max(40, 'Keep it under 40 characters.').optional(),
 	steel: z.string().trim().max(40, 'Keep it under 40 characters.').default('H13')

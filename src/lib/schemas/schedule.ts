@@ -1,23 +1,24 @@
 import { z } from 'zod';
 import { MAX_PLAUSIBLE_SHOTS_PER_HOUR } from '../calc/life';
+import { decimalNumber, optionalDecimalNumber, wholeNumber } from './numbers';
 
 // Optional text stays a string ('' when empty) so a form can round-trip it; the server stores
 // empty text as null.
 const optionalText = (max: number) =>
 	z.string().trim().max(max, `Keep it under ${max} characters.`).default('');
 
-/** An empty form field means "not given", not zero. */
-const blankToUndefined = (v: unknown) => (v === '' || v === null ? undefined : v);
+// An empty form field means "not given", not zero (./numbers reads blank as undefined).
 
 const optionalPositive = (what: string, max: number) =>
-	z.preprocess(
-		blankToUndefined,
-		z.coerce
-			.number({ error: `Enter the ${what} as a number.` })
-			.gt(0, `The ${what} must be above 0.`)
-			.max(max, `More than ${max} is not plausible for the ${what}.`)
-			.optional()
-	);
+	optionalDecimalNumber({
+		gt: [0, `The ${what} must be above 0.`],
+		max: [max, `More than ${max} is not plausible for the ${what}.`]
+	});
+
+const scrapPct = optionalDecimalNumber({
+	min: [0, 'Scrap cannot be below 0 %.'],
+	max: [90, 'Scrap above 90 % is not plausible.']
+}).transform((v) => v ?? 0);
 
 /** Longest booking Castellan takes; longer runs are booked in parts. Keeps window queries bounded. */
 export const MAX_BOOKING_DAYS = 90;
@@ -41,10 +42,11 @@ export const pressFormSchema = z.object({
 			'Use 1–20 capital letters, digits, spaces or dashes, e.g. CC-84.'
 		),
 	chamber: z.enum(['hot', 'cold'], { error: 'Choose hot or cold chamber.' }),
-	clampForce: z.coerce
-		.number({ error: 'Enter the clamping force.' })
-		.gt(0, 'The clamping force must be above 0.')
-		.max(200_000, 'More than 200 000 is not plausible for a die-casting press.'),
+	clampForce: decimalNumber({
+		required: 'Enter the clamping force.',
+		gt: [0, 'The clamping force must be above 0.'],
+		max: [200_000, 'More than 200 000 is not plausible for a die-casting press.']
+	}),
 	clampUnit: z.enum(FORCE_UNITS).default('kN'),
 	maxShotWeight: optionalPositive('maximum shot weight', 500),
 	tieBarSpacing: optionalPositive('tie-bar spacing', 5000),
@@ -99,19 +101,12 @@ const bookingFields = {
 		.trim()
 		.min(1, 'Enter the order reference.')
 		.max(40, 'Keep the order reference under 40 characters.'),
-	parts: z.coerce
-		.number({ error: 'Enter the number of parts.' })
-		.int('Parts must be a whole number.')
-		.min(1, 'Book at least 1 part.')
-		.max(50_000_000, 'More than 50 million parts is not plausible for one booking.'),
-	scrapPct: z.preprocess(
-		blankToUndefined,
-		z.coerce
-			.number({ error: 'Enter scrap as a percentage.' })
-			.min(0, 'Scrap cannot be below 0 %.')
-			.max(90, 'Scrap above 90 % is not plausible.')
-			.default(0)
-	),
+	parts: wholeNumber({
+		required: 'Enter the number of parts.',
+		min: [1, 'Book at least 1 part.'],
+		max: [50_000_000, 'More than 50 million parts is not plausible for one booking.']
+	}),
+	scrapPct,
 	shotsPerHour: optionalPositive('planned shots per hour', MAX_PLAUSIBLE_SHOTS_PER_HOUR),
 	notes: optionalText(1000)
 };
@@ -206,19 +201,12 @@ export type BoardQuery = z.infer<typeof boardQuerySchema>;
 /** The order check form (a GET form: the question stays in the URL). */
 export const orderCheckQuerySchema = z.object({
 	die: z.string().trim().toUpperCase().max(20).default(''),
-	parts: z.coerce
-		.number({ error: 'Enter the number of parts.' })
-		.int('Parts must be a whole number.')
-		.min(1, 'Check at least 1 part.')
-		.max(50_000_000, 'More than 50 million parts is not plausible.'),
-	scrapPct: z.preprocess(
-		blankToUndefined,
-		z.coerce
-			.number({ error: 'Enter scrap as a percentage.' })
-			.min(0, 'Scrap cannot be below 0 %.')
-			.max(90, 'Scrap above 90 % is not plausible.')
-			.default(0)
-	),
+	parts: wholeNumber({
+		required: 'Enter the number of parts.',
+		min: [1, 'Check at least 1 part.'],
+		max: [50_000_000, 'More than 50 million parts is not plausible.']
+	}),
+	scrapPct,
 	press: z.string().trim().max(20).default(''),
 	shotsPerHour: optionalPositive('shots per hour', MAX_PLAUSIBLE_SHOTS_PER_HOUR)
 });

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { SERVICE_KINDS } from '../calc/service';
+import { optionalWholeNumber, wholeNumber } from './numbers';
 
 /**
  * Plausible bounds for a service interval. Below 100 shots a die would live in the toolroom;
@@ -12,39 +13,23 @@ export const INTERVAL_SHOTS_MAX = 2_000_000;
 export const INTERVAL_DAYS_MIN = 1;
 export const INTERVAL_DAYS_MAX = 1825;
 
-const blankToUndefined = (v: unknown) =>
-	v === '' || v === null || v === undefined ? undefined : v;
+const intervalShots = optionalWholeNumber({
+	min: [INTERVAL_SHOTS_MIN, `A shot interval below ${INTERVAL_SHOTS_MIN} shots is not plausible.`],
+	max: [
+		INTERVAL_SHOTS_MAX,
+		'A shot interval above 2 000 000 shots is not plausible; leave it blank to keep the task by calendar only.'
+	]
+});
 
-const intervalShots = z.preprocess(
-	blankToUndefined,
-	z.coerce
-		.number({ error: 'Enter the interval in shots as a number.' })
-		.int('Enter whole shots.')
-		.min(INTERVAL_SHOTS_MIN, `A shot interval below ${INTERVAL_SHOTS_MIN} shots is not plausible.`)
-		.max(
-			INTERVAL_SHOTS_MAX,
-			'A shot interval above 2 000 000 shots is not plausible; leave it blank to keep the task by calendar only.'
-		)
-		.optional()
-);
+const intervalDays = optionalWholeNumber({
+	min: [INTERVAL_DAYS_MIN, 'A day interval must be at least 1 day.'],
+	max: [
+		INTERVAL_DAYS_MAX,
+		'A day interval above 1825 days (5 years) is not plausible; leave it blank to keep the task by shots only.'
+	]
+});
 
-const intervalDays = z.preprocess(
-	blankToUndefined,
-	z.coerce
-		.number({ error: 'Enter the interval in days as a number.' })
-		.int('Enter whole days.')
-		.min(INTERVAL_DAYS_MIN, 'A day interval must be at least 1 day.')
-		.max(
-			INTERVAL_DAYS_MAX,
-			'A day interval above 1825 days (5 years) is not plausible; leave it blank to keep the task by shots only.'
-		)
-		.optional()
-);
-
-const taskId = z.coerce
-	.number({ error: 'Choose a task.' })
-	.int('Choose a task.')
-	.positive('Choose a task.');
+const taskId = wholeNumber({ required: 'Choose a task.', min: [1, 'Choose a task.'] });
 
 const NEEDS_AN_INTERVAL = 'Give an interval in shots, in days, or both.';
 const hasInterval = (v: { intervalShots?: number; intervalDays?: number }) =>
@@ -83,10 +68,10 @@ export const markDoneSchema = z.object({
 		.trim()
 		.regex(/^\d{4}-\d{2}-\d{2}$/, 'Enter the date as YYYY-MM-DD.')
 		.refine(isCalendarDate, 'That is not a calendar date.'),
-	shots: z.coerce
-		.number({ error: 'Enter the die’s shot count when the task was done.' })
-		.int('Enter whole shots.')
-		.min(0, 'The shot count cannot be negative.')
+	shots: wholeNumber({
+		required: 'Enter the die’s shot count when the task was done.',
+		min: [0, 'The shot count cannot be negative.']
+	})
 });
 export type MarkDoneForm = z.infer<typeof markDoneSchema>;
 

@@ -1,10 +1,5 @@
 import { z } from 'zod';
-
-const optionalNumber = <T extends z.ZodType>(schema: T) =>
-	z.preprocess(
-		(v) => (v === '' || v === null || v === undefined ? undefined : v),
-		schema.optional()
-	);
+import { optionalDecimalNumber, wholeNumber } from './numbers';
 
 export const customerSchema = z.object({
 	id: z.preprocess(
@@ -39,19 +34,35 @@ export const alloySchema = z
 			.regex(/^[A-Z0-9-]{2,20}$/, 'Use 2–20 capital letters, digits or dashes.'),
 		name: z.string().trim().min(2, 'Name the alloy.').max(80),
 		family: z.enum(['zinc', 'magnesium', 'aluminium', 'copper'], { error: 'Choose the family.' }),
-		expectedLifeShots: z.coerce
-			.number({ error: 'Enter the expected life in shots.' })
-			.int('Whole shots.')
-			.min(100, 'At least 100 shots.')
-			.max(10_000_000, 'More than 10 million shots is not plausible.'),
-		densityKgM3: optionalNumber(
-			z.coerce.number().min(500, 'Density in kg/m³ (e.g. 2710).').max(20000)
-		),
-		specificHeatJKgK: optionalNumber(z.coerce.number().min(50).max(5000)),
-		latentHeatJKg: optionalNumber(z.coerce.number().min(1000).max(2_000_000)),
-		solidusC: optionalNumber(z.coerce.number().min(100).max(1500)),
-		liquidusC: optionalNumber(z.coerce.number().min(100).max(1500)),
-		pourTempC: optionalNumber(z.coerce.number().min(100).max(1600))
+		expectedLifeShots: wholeNumber({
+			required: 'Enter the expected life in shots.',
+			min: [100, 'At least 100 shots.'],
+			max: [10_000_000, 'More than 10 million shots is not plausible.']
+		}),
+		densityKgM3: optionalDecimalNumber({
+			min: [500, 'Density in kg/m³ (e.g. 2710).'],
+			max: [20000, 'Density in kg/m³ (e.g. 2710).']
+		}),
+		specificHeatJKgK: optionalDecimalNumber({
+			min: [50, 'Specific heat in J/(kg·K), 50–5000.'],
+			max: [5000, 'Specific heat in J/(kg·K), 50–5000.']
+		}),
+		latentHeatJKg: optionalDecimalNumber({
+			min: [1000, 'Latent heat in J/kg, 1000–2 000 000.'],
+			max: [2_000_000, 'Latent heat in J/kg, 1000–2 000 000.']
+		}),
+		solidusC: optionalDecimalNumber({
+			min: [100, 'Solidus 100–1500 °C.'],
+			max: [1500, 'Solidus 100–1500 °C.']
+		}),
+		liquidusC: optionalDecimalNumber({
+			min: [100, 'Liquidus 100–1500 °C.'],
+			max: [1500, 'Liquidus 100–1500 °C.']
+		}),
+		pourTempC: optionalDecimalNumber({
+			min: [100, 'Pour 100–1600 °C.'],
+			max: [1600, 'Pour 100–1600 °C.']
+		})
 	})
 	.refine(
 		(a) => a.solidusC === undefined || a.liquidusC === undefined || a.liquidusC >= a.solidusC,

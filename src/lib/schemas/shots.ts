@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { decimalNumber, optionalDecimalNumber, optionalWholeNumber, wholeNumber } from './numbers';
 
 export const SHOT_SOURCES = ['manual', 'csv', 'api', 'correction', 'seed'] as const;
 export const SHOT_SOURCE_LABELS: Record<(typeof SHOT_SOURCES)[number], string> = {
@@ -22,13 +23,12 @@ const dieNumber = z
 	.min(1, 'Enter the die number.')
 	.max(20, 'A die number has at most 20 characters.');
 
+// Read strictly from the text typed (see ./numbers): `3.9`, `12abc` and `2e1` are refused.
 const optionalCount = (what: string) =>
-	z
-		.number({ error: `${what} must be a whole number.` })
-		.int(`${what} must be a whole number.`)
-		.min(0, `${what} cannot be negative.`)
-		.max(2_000_000_000, `${what} is too large.`)
-		.optional();
+	optionalWholeNumber({
+		min: [0, `${what} cannot be negative.`],
+		max: [2_000_000_000, `${what} is too large.`]
+	});
 
 const optionalNote = z
 	.string()
@@ -96,12 +96,9 @@ export function pressRunShots(v: Pick<PressRunForm, 'shots' | 'counterStart' | '
 /** A correcting entry: signed, with a mandatory reason. */
 export const correctionSchema = z.object({
 	// Optional in the schema only so the field starts empty; the refine makes it required.
-	shots: z
-		.number({ error: 'Enter the correction in shots (negative to take shots off).' })
-		.int('Enter whole shots.')
-		.optional()
-		.refine((n) => n !== undefined, 'Enter the correction in shots (negative to take shots off).')
-		.refine((n) => n !== 0, 'A correction must change the count (not 0).'),
+	shots: wholeNumber({
+		required: 'Enter the correction in shots (negative to take shots off).'
+	}).refine((n) => n !== 0, 'A correction must change the count (not 0).'),
 	countedAt: z
 		.string()
 		.trim()
@@ -166,10 +163,11 @@ export const halfReplaceSchema = z.object({
 		.trim()
 		.min(2, 'Enter the steel grade, e.g. H13.')
 		.max(40),
-	hardnessHrc: z
-		.number({ error: 'Enter the hardness in HRC.' })
-		.min(20, 'Below 20 HRC is not a hardened die steel.')
-		.max(70, 'Above 70 HRC is not plausible for a die steel.'),
+	hardnessHrc: decimalNumber({
+		required: 'Enter the hardness in HRC.',
+		min: [20, 'Below 20 HRC is not a hardened die steel.'],
+		max: [70, 'Above 70 HRC is not plausible for a die steel.']
+	}),
 	reason: z
 		.string({ error: 'Give the reason for the replacement.' })
 		.trim()
@@ -253,18 +251,18 @@ export type ShotListQuery = z.infer<typeof shotListQuerySchema>;
 
 /** `GET /api/v1/dies/{number}/order-check` parameters. */
 export const orderCheckQuerySchema = z.object({
-	parts: z.coerce
-		.number({ error: 'parts must be a number.' })
-		.int('parts must be a whole number.')
-		.min(1, 'parts must be at least 1.')
-		.max(100_000_000, 'parts above 100 million is not plausible.'),
-	scrapPct: z.coerce
-		.number({ error: 'scrapPct must be a number.' })
-		.min(0, 'scrapPct must be at least 0.')
-		.lt(100, 'scrapPct must be below 100.')
-		.default(0),
-	shotsPerHour: z.coerce
-		.number({ error: 'shotsPerHour must be a number.' })
-		.gt(0, 'shotsPerHour must be more than 0.')
-		.max(18_000, 'shotsPerHour above 18 000 is not plausible for a die-casting press.')
+	parts: wholeNumber({
+		required: 'parts must be a number.',
+		min: [1, 'parts must be at least 1.'],
+		max: [100_000_000, 'parts above 100 million is not plausible.']
+	}),
+	scrapPct: optionalDecimalNumber({
+		min: [0, 'scrapPct must be at least 0.'],
+		lt: [100, 'scrapPct must be below 100.']
+	}).transform((v) => v ?? 0),
+	shotsPerHour: decimalNumber({
+		required: 'shotsPerHour must be a number.',
+		gt: [0, 'shotsPerHour must be more than 0.'],
+		max: [18_000, 'shotsPerHour above 18 000 is not plausible for a die-casting press.']
+	})
 });

@@ -1,5 +1,11 @@
 // Toolroom forms (jobs, surface inspections, cooling), shared by client and server.
 import { z } from 'zod';
+import {
+	decimalNumber,
+	nullableDecimalNumber,
+	optionalDecimalNumber,
+	wholeNumber
+} from './numbers';
 
 export const JOB_KINDS = [
 	'repair',
@@ -27,19 +33,6 @@ const optionalText = (max: number) =>
 		.max(max, `Keep it under ${max} characters.`)
 		.nullish()
 		.transform((v) => (v ? v : null));
-
-const optionalNumber = <T extends z.ZodType<number>>(schema: T) =>
-	z.preprocess(blankToUndefined, schema.optional()).transform((v) => (v ?? null) as number | null);
-
-/**
- * A number the user must type: nullable so forms start empty rather than at 0 (superforms'
- * default for a number), and refused when left empty.
- */
-const requiredNumber = <T extends z.ZodType<number>>(schema: T, message: string) =>
-	schema
-		.nullable()
-		.refine((v) => v !== null, message)
-		.transform((v) => v as number);
 
 const halfSchema = z.enum(['cover', 'ejector'], { error: 'Choose the half.' });
 
@@ -79,13 +72,11 @@ export const closeJobSchema = z
 			.trim()
 			.min(3, 'Record the work done.')
 			.max(4000, 'Keep it under 4000 characters.'),
-		hours: requiredNumber(
-			z.coerce
-				.number({ error: 'Enter the hours worked, e.g. 2.5.' })
-				.min(0, 'Hours cannot be negative.')
-				.max(500, 'More than 500 hours on one job is not plausible; split it.'),
-			'Enter the hours worked, e.g. 2.5.'
-		),
+		hours: decimalNumber({
+			required: 'Enter the hours worked, e.g. 2.5.',
+			min: [0, 'Hours cannot be negative.'],
+			max: [500, 'More than 500 hours on one job is not plausible; split it.']
+		}),
 		partsUsed: optionalText(2000),
 		billableToOwner: z.boolean().default(false),
 		ownerSummary: optionalText(2000),
@@ -112,26 +103,21 @@ export const inspectionSchema = z.object({
 		.trim()
 		.min(1, 'Name the zone, e.g. “gate side, cavity 2”.')
 		.max(120, 'Keep it under 120 characters.'),
-	shotsAt: z.coerce
-		.number({ error: 'Enter the die’s shots at the inspection.' })
-		.int('Whole shots.')
-		.min(0, 'Shots cannot be negative.')
-		.max(100_000_000, 'That many shots is not plausible.'),
+	shotsAt: wholeNumber({
+		required: 'Enter the die’s shots at the inspection.',
+		min: [0, 'Shots cannot be negative.'],
+		max: [100_000_000, 'That many shots is not plausible.']
+	}),
 	// No grade is preselected: the toolmaker chooses one.
-	grade: requiredNumber(
-		z.coerce
-			.number({ error: 'Choose a surface grade.' })
-			.int('Choose a surface grade.')
-			.min(0, 'Choose a surface grade from 0 to 4.')
-			.max(4, 'Choose a surface grade from 0 to 4.'),
-		'Choose a surface grade.'
-	),
-	longestCrackMm: optionalNumber(
-		z.coerce
-			.number({ error: 'Enter the longest crack in mm, or leave it empty.' })
-			.min(0, 'A crack length cannot be negative.')
-			.max(2000, 'Longer than 2 m is not plausible.')
-	),
+	grade: wholeNumber({
+		required: 'Choose a surface grade.',
+		min: [0, 'Choose a surface grade from 0 to 4.'],
+		max: [4, 'Choose a surface grade from 0 to 4.']
+	}),
+	longestCrackMm: nullableDecimalNumber({
+		min: [0, 'A crack length cannot be negative.'],
+		max: [2000, 'Longer than 2 m is not plausible.']
+	}),
 	soldering: z.boolean().default(false),
 	erosion: z.boolean().default(false),
 	notes: optionalText(2000)
@@ -146,104 +132,87 @@ export const circuitSchema = z.object({
 		.min(1, 'Label the circuit as it is marked on the die, e.g. “C1 core”.')
 		.max(40, 'Keep it under 40 characters.'),
 	coolant: z.enum(['water', 'oil'], { error: 'Choose water or oil.' }),
-	channelDiameterMm: requiredNumber(
-		z.coerce
-			.number({ error: 'Enter the channel diameter in mm.' })
-			.gt(0, 'The diameter must be more than 0 mm.')
-			.max(80, 'More than 80 mm is not plausible for a die cooling channel.'),
-		'Enter the channel diameter in mm.'
-	),
-	nominalFlowLpm: requiredNumber(
-		z.coerce
-			.number({ error: 'Enter the nominal flow in L/min.' })
-			.gt(0, 'The nominal flow must be more than 0 L/min.')
-			.max(500, 'More than 500 L/min is not plausible for one circuit.'),
-		'Enter the nominal flow in L/min.'
-	)
+	channelDiameterMm: decimalNumber({
+		required: 'Enter the channel diameter in mm.',
+		gt: [0, 'The diameter must be more than 0 mm.'],
+		max: [80, 'More than 80 mm is not plausible for a die cooling channel.']
+	}),
+	nominalFlowLpm: decimalNumber({
+		required: 'Enter the nominal flow in L/min.',
+		gt: [0, 'The nominal flow must be more than 0 L/min.'],
+		max: [500, 'More than 500 L/min is not plausible for one circuit.']
+	})
 });
 export type CircuitForm = z.infer<typeof circuitSchema>;
 
 export const coolingCheckSchema = z.object({
-	circuitId: z.coerce
-		.number({ error: 'Choose the circuit.' })
-		.int()
-		.positive('Choose the circuit.'),
-	measuredFlowLpm: requiredNumber(
-		z.coerce
-			.number({ error: 'Enter the measured flow in L/min.' })
-			.min(0, 'Flow cannot be negative.')
-			.max(1000, 'More than 1000 L/min is not plausible.'),
-		'Enter the measured flow in L/min.'
-	),
-	inletC: requiredNumber(
-		z.coerce
-			.number({ error: 'Enter the inlet temperature in °C.' })
-			.min(1, 'Inlet temperature must be at least 1 °C.')
-			.max(350, 'More than 350 °C is not plausible.'),
-		'Enter the inlet temperature in °C.'
-	),
-	outletC: requiredNumber(
-		z.coerce
-			.number({ error: 'Enter the outlet temperature in °C.' })
-			.min(1, 'Outlet temperature must be at least 1 °C.')
-			.max(350, 'More than 350 °C is not plausible.'),
-		'Enter the outlet temperature in °C.'
-	),
-	supplyPressureBar: optionalNumber(
-		z.coerce
-			.number({ error: 'Enter the supply pressure in bar, or leave it empty.' })
-			.min(0, 'Pressure cannot be negative.')
-			.max(60, 'More than 60 bar is not plausible for a cooling supply.')
-	),
+	circuitId: wholeNumber({ required: 'Choose the circuit.', min: [1, 'Choose the circuit.'] }),
+	measuredFlowLpm: decimalNumber({
+		required: 'Enter the measured flow in L/min.',
+		min: [0, 'Flow cannot be negative.'],
+		max: [1000, 'More than 1000 L/min is not plausible.']
+	}),
+	inletC: decimalNumber({
+		required: 'Enter the inlet temperature in °C.',
+		min: [1, 'Inlet temperature must be at least 1 °C.'],
+		max: [350, 'More than 350 °C is not plausible.']
+	}),
+	outletC: decimalNumber({
+		required: 'Enter the outlet temperature in °C.',
+		min: [1, 'Outlet temperature must be at least 1 °C.'],
+		max: [350, 'More than 350 °C is not plausible.']
+	}),
+	supplyPressureBar: nullableDecimalNumber({
+		min: [0, 'Pressure cannot be negative.'],
+		max: [60, 'More than 60 bar is not plausible for a cooling supply.']
+	}),
 	leakTest: z
 		.enum(['pass', 'fail'], { error: 'Record the leak test: pass or fail.' })
 		.nullable()
 		.refine((v) => v !== null, 'Record the leak test: pass or fail.')
 		.transform((v) => v as 'pass' | 'fail'),
 	notes: optionalText(2000),
-	oilDensityKgM3: optionalNumber(
-		z.coerce
-			.number({ error: 'Enter the oil density in kg/m³.' })
-			.min(600, 'Oil density is usually 800–1000 kg/m³.')
-			.max(1300, 'Oil density is usually 800–1000 kg/m³.')
-	),
-	oilViscosityMpaS: optionalNumber(
-		z.coerce
-			.number({ error: 'Enter the oil’s dynamic viscosity in mPa·s.' })
-			.gt(0, 'Viscosity must be more than 0 mPa·s.')
-			.max(5000, 'More than 5000 mPa·s is not plausible at working temperature.')
-	),
-	oilSpecificHeatJKgK: optionalNumber(
-		z.coerce
-			.number({ error: 'Enter the oil’s specific heat in J/(kg·K).' })
-			.min(1000, 'Thermal oils are about 1800–2800 J/(kg·K).')
-			.max(4000, 'Thermal oils are about 1800–2800 J/(kg·K).')
-	)
+	oilDensityKgM3: nullableDecimalNumber({
+		min: [600, 'Oil density is usually 800–1000 kg/m³.'],
+		max: [1300, 'Oil density is usually 800–1000 kg/m³.']
+	}),
+	oilViscosityMpaS: nullableDecimalNumber({
+		gt: [0, 'Viscosity must be more than 0 mPa·s.'],
+		max: [5000, 'More than 5000 mPa·s is not plausible at working temperature.']
+	}),
+	oilSpecificHeatJKgK: nullableDecimalNumber({
+		min: [1000, 'Thermal oils are about 1800–2800 J/(kg·K).'],
+		max: [4000, 'Thermal oils are about 1800–2800 J/(kg·K).']
+	}),
+	/**
+	 * Why an unusual reading (outlet not warmer than inlet, flow above 3× nominal) is right; the
+	 * server asks for it only when the reading is unusual.
+	 */
+	unusualReason: z.string().trim().max(300, 'Keep the reason under 300 characters.').default('')
 });
 export type CoolingCheckForm = z.infer<typeof coolingCheckSchema>;
 
 /** Heat-balance inputs, read from the URL so the result can be bookmarked and works without JS. */
 export const heatBalanceQuerySchema = z.object({
-	shotMassKg: z.coerce
-		.number({ error: 'Enter the metal per shot in kg.' })
-		.gt(0, 'The shot mass must be more than 0 kg.')
-		.max(200, 'More than 200 kg per shot is not plausible.'),
-	shotsPerHour: z.coerce
-		.number({ error: 'Enter shots per hour.' })
-		.gt(0, 'Shots per hour must be more than 0.')
-		.max(20_000, 'More than 20 000 shots per hour is not plausible.'),
-	ejectC: z.coerce
-		.number({ error: 'Enter the casting temperature at ejection in °C.' })
-		.min(20, 'Ejection temperature must be at least 20 °C.')
-		.max(1500, 'Ejection temperature must be below 1500 °C.'),
-	latentHeatKjKg: z.preprocess(
-		blankToUndefined,
-		z.coerce
-			.number({ error: 'Enter the latent heat in kJ/kg.' })
-			.min(10, 'Latent heat of die-casting alloys is about 100–400 kJ/kg.')
-			.max(1000, 'Latent heat of die-casting alloys is about 100–400 kJ/kg.')
-			.optional()
-	)
+	shotMassKg: decimalNumber({
+		required: 'Enter the metal per shot in kg.',
+		gt: [0, 'The shot mass must be more than 0 kg.'],
+		max: [200, 'More than 200 kg per shot is not plausible.']
+	}),
+	shotsPerHour: decimalNumber({
+		required: 'Enter shots per hour.',
+		gt: [0, 'Shots per hour must be more than 0.'],
+		max: [20_000, 'More than 20 000 shots per hour is not plausible.']
+	}),
+	ejectC: decimalNumber({
+		required: 'Enter the casting temperature at ejection in °C.',
+		min: [20, 'Ejection temperature must be at least 20 °C.'],
+		max: [1500, 'Ejection temperature must be below 1500 °C.']
+	}),
+	latentHeatKjKg: optionalDecimalNumber({
+		min: [10, 'Latent heat of die-casting alloys is about 100–400 kJ/kg.'],
+		max: [1000, 'Latent heat of die-casting alloys is about 100–400 kJ/kg.']
+	})
 });
 export type HeatBalanceQuery = z.infer<typeof heatBalanceQuerySchema>;
 
@@ -262,3 +231,36 @@ export const photoShareSchema = z.object({
 		.regex(/^[A-Za-z0-9_-]{16,40}$/, 'Unknown photo.'),
 	shared: z.enum(['0', '1']).transform((v) => v === '1')
 });
+
+const voidReason = z
+	.string({ error: 'Give the reason.' })
+	.trim()
+	.min(5, 'Give the reason (at least 5 characters).')
+	.max(300, 'Keep the reason under 300 characters.');
+
+/** Voiding an inspection, a cooling check or a job: which one, and why (toolroom lead). */
+export const voidRecordSchema = z.object({
+	id: wholeNumber({ required: 'Choose the record.', min: [1, 'Choose the record.'] }),
+	reason: voidReason
+});
+export type VoidRecordForm = z.infer<typeof voidRecordSchema>;
+
+/** Correcting a cooling check: the right reading and why the first one was wrong. */
+export const correctCheckSchema = coolingCheckSchema.omit({ circuitId: true }).extend({
+	checkId: wholeNumber({ required: 'Choose the check.', min: [1, 'Choose the check.'] }),
+	reason: voidReason
+});
+export type CorrectCheckForm = z.infer<typeof correctCheckSchema>;
+
+/** Correcting an inspection's figures; half, zone, notes and photos stay as recorded. */
+export const correctInspectionSchema = z.object({
+	id: wholeNumber({ required: 'Choose the inspection.', min: [1, 'Choose the inspection.'] }),
+	shotsAt: inspectionSchema.shape.shotsAt,
+	grade: inspectionSchema.shape.grade,
+	longestCrackMm: inspectionSchema.shape.longestCrackMm,
+	reason: voidReason
+});
+export type CorrectInspectionForm = z.infer<typeof correctInspectionSchema>;
+
+/** Voiding a toolroom job: the reason (the job is the page's). */
+export const voidJobSchema = z.object({ reason: voidReason });

@@ -45,6 +45,10 @@ export interface ToolroomJobsTable {
 	owner_summary: string | null;
 	summary_shared: Generated<number>;
 	cancel_reason: string | null;
+	/** Voided by the toolroom lead (with a reason): kept for history, left out of every figure. */
+	voided_at: string | null;
+	voided_by: string | null;
+	void_reason: string | null;
 }
 
 /** Service tasks a job carries out; marked done at the die's total when the job closes. */
@@ -98,6 +102,12 @@ export interface SurfaceInspectionsTable {
 	notes: string | null;
 	inspected_by: string | null;
 	inspected_at: string;
+	/** Voided by the toolroom lead (with a reason): kept for history, left out of every figure. */
+	voided_at: string | null;
+	voided_by: string | null;
+	void_reason: string | null;
+	/** The inspection this one corrects (that one is voided). */
+	corrects_id: number | null;
 }
 
 export interface CoolingCircuitsTable {
@@ -129,6 +139,14 @@ export interface CoolingChecksTable {
 	oil_density_kg_m3: number | null;
 	oil_viscosity_mpa_s: number | null;
 	oil_specific_heat_j_kgk: number | null;
+	/** Voided by the toolroom lead (with a reason): kept for history, left out of every figure. */
+	voided_at: string | null;
+	voided_by: string | null;
+	void_reason: string | null;
+	/** The check this one corrects (that one is voided). */
+	corrects_id: number | null;
+	/** Why an unusual reading (outlet not warmer than inlet, flow above 3× nominal) is right. */
+	unusual_reason: string | null;
 }
 
 export interface ToolroomTables {

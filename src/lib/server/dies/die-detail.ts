@@ -4,6 +4,7 @@ import { nowIso } from '../time';
 import { loadDieLife, type DieLife } from './life';
 import type { DieScope } from './register';
 import { sortWorstFirst, viewServiceTask } from './service-summary';
+import { historyRecordKey } from '../../history';
 
 /** Finds a die by number within the caller's scope; another owner's die is simply not found. */
 export async function findDie(db: DB, number: string, scope: DieScope) {
@@ -53,9 +54,38 @@ export async function cumulativeShotSeries(db: DB, dieId: number, totalShots: nu
 	return points.reverse();
 }
 
+/** Voided inspections, cooling checks and jobs of a die, keyed as history entries name them. */
+async function listVoidedRecords(db: DB, dieId: number): Promise<Map<string, string>> {
+	const [checks, inspections, jobs] = await Promise.all([
+		db
+			.selectFrom('cooling_checks')
+			.select(['id', 'void_reason'])
+			.where('die_id', '=', dieId)
+			.where('voided_at', 'is not', null)
+			.execute(),
+		db
+			.selectFrom('surface_inspections')
+			.select(['id', 'void_reason'])
+			.where('die_id', '=', dieId)
+			.where('voided_at', 'is not', null)
+			.execute(),
+		db
+			.selectFrom('toolroom_jobs')
+			.select(['number', 'void_reason'])
+			.where('die_id', '=', dieId)
+			.where('voided_at', 'is not', null)
+			.execute()
+	]);
+	return new Map([
+		...checks.map((r) => [`check:${r.id}`, r.void_reason ?? ''] as const),
+		...inspections.map((r) => [`inspection:${r.id}`, r.void_reason ?? ''] as const),
+		...jobs.map((r) => [`job:${r.number}`, r.void_reason ?? ''] as const)
+	]);
+}
+
 /** Everything the die page shows, queried together. */
 export async function getDieStory(db: DB, die: FoundDie, asOf = nowIso()) {
-	const [halves, tasks, entries, history] = await Promise.all([
+	const [halves, tasks, entries, history, voided] = await Promise.all([
 		db
 			.selectFrom('die_halves')
 			.selectAll()
@@ -101,14 +131,22 @@ export async function getDieStory(db: DB, die: FoundDie, asOf = nowIso()) {
 				'users.name as userName'
 			])
 			.where('audit_log.die_id', '=', die.id)
+			// Time order, newest first; entries of the same instant in the order they were made.
+			.orderBy('audit_log.at', 'desc')
 			.orderBy('audit_log.id', 'desc')
 			.limit(30)
-			.execute()
+			.execute(),
+		listVoidedRecords(db, die.id)
 	]);
 	return {
 		halves,
 		tasks: sortWorstFirst(tasks.map((t) => viewServiceTask(t, die.total_shots, asOf))),
 		entries,
-		history: history.map((h) => ({ ...h, detail: JSON.parse(h.detail) as Record<string, unknown> }))
+		history: history.map((h) => {
+			const entry = { ...h, detail: JSON.parse(h.detail) as Record<string, unknown> };
+			const key = historyRecordKey(entry);
+			// An entry about a record voided since is shown struck through, with the reason.
+			return { ...entry, voidReason: key ? (voided.get(key) ?? null) : null };
+		})
 	};
 }

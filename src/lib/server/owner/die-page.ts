@@ -46,6 +46,7 @@ export async function listOwnerJobs(db: DB, dieId: number): Promise<OwnerJob[]> 
 		])
 		.where('die_id', '=', dieId)
 		.where('status', '!=', 'cancelled')
+		.where('voided_at', 'is', null)
 		.orderBy('opened_at', 'desc')
 		.orderBy('id', 'desc')
 		.execute();

@@ -130,6 +130,7 @@ export async function loadOwnerDies(
 					.select('j2.id')
 					.whereRef('j2.die_id', '=', 'j.die_id')
 					.where('j2.status', '=', 'done')
+					.where('j2.voided_at', 'is', null)
 					.orderBy('j2.closed_at', 'desc')
 					.orderBy('j2.id', 'desc')
 					.limit(1)

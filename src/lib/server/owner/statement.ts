@@ -61,6 +61,7 @@ export async function getOwnerStatement(
 			])
 			.where('dies.customer_id', '=', customerId)
 			.where('j.status', '=', 'done')
+			.where('j.voided_at', 'is', null)
 			.orderBy('j.closed_at', 'desc')
 			.orderBy('j.id', 'desc')
 			.execute()

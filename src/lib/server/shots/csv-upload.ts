@@ -1,5 +1,6 @@
 import { createHash } from 'node:crypto';
 import { parse } from 'csv-parse/sync';
+import { parseTypedNumber } from '../../parse-number';
 import type { DB } from '../db/connect';
 import {
 	MAX_BATCH,
@@ -90,10 +91,10 @@ function detectDelimiter(text: string): ',' | ';' {
 	return count(';') > count(',') ? ';' : ',';
 }
 
+/** A number cell, read by the one parser every form uses (`3.9`, `12abc`, `1e7` are refused). */
 function wholeNumber(cell: string): number | null | 'bad' {
-	const v = cell.replace(/[\s\u00a0']/g, '');
-	if (v === '') return null;
-	return /^-?\d{1,15}$/.test(v) ? Number(v) : 'bad';
+	const read = parseTypedNumber(cell, 'whole');
+	return !read.ok ? 'bad' : read.value;
 }
 
 /**

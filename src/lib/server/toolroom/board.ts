@@ -35,6 +35,8 @@ const COLUMNS = [
 	'j.hours',
 	'j.billable_to_owner as billable',
 	'j.cancel_reason as cancelReason',
+	'j.voided_at as voidedAt',
+	'j.void_reason as voidReason',
 	'dies.number as dieNumber',
 	'dies.part_name as partName',
 	'customers.name as customerName',

@@ -160,26 +160,48 @@ export function evaluateCheck(circuit: CircuitValues, check: CheckValues): Check
 	return figures;
 }
 
-/** Records a check of one circuit of this die; oil circuits need the oil's properties. */
-export async function recordCheck(
-	db: DB,
-	input: { dieId: number; form: CoolingCheckForm; actor: Actor; at?: string }
-): Promise<{ ok: true; id: number; figures: CheckFigures } | CoolingRefusal> {
-	const { form, actor } = input;
-	const at = input.at ?? nowIso();
-	if (!canWorkToolroom(actor.role)) {
-		return { ok: false, status: 403, message: 'Your role may not record cooling checks.' };
-	}
-	const circuit = await db
+/** Flow above this multiple of the nominal flow is not believed without a stated reason. */
+export const MAX_PLAUSIBLE_FLOW_RATIO = 3;
+const MIN_REASON = 5;
+
+type CircuitRow = CircuitValues & { id: number; label: string };
+
+async function findCircuit(db: DB, dieId: number, circuitId: number) {
+	return db
 		.selectFrom('cooling_circuits')
 		.select(['id', 'label', 'coolant', 'channel_diameter_mm', 'nominal_flow_lpm'])
-		.where('id', '=', form.circuitId)
-		.where('die_id', '=', input.dieId)
+		.where('id', '=', circuitId)
+		.where('die_id', '=', dieId)
 		.where('active', '=', 1)
 		.executeTakeFirst();
-	if (!circuit) {
-		return { ok: false, status: 404, field: 'circuitId', message: 'Choose a circuit of this die.' };
+}
+
+/**
+ * What is unusual about a reading: an outlet not warmer than the inlet (the circuit took no heat
+ * out, or the thermometers or hoses are swapped), or flow above 3× nominal (often a typing slip,
+ * e.g. 185 for 18.5). Either can happen in practice (a die on preheat, a circuit re-bored), so
+ * each needs a confirmed reason rather than a flat refusal.
+ */
+export function unusualReadings(circuit: CircuitValues, form: CoolingCheckForm): string[] {
+	const found: string[] = [];
+	if (form.outletC <= form.inletC) {
+		found.push(
+			`the outlet (${form.outletC} °C) is not warmer than the inlet (${form.inletC} °C), so the circuit took no heat out of the die — check the thermometers and that the hoses are not swapped`
+		);
 	}
+	if (form.measuredFlowLpm > MAX_PLAUSIBLE_FLOW_RATIO * circuit.nominal_flow_lpm) {
+		found.push(
+			`the flow (${form.measuredFlowLpm} L/min) is more than ${MAX_PLAUSIBLE_FLOW_RATIO}× the nominal ${circuit.nominal_flow_lpm} L/min — check the reading and the decimal mark`
+		);
+	}
+	return found;
+}
+
+/** The row values of a reading, or why it cannot be recorded as it stands. */
+function readCheck(
+	circuit: CircuitRow,
+	form: CoolingCheckForm
+): { ok: true; values: CheckValues & { unusual_reason: string | null } } | CoolingRefusal {
 	const isOil = circuit.coolant === 'oil';
 	if (isOil) {
 		const missing = (
@@ -213,14 +235,47 @@ export async function recordCheck(
 			}
 		}
 	}
-	const values = {
-		measured_flow_lpm: form.measuredFlowLpm,
-		inlet_c: form.inletC,
-		outlet_c: form.outletC,
-		oil_density_kg_m3: isOil ? form.oilDensityKgM3 : null,
-		oil_viscosity_mpa_s: isOil ? form.oilViscosityMpaS : null,
-		oil_specific_heat_j_kgk: isOil ? form.oilSpecificHeatJKgK : null
+	const unusual = unusualReadings(circuit, form);
+	const reason = form.unusualReason?.trim() ?? '';
+	if (unusual.length > 0 && reason.length < MIN_REASON) {
+		return {
+			ok: false,
+			status: 400,
+			field: 'unusualReason',
+			message: `Not recorded: ${unusual.join('; and ')}. If the reading is right, say why here (at least ${MIN_REASON} characters) and record it again.`
+		};
+	}
+	return {
+		ok: true,
+		values: {
+			measured_flow_lpm: form.measuredFlowLpm,
+			inlet_c: form.inletC,
+			outlet_c: form.outletC,
+			oil_density_kg_m3: isOil ? form.oilDensityKgM3 : null,
+			oil_viscosity_mpa_s: isOil ? form.oilViscosityMpaS : null,
+			oil_specific_heat_j_kgk: isOil ? form.oilSpecificHeatJKgK : null,
+			unusual_reason: unusual.length > 0 ? reason : null
+		}
 	};
+}
+
+/** Records a check of one circuit of this die; oil circuits need the oil's properties. */
+export async function recordCheck(
+	db: DB,
+	input: { dieId: number; form: CoolingCheckForm; actor: Actor; at?: string }
+): Promise<{ ok: true; id: number; figures: CheckFigures } | CoolingRefusal> {
+	const { form, actor } = input;
+	const at = input.at ?? nowIso();
+	if (!canWorkToolroom(actor.role)) {
+		return { ok: false, status: 403, message: 'Your role may not record cooling checks.' };
+	}
+	const circuit = await findCircuit(db, input.dieId, form.circuitId);
+	if (!circuit) {
+		return { ok: false, status: 404, field: 'circuitId', message: 'Choose a circuit of this die.' };
+	}
+	const read = readCheck(circuit, form);
+	if (!read.ok) return read;
+	const values = read.values;
 	const figures = evaluateCheck(circuit, values);
 	const id = await db.transaction().execute(async (trx) => {
 		const row = await trx
@@ -244,11 +299,164 @@ export async function recordCheck(
 				action: 'cooling.check',
 				dieId: input.dieId,
 				detail: {
+					check: row.id,
 					circuit: circuit.label,
 					flowLpm: form.measuredFlowLpm,
 					pctOfNominal: Math.round(figures.pctOfNominal),
 					weak: figures.weak,
-					leak: form.leakTest
+					leak: form.leakTest,
+					...(values.unusual_reason ? { unusualReason: values.unusual_reason } : {})
+				}
+			},
+			at
+		);
+		return row.id;
+	});
+	return { ok: true, id, figures };
+}
+
+export type VoidResult = { ok: true; id: number } | CoolingRefusal;
+
+function leadOnly(actor: Actor, what: string): CoolingRefusal | null {
+	return canLeadToolroom(actor.role)
+		? null
+		: { ok: false, status: 403, message: `Only the toolroom lead may ${what}.` };
+}
+
+function checkReason(reason: string): CoolingRefusal | null {
+	return reason.trim().length >= MIN_REASON
+		? null
+		: {
+				ok: false,
+				status: 400,
+				field: 'reason',
+				message: `Give the reason (at least ${MIN_REASON} characters).`
+			};
+}
+
+async function findLiveCheck(db: DB, dieId: number, checkId: number) {
+	return db
+		.selectFrom('cooling_checks')
+		.selectAll()
+		.where('id', '=', checkId)
+		.where('die_id', '=', dieId)
+		.executeTakeFirst();
+}
+
+/**
+ * Voids a cooling check (toolroom lead, with a reason): it stays in the list, struck through, and
+ * in the audit log, and no longer counts as the circuit's latest check, in weak-circuit flags or
+ * in the heat balance.
+ */
+export async function voidCoolingCheck(
+	db: DB,
+	input: { dieId: number; checkId: number; reason: string; actor: Actor; at?: string }
+): Promise<VoidResult> {
+	const refused = leadOnly(input.actor, 'void a cooling check') ?? checkReason(input.reason);
+	if (refused) return refused;
+	const at = input.at ?? nowIso();
+	const check = await findLiveCheck(db, input.dieId, input.checkId);
+	if (!check) return { ok: false, status: 404, message: 'There is no such check on this die.' };
+	if (check.voided_at) {
+		return { ok: false, status: 409, message: 'This check is already void.' };
+	}
+	await db.transaction().execute(async (trx) => {
+		await trx
+			.updateTable('cooling_checks')
+			.set({ voided_at: at, voided_by: input.actor.userId, void_reason: input.reason.trim() })
+			.where('id', '=', check.id)
+			.execute();
+		await writeAudit(
+			trx,
+			{
+				userId: input.actor.userId,
+				action: 'cooling.void',
+				dieId: input.dieId,
+				detail: { check: check.id, checkedAt: check.checked_at, reason: input.reason.trim() }
+			},
+			at
+		);
+	});
+	return { ok: true, id: check.id };
+}
+
+/**
+ * Corrects a cooling check (toolroom lead, with a reason): the corrected reading is recorded at
+ * the original time and by the original toolmaker, pointing at the check it replaces, and the old
+ * one is voided — in one transaction. The corrected reading is judged like a new one.
+ */
+export async function correctCoolingCheck(
+	db: DB,
+	input: {
+		dieId: number;
+		checkId: number;
+		form: Omit<CoolingCheckForm, 'circuitId'>;
+		reason: string;
+		actor: Actor;
+		at?: string;
+	}
+): Promise<{ ok: true; id: number; figures: CheckFigures } | CoolingRefusal> {
+	const refused = leadOnly(input.actor, 'correct a cooling check') ?? checkReason(input.reason);
+	if (refused) return refused;
+	const at = input.at ?? nowIso();
+	const old = await findLiveCheck(db, input.dieId, input.checkId);
+	if (!old) return { ok: false, status: 404, message: 'There is no such check on this die.' };
+	if (old.voided_at) return { ok: false, status: 409, message: 'This check is already void.' };
+	const circuit = await findCircuit(db, input.dieId, old.circuit_id);
+	if (!circuit)
+		return { ok: false, status: 404, message: 'The check’s circuit is no longer in use.' };
+	// Oil properties not typed again are those of the check being corrected.
+	const read = readCheck(circuit, {
+		...input.form,
+		circuitId: circuit.id,
+		oilDensityKgM3: input.form.oilDensityKgM3 ?? old.oil_density_kg_m3,
+		oilViscosityMpaS: input.form.oilViscosityMpaS ?? old.oil_viscosity_mpa_s,
+		oilSpecificHeatJKgK: input.form.oilSpecificHeatJKgK ?? old.oil_specific_heat_j_kgk
+	});
+	if (!read.ok) return read;
+	const figures = evaluateCheck(circuit, read.values);
+	const reason = input.reason.trim();
+	const id = await db.transaction().execute(async (trx) => {
+		const row = await trx
+			.insertInto('cooling_checks')
+			.values({
+				circuit_id: circuit.id,
+				die_id: input.dieId,
+				checked_at: old.checked_at,
+				checked_by: old.checked_by,
+				supply_pressure_bar: input.form.supplyPressureBar,
+				leak_test: input.form.leakTest,
+				notes: input.form.notes,
+				corrects_id: old.id,
+				...read.values
+			})
+			.returning('id')
+			.executeTakeFirstOrThrow();
+		await trx
+			.updateTable('cooling_checks')
+			.set({
+				voided_at: at,
+				voided_by: input.actor.userId,
+				void_reason: `Corrected: ${reason}`
+			})
+			.where('id', '=', old.id)
+			.execute();
+		await writeAudit(
+			trx,
+			{
+				userId: input.actor.userId,
+				action: 'cooling.correct',
+				dieId: input.dieId,
+				detail: {
+					check: old.id,
+					correctedBy: row.id,
+					reason,
+					was: { flowLpm: old.measured_flow_lpm, inletC: old.inlet_c, outletC: old.outlet_c },
+					now: {
+						flowLpm: read.values.measured_flow_lpm,
+						inletC: read.values.inlet_c,
+						outletC: read.values.outlet_c
+					}
 				}
 			},
 			at
@@ -271,6 +479,10 @@ const CHECK_COLUMNS = [
 	'k.oil_density_kg_m3',
 	'k.oil_viscosity_mpa_s',
 	'k.oil_specific_heat_j_kgk',
+	'k.voided_at',
+	'k.void_reason',
+	'k.corrects_id',
+	'k.unusual_reason',
 	'u.name as checkedBy'
 ] as const;
 
@@ -306,7 +518,8 @@ export async function listCircuits(db: DB, dieId: number) {
 	return {
 		circuits: circuits.map((c) => ({
 			...c,
-			latest: withFigures.find((k) => k.circuit_id === c.id) ?? null
+			// A voided check never counts: the latest is the latest live one.
+			latest: withFigures.find((k) => k.circuit_id === c.id && k.voided_at === null) ?? null
 		})),
 		recentChecks: withFigures.slice(0, 20)
 	};
@@ -455,13 +668,15 @@ export async function listWeakCircuits(db: DB) {
 		])
 		.where('c.active', '=', 1)
 		.where('dies.status', '!=', 'retired')
-		// The latest check of each circuit only.
+		.where('k.voided_at', 'is', null)
+		// The latest live check of each circuit only.
 		.where(({ not, exists, selectFrom }) =>
 			not(
 				exists(
 					selectFrom('cooling_checks as later')
 						.select('later.id')
 						.whereRef('later.circuit_id', '=', 'k.circuit_id')
+						.where('later.voided_at', 'is', null)
 						.where((eb) =>
 							eb.or([
 								eb('later.checked_at', '>', eb.ref('k.checked_at')),

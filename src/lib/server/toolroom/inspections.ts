@@ -14,13 +14,30 @@ import {
 	type UploadedFile
 } from '../photos/store';
 import { nowIso } from '../time';
-import { canWorkToolroom } from './access';
+import { canLeadToolroom, canWorkToolroom } from './access';
 import type { Actor } from './jobs';
 import { insertPhotoRows, listInspectionPhotos } from './photos';
 
 export type RecordInspectionResult =
 	| { ok: true; id: number; photos: number }
-	| { ok: false; status: 400 | 403 | 404; message: string; problems: PhotoProblem[] };
+	| {
+			ok: false;
+			status: 400 | 403 | 404;
+			message: string;
+			problems: PhotoProblem[];
+			field?: 'shotsAt';
+	  };
+
+/**
+ * An inspection cannot be at more shots than the die has taken: the ledger is the count, so a
+ * figure above it is a typing slip (445 800 for 44 580) or shots not yet entered — record them
+ * first. Null when the figure is possible.
+ */
+export function inspectionShotsProblem(shotsAt: number, dieTotal: number): string | null {
+	if (shotsAt <= dieTotal) return null;
+	const fmt = new Intl.NumberFormat('en-GB').format;
+	return `${fmt(shotsAt)} shots is more than this die has taken (${fmt(dieTotal)} on the shot ledger). Enter the die’s count at the inspection, or record the missing shots first.`;
+}
 
 /**
  * Records an inspection and its photos together: the photos are checked first, and a refused
@@ -50,10 +67,14 @@ export async function recordInspection(
 	}
 	const die = await db
 		.selectFrom('dies')
-		.select(['id', 'status'])
+		.select(['id', 'status', 'total_shots'])
 		.where('id', '=', input.dieId)
 		.executeTakeFirst();
 	if (!die) return { ok: false, status: 404, message: 'There is no such die.', problems: [] };
+	const tooMany = inspectionShotsProblem(form.shotsAt, die.total_shots);
+	if (tooMany) {
+		return { ok: false, status: 400, message: tooMany, problems: [], field: 'shotsAt' };
+	}
 	let images: Parameters<typeof storePhotoFilesWith>[1] = [];
 	if (input.files.length > 0) {
 		const prepared = await preparePhotos(input.files, MAX_PHOTOS_PER_UPLOAD);
@@ -101,6 +122,7 @@ export async function recordInspection(
 					action: 'surface.inspect',
 					dieId: input.dieId,
 					detail: {
+						inspection: row.id,
 						half: form.half,
 						zone: form.zone,
 						grade: form.grade,
@@ -134,6 +156,9 @@ async function inspectionRows(db: DB, dieId: number) {
 			's.erosion',
 			's.notes',
 			's.inspected_at as inspectedAt',
+			's.voided_at as voidedAt',
+			's.void_reason as voidReason',
+			's.corrects_id as correctsId',
 			'u.name as inspectedBy'
 		])
 		.where('s.die_id', '=', dieId)
@@ -201,7 +226,9 @@ export async function getSurfaceOverview(
 ) {
 	const repairGrade = options.repairGrade ?? DEFAULT_REPAIR_GRADE;
 	const rows = await inspectionRows(db, die.id);
-	const zones = summariseZones(rows, die.total_shots, repairGrade);
+	// Voided inspections stay on the zone's timeline (struck through) but leave grade and trend.
+	const live = rows.filter((r) => r.voidedAt === null);
+	const zones = summariseZones(live, die.total_shots, repairGrade);
 	const selected = zones.find((z) => z.key === options.zone) ?? zones[0] ?? null;
 	const timelineRows = selected ? rows.filter((r) => zoneKey(r.half, r.zone) === selected.key) : [];
 	const photos = await listInspectionPhotos(
@@ -209,7 +236,7 @@ export async function getSurfaceOverview(
 		timelineRows.map((r) => r.id)
 	);
 	const timeline = timelineRows.map((r) => ({ ...r, photos: photos.get(r.id) ?? [] }));
-	return { zones, selected, timeline, repairGrade, inspectionCount: rows.length };
+	return { zones, selected, timeline, repairGrade, inspectionCount: live.length };
 }
 
 /** Two inspection photos of this die for side-by-side comparison, with grade and shots. */
@@ -256,6 +283,7 @@ export async function listRisingSurfaces(db: DB, repairGrade = DEFAULT_REPAIR_GR
 			's.grade'
 		])
 		.where('dies.status', '!=', 'retired')
+		.where('s.voided_at', 'is', null)
 		.orderBy('s.shots_at')
 		.orderBy('s.id')
 		.execute();
@@ -293,4 +321,162 @@ export async function listRisingSurfaces(db: DB, repairGrade = DEFAULT_REPAIR_GR
 			(a.shotsToRepair ?? Infinity) - (b.shotsToRepair ?? Infinity) ||
 			a.dieNumber.localeCompare(b.dieNumber)
 	);
+}
+
+export type InspectionChange =
+	| { ok: true; id: number }
+	| { ok: false; status: 400 | 403 | 404 | 409; field?: string; message: string };
+
+const MIN_REASON = 5;
+
+async function findLiveInspection(db: DB, dieId: number, inspectionId: number) {
+	return db
+		.selectFrom('surface_inspections')
+		.selectAll()
+		.where('id', '=', inspectionId)
+		.where('die_id', '=', dieId)
+		.executeTakeFirst();
+}
+
+function refuseChange(actor: Actor, reason: string, what: string): InspectionChange | null {
+	if (!canLeadToolroom(actor.role)) {
+		return { ok: false, status: 403, message: `Only the toolroom lead may ${what}.` };
+	}
+	if (reason.trim().length < MIN_REASON) {
+		return {
+			ok: false,
+			status: 400,
+			field: 'reason',
+			message: `Give the reason (at least ${MIN_REASON} characters).`
+		};
+	}
+	return null;
+}
+
+/**
+ * Voids an inspection (toolroom lead, with a reason): it stays on the zone's timeline, struck
+ * through, and in the audit log, and leaves the zone's latest grade, crack trend and the rising-
+ * surface list on the toolroom home.
+ */
+export async function voidInspection(
+	db: DB,
+	input: { dieId: number; inspectionId: number; reason: string; actor: Actor; at?: string }
+): Promise<InspectionChange> {
+	const refused = refuseChange(input.actor, input.reason, 'void an inspection');
+	if (refused) return refused;
+	const at = input.at ?? nowIso();
+	const row = await findLiveInspection(db, input.dieId, input.inspectionId);
+	if (!row) return { ok: false, status: 404, message: 'There is no such inspection on this die.' };
+	if (row.voided_at) return { ok: false, status: 409, message: 'This inspection is already void.' };
+	const reason = input.reason.trim();
+	await db.transaction().execute(async (trx) => {
+		await trx
+			.updateTable('surface_inspections')
+			.set({ voided_at: at, voided_by: input.actor.userId, void_reason: reason })
+			.where('id', '=', row.id)
+			.execute();
+		await writeAudit(
+			trx,
+			{
+				userId: input.actor.userId,
+				action: 'surface.void',
+				dieId: input.dieId,
+				detail: {
+					inspection: row.id,
+					half: row.half,
+					zone: row.zone,
+					grade: row.grade,
+					shots: row.shots_at,
+					reason
+				}
+			},
+			at
+		);
+	});
+	return { ok: true, id: row.id };
+}
+
+/**
+ * Corrects an inspection's figures (toolroom lead, with a reason): a new inspection with the
+ * right shots, grade and crack length, at the original time and by the original toolmaker, takes
+ * over its photos; the old one is voided. One transaction.
+ */
+export async function correctInspection(
+	db: DB,
+	input: {
+		dieId: number;
+		inspectionId: number;
+		values: { shotsAt: number; grade: number; longestCrackMm: number | null };
+		reason: string;
+		actor: Actor;
+		at?: string;
+	}
+): Promise<InspectionChange> {
+	const refused = refuseChange(input.actor, input.reason, 'correct an inspection');
+	if (refused) return refused;
+	const at = input.at ?? nowIso();
+	const old = await findLiveInspection(db, input.dieId, input.inspectionId);
+	if (!old) return { ok: false, status: 404, message: 'There is no such inspection on this die.' };
+	if (old.voided_at) return { ok: false, status: 409, message: 'This inspection is already void.' };
+	const die = await db
+		.selectFrom('dies')
+		.select('total_shots')
+		.where('id', '=', input.dieId)
+		.executeTakeFirstOrThrow();
+	const tooMany = inspectionShotsProblem(input.values.shotsAt, die.total_shots);
+	if (tooMany) return { ok: false, status: 400, field: 'shotsAt', message: tooMany };
+	const reason = input.reason.trim();
+	const id = await db.transaction().execute(async (trx) => {
+		const row = await trx
+			.insertInto('surface_inspections')
+			.values({
+				die_id: old.die_id,
+				job_id: old.job_id,
+				half: old.half,
+				zone: old.zone,
+				shots_at: input.values.shotsAt,
+				grade: input.values.grade,
+				longest_crack_mm: input.values.longestCrackMm,
+				soldering: old.soldering,
+				erosion: old.erosion,
+				notes: old.notes,
+				inspected_by: old.inspected_by,
+				inspected_at: old.inspected_at,
+				corrects_id: old.id
+			})
+			.returning('id')
+			.executeTakeFirstOrThrow();
+		await trx
+			.updateTable('photos')
+			.set({ inspection_id: row.id })
+			.where('inspection_id', '=', old.id)
+			.execute();
+		await trx
+			.updateTable('surface_inspections')
+			.set({ voided_at: at, voided_by: input.actor.userId, void_reason: `Corrected: ${reason}` })
+			.where('id', '=', old.id)
+			.execute();
+		await writeAudit(
+			trx,
+			{
+				userId: input.actor.userId,
+				action: 'surface.correct',
+				dieId: input.dieId,
+				detail: {
+					inspection: old.id,
+					correctedBy: row.id,
+					reason,
+					was: { shots: old.shots_at, grade: old.grade, crackMm: old.longest_crack_mm },
+					now: {
+						shots: input.values.shotsAt,
+						grade: input.values.grade,
+						crackMm: input.values.longestCrackMm
+					}
+				}
+			},
+			at
+		);
+		return row.id;
+	});
+	return { ok: true, id };
 }

@@ -318,6 +318,8 @@ export async function listJobsForDie(db: DB, dieId: number) {
 			'j.hours',
 			'j.billable_to_owner as billable',
 			'j.die_shots_at_open as shotsAtOpen',
+			'j.voided_at as voidedAt',
+			'j.void_reason as voidReason',
 			'assignee.name as assigneeName'
 		])
 		.where('j.die_id', '=', dieId)

@@ -6,13 +6,15 @@ import {
 	cancelJobSchema,
 	closeJobSchema,
 	jobStatusSchema,
-	photoShareSchema
+	photoShareSchema,
+	voidJobSchema
 } from '$lib/schemas/toolroom';
 import { requireRole } from '$lib/server/auth/guard';
 import { getDb } from '$lib/server/db';
 import { selectedFiles } from '$lib/server/photos/store';
 import { getUploadDir } from '$lib/server/photos/upload-dir';
-import { TOOLROOM_READERS, TOOLROOM_WORKERS } from '$lib/server/toolroom/access';
+import { TOOLROOM_LEADS, TOOLROOM_READERS, TOOLROOM_WORKERS } from '$lib/server/toolroom/access';
+import { voidJob } from '$lib/server/toolroom/job-void';
 import { getJobPage } from '$lib/server/toolroom/job-page';
 import { assignJob, cancelJob, closeJob, getJob, moveJob } from '$lib/server/toolroom/jobs';
 import { setPhotoShared, uploadPhotos } from '$lib/server/toolroom/photos';
@@ -28,16 +30,30 @@ async function loadJob(number: string) {
 export const load: PageServerLoad = async (event) => {
 	const user = requireRole(event, ...TOOLROOM_READERS);
 	const job = await loadJob(event.params.job);
-	const [page, closeForm, cancelForm, assignForm] = await Promise.all([
+	const [page, closeForm, cancelForm, assignForm, voidForm] = await Promise.all([
 		getJobPage(getDb(), job, user.role),
 		superValidate(zod4(closeJobSchema), { id: 'close' }),
 		superValidate(zod4(cancelJobSchema), { id: 'cancel' }),
-		superValidate({ assignedTo: job.assigned_to ?? '' }, zod4(assignJobSchema), { id: 'assign' })
+		superValidate({ assignedTo: job.assigned_to ?? '' }, zod4(assignJobSchema), { id: 'assign' }),
+		superValidate(zod4(voidJobSchema), { id: 'void' })
 	]);
-	return { ...page, closeForm, cancelForm, assignForm };
+	return { ...page, closeForm, cancelForm, assignForm, voidForm };
 };
 
 export const actions: Actions = {
+	void: async (event) => {
+		const user = requireRole(event, ...TOOLROOM_LEADS);
+		const form = await superValidate(event.request, zod4(voidJobSchema), { id: 'void' });
+		if (!form.valid) return fail(400, { voidForm: form });
+		const result = await voidJob(getDb(), {
+			number: event.params.job,
+			reason: form.data.reason,
+			actor: { userId: user.id, role: user.role }
+		});
+		if (!result.ok) return setError(form, 'reason', result.message, { status: result.status });
+		return message(form, 'Job voided: it stays in the history, struck through.');
+	},
+
 	status: async (event) => {
 		const user = requireRole(event, ...TOOLROOM_WORKERS);
 		const parsed = jobStatusSchema.safeParse(Object.fromEntries(await event.request.formData()));

@@ -1,18 +1,31 @@
 import { fail } from '@sveltejs/kit';
-import { message, superValidate } from 'sveltekit-superforms';
+import { message, setError, superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
-import { inspectionSchema, MAX_PHOTOS_PER_UPLOAD } from '$lib/schemas/toolroom';
+import {
+	correctInspectionSchema,
+	inspectionSchema,
+	MAX_PHOTOS_PER_UPLOAD,
+	voidRecordSchema
+} from '$lib/schemas/toolroom';
 import { requireRole } from '$lib/server/auth/guard';
 import { getDb } from '$lib/server/db';
 import { loadPlantDie } from '$lib/server/dies/load-die';
 import { MAX_PHOTO_BYTES, MAX_PHOTO_PIXELS } from '$lib/server/photos/process-image';
 import { selectedFiles } from '$lib/server/photos/store';
 import { getUploadDir } from '$lib/server/photos/upload-dir';
-import { canWorkToolroom, TOOLROOM_READERS, TOOLROOM_WORKERS } from '$lib/server/toolroom/access';
 import {
+	canLeadToolroom,
+	canWorkToolroom,
+	TOOLROOM_LEADS,
+	TOOLROOM_READERS,
+	TOOLROOM_WORKERS
+} from '$lib/server/toolroom/access';
+import {
+	correctInspection,
 	findComparePhotos,
 	getSurfaceOverview,
-	recordInspection
+	recordInspection,
+	voidInspection
 } from '$lib/server/toolroom/inspections';
 import type { Actions, PageServerLoad } from './$types';
 
@@ -21,19 +34,24 @@ export const load: PageServerLoad = async (event) => {
 	const die = await loadPlantDie(event.params.number);
 	const db = getDb();
 	const params = event.url.searchParams;
-	const [overview, compare, form] = await Promise.all([
+	const [overview, compare, form, voidForm, correctForm] = await Promise.all([
 		getSurfaceOverview(db, die, { zone: params.get('zone') }),
 		findComparePhotos(db, die.id, [params.get('a') ?? '', params.get('b') ?? '']),
 		superValidate({ shotsAt: die.total_shots, half: 'cover' }, zod4(inspectionSchema), {
 			errors: false
-		})
+		}),
+		superValidate(zod4(voidRecordSchema), { id: 'voidInspection' }),
+		superValidate(zod4(correctInspectionSchema), { id: 'correctInspection' })
 	]);
 	return {
 		...overview,
 		compare,
 		compareIds: { a: params.get('a') ?? '', b: params.get('b') ?? '' },
 		form,
+		voidForm,
+		correctForm,
 		canWork: canWorkToolroom(user.role),
+		canLead: canLeadToolroom(user.role),
 		limits: {
 			maxFiles: MAX_PHOTOS_PER_UPLOAD,
 			maxMb: Math.round(MAX_PHOTO_BYTES / 1024 / 1024),
@@ -65,6 +83,7 @@ export const actions: Actions = {
 			uploadDir: getUploadDir()
 		});
 		if (!result.ok) {
+			if (result.field) return setError(form, result.field, result.message);
 			form.message = result.message;
 			return fail(result.status, { form, photoProblems: result.problems });
 		}
@@ -74,6 +93,54 @@ export const actions: Actions = {
 		return message(
 			form,
 			`Inspection recorded: grade ${form.data.grade} at ${form.data.shotsAt} shots${photos}.`
+		);
+	},
+
+	voidInspection: async (event) => {
+		const user = requireRole(event, ...TOOLROOM_LEADS);
+		const die = await loadPlantDie(event.params.number);
+		const form = await superValidate(event.request, zod4(voidRecordSchema), {
+			id: 'voidInspection'
+		});
+		if (!form.valid) return fail(400, { voidForm: form });
+		const result = await voidInspection(getDb(), {
+			dieId: die.id,
+			inspectionId: form.data.id,
+			reason: form.data.reason,
+			actor: { userId: user.id, role: user.role }
+		});
+		if (!result.ok) {
+			const field = result.field === 'reason' ? 'reason' : 'id';
+			return setError(form, field, result.message, { status: result.status });
+		}
+		return message(
+			form,
+			'Inspection voided: it stays on the timeline, struck through, and leaves grade and trend.'
+		);
+	},
+
+	correctInspection: async (event) => {
+		const user = requireRole(event, ...TOOLROOM_LEADS);
+		const die = await loadPlantDie(event.params.number);
+		const form = await superValidate(event.request, zod4(correctInspectionSchema), {
+			id: 'correctInspection'
+		});
+		if (!form.valid) return fail(400, { correctForm: form });
+		const { id, reason, ...values } = form.data;
+		const result = await correctInspection(getDb(), {
+			dieId: die.id,
+			inspectionId: id,
+			values,
+			reason,
+			actor: { userId: user.id, role: user.role }
+		});
+		if (!result.ok) {
+			const field = (result.field ?? 'id') as 'id';
+			return setError(form, field, result.message, { status: result.status });
+		}
+		return message(
+			form,
+			'Inspection corrected; the old figures stay on the timeline, struck through.'
 		);
 	}
 };
