@@ -1,5 +1,6 @@
 import { sql } from 'kysely';
 import { lifeStatus } from '../../calc/life';
+import { plantDate, plantNoon } from '../../plant-time';
 import type { DB } from '../db/connect';
 import { nowIso } from '../time';
 import type { DieScope } from './register';
@@ -32,7 +33,7 @@ const DAY_MS = 86_400_000;
 
 /** Daily shots of the trailing window, from the roll-up (never the ledger). */
 export async function recentDailyShots(db: DB, dieId: number, asOf: string, days = 28) {
-	const from = new Date(Date.parse(asOf) - days * DAY_MS).toISOString().slice(0, 10);
+	const from = plantDate(Date.parse(asOf) - days * DAY_MS);
 	const rows = await db
 		.selectFrom('shot_daily')
 		.select(['day', 'shots'])
@@ -40,7 +41,7 @@ export async function recentDailyShots(db: DB, dieId: number, asOf: string, days
 		// From the day that holds the window's start; lifeStatus keeps only what lies inside it.
 		.where('day', '>=', from)
 		.execute();
-	return rows.map((r) => ({ at: `${r.day}T12:00:00.000Z`, shots: r.shots }));
+	return rows.map((r) => ({ at: plantNoon(r.day), shots: r.shots }));
 }
 
 export async function dieLife(db: DB, die: FoundDie, asOf = nowIso()) {

@@ -1,4 +1,5 @@
 import type SQLite from 'better-sqlite3';
+import { dateInZone, dateTimeInZone, wallClockToMs } from '../../calc/zone';
 import { rawHandle, type DB } from '../db/connect';
 import type { AlloyFamily, DieProcess, DieStatus, ShotSource } from '../db/schema';
 import { maxShotsIn, maxShotsPerHour } from './plausibility';
@@ -116,6 +117,9 @@ function statements(raw: SQLite.Database) {
 		halves: raw.prepare(`update die_halves set shots = shots + ? where die_id = ? and active = 1`),
 		audit: raw.prepare(
 			`insert into audit_log (at, user_id, token_id, action, die_id, detail) values (?, ?, ?, ?, ?, ?)`
+		),
+		zone: raw.prepare<[], { time_zone: string }>(
+			`select time_zone from plant_settings where id = 1`
 		)
 	};
 }
@@ -160,24 +164,36 @@ function canonicalMs(t: string): number | null {
 
 /**
  * An instant as stored (ISO-8601 UTC) with its epoch milliseconds, or null when the text is not
- * a real date and time. A time without an offset is read as UTC — the one zone Castellan shows —
- * whatever the server's zone.
+ * a real date and time. A time without an offset is read as plant time (`zone`, the plant's
+ * time zone) whatever the server's zone; a plant clock time skipped when summer time starts is
+ * refused.
  */
-export function parseInstant(value: string): { iso: string; ms: number } | null {
+export function parseInstant(value: string, zone = 'UTC'): { iso: string; ms: number } | null {
 	let text = value.trim();
 	if (CANONICAL.test(text)) {
 		const ms = canonicalMs(text);
 		return ms === null ? null : { iso: text, ms };
 	}
-	if (LOCAL_DATE_TIME.test(text)) text = text.replace(' ', 'T') + 'Z';
+	if (LOCAL_DATE_TIME.test(text)) {
+		if (zone !== 'UTC') {
+			const ms = wallClockToMs(text, zone);
+			return ms === null ? null : { iso: new Date(ms).toISOString(), ms };
+		}
+		text = text.replace(' ', 'T') + 'Z';
+	}
 	if (!/^\d{4}-\d{2}-\d{2}/.test(text) || !calendarFieldsValid(text)) return null;
 	const ms = Date.parse(text);
 	return Number.isNaN(ms) ? null : { iso: new Date(ms).toISOString(), ms };
 }
 
 /** The stored form of an instant, or null (see parseInstant). */
-export function normalizeInstant(value: string): string | null {
-	return parseInstant(value)?.iso ?? null;
+export function normalizeInstant(value: string, zone = 'UTC'): string | null {
+	return parseInstant(value, zone)?.iso ?? null;
+}
+
+/** The plant's time zone as the ledger reads it (inside its transaction). */
+export function ledgerZone(raw: SQLite.Database): string {
+	return prepared(raw).zone.get()?.time_zone ?? 'UTC';
 }
 
 interface CheckedRow {
@@ -216,8 +232,7 @@ function latestBefore(list: number[] | undefined, value: number): number | null 
 }
 
 const isCount = (v: unknown): v is number => Number.isSafeInteger(v) && (v as number) >= 0;
-const shortTime = (ms: number) =>
-	`${new Date(ms).toISOString().slice(0, 16).replace('T', ' ')} UTC`;
+const shortTime = (ms: number, zone: string) => `${dateTimeInZone(ms, zone)} ${zone}`;
 
 /**
  * Checks every row against the register as it is now (inside the write transaction), so the
@@ -229,7 +244,7 @@ function checkRows(
 	raw: SQLite.Database,
 	inputs: ShotInput[],
 	actor: LedgerActor,
-	opts: { source: ShotSource; now: string }
+	opts: { source: ShotSource; now: string; zone: string }
 ): { issues: ShotIssue[]; rows: CheckedRow[] } {
 	const st = prepared(raw);
 	const issues: ShotIssue[] = [];
@@ -325,7 +340,8 @@ function checkRows(
 		let countedAt = opts.now;
 		let countedMs = nowMs;
 		if (input.countedAt !== undefined && input.countedAt !== null && input.countedAt !== '') {
-			const parsed = typeof input.countedAt === 'string' ? parseInstant(input.countedAt) : null;
+			const parsed =
+				typeof input.countedAt === 'string' ? parseInstant(input.countedAt, opts.zone) : null;
 			if (!parsed) {
 				return issue('countedAt', 'Counted-at is not a date and time (use 2026-03-01T14:30:00Z).');
 			}
@@ -404,7 +420,7 @@ function checkRows(
 				if (shots > limit) {
 					return issue(
 						'shots',
-						`${shots} shots between the previous count (${shortTime(previous)}) and this one (${shortTime(countedMs)}) is more than a press can make: at most ${limit} at ${perHour} shots/h.`
+						`${shots} shots between the previous count (${shortTime(previous, opts.zone)}) and this one (${shortTime(countedMs, opts.zone)}) is more than a press can make: at most ${limit} at ${perHour} shots/h.`
 					);
 				}
 			}
@@ -474,7 +490,8 @@ export async function recordShots(
 	const raw = rawHandle(db);
 	return db.connection().execute(async () => {
 		const run = raw.transaction((): RecordResult => {
-			const { issues, rows } = checkRows(raw, inputs, actor, { source, now });
+			const zone = ledgerZone(raw);
+			const { issues, rows } = checkRows(raw, inputs, actor, { source, now, zone });
 			if (issues.length) return { ok: false, issues };
 			const added = new Map<number, number>();
 			for (const row of rows) {
@@ -502,7 +519,8 @@ export async function recordShots(
 					row.input.note?.trim() || null,
 					now
 				);
-				const day = row.countedAt.slice(0, 10);
+				// The roll-up is keyed by plant date (see rebuildDailyRollup when the zone changes).
+				const day = zone === 'UTC' ? row.countedAt.slice(0, 10) : dateInZone(row.countedAt, zone);
 				const dayKey = `${row.die.id}|${day}`;
 				const d = daily.get(dayKey);
 				if (d) d.shots += shots;
