@@ -191,6 +191,15 @@ export function normalizeInstant(value: string, zone = 'UTC'): string | null {
 	return parseInstant(value, zone)?.iso ?? null;
 }
 
+/** Why a counted-at was not read: not a date at all, or a plant clock time that does not exist. */
+export function unreadableTimeMessage(value: string, zone: string): string {
+	const text = value.trim();
+	if (zone !== 'UTC' && LOCAL_DATE_TIME.test(text) && parseInstant(text, 'UTC')) {
+		return `${text.replace('T', ' ')} does not exist in ${zone} (the clocks skip that hour when summer time starts).`;
+	}
+	return 'Counted-at is not a date and time (use 2026-03-01T14:30 plant time, or add Z or an offset).';
+}
+
 /** The plant's time zone as the ledger reads it (inside its transaction). */
 export function ledgerZone(raw: SQLite.Database): string {
 	return prepared(raw).zone.get()?.time_zone ?? 'UTC';
@@ -343,7 +352,7 @@ function checkRows(
 			const parsed =
 				typeof input.countedAt === 'string' ? parseInstant(input.countedAt, opts.zone) : null;
 			if (!parsed) {
-				return issue('countedAt', 'Counted-at is not a date and time (use 2026-03-01T14:30:00Z).');
+				return issue('countedAt', unreadableTimeMessage(String(input.countedAt), opts.zone));
 			}
 			countedAt = parsed.iso;
 			countedMs = parsed.ms;
