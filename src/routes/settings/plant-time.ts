@@ -7,6 +7,7 @@ import { plantZoneSchema } from '$lib/schemas/plant-time';
 import { requireRole } from '$lib/server/auth/guard';
 import { getDb } from '$lib/server/db';
 import { getPlantTimeZone, savePlantTimeZone } from '$lib/server/settings/plant-time';
+import { setNoticeCronZone } from '$lib/server/notices/cron';
 
 export async function loadPlantZoneForm() {
 	const plantZone = await getPlantTimeZone(getDb());
@@ -23,5 +24,6 @@ export async function savePlantZone(event: RequestEvent) {
 	if (!form.valid) return fail(400, { zoneForm: form });
 	const result = await savePlantTimeZone(getDb(), form.data.timeZone, user.id);
 	if (!result.ok) return fail(400, { zoneForm: form });
+	await setNoticeCronZone(form.data.timeZone);
 	return message(form, result.message);
 }
