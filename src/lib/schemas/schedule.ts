@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { readPlantDateTime, toPlantInput } from '../plant-time';
 import { MAX_PLAUSIBLE_SHOTS_PER_HOUR } from '../calc/life';
 
 // Optional text stays a string ('' when empty) so a form can round-trip it; the server stores
@@ -59,18 +60,17 @@ const DATE_TIME =
 	/^(\d{4}-\d{2}-\d{2})[T ](\d{2}:\d{2}(?::\d{2}(?:\.\d{1,3})?)?)(Z|[+-]\d{2}:\d{2})?$/;
 
 /**
- * A date and time as a `datetime-local` field sends it (read as UTC, the zone Castellan shows) or
- * a full ISO-8601 timestamp with Z or an offset, as ISO UTC text; null when it is not one.
+ * A date and time as a `datetime-local` field sends it (read as plant time) or a full ISO-8601
+ * timestamp with Z or an offset, as ISO UTC text; null when it is not one.
  */
 export function toUtcIso(value: string): string | null {
-	const m = DATE_TIME.exec(value.trim());
-	const ms = m ? Date.parse(`${m[1]}T${m[2]}${m[3] ?? 'Z'}`) : Number.NaN;
-	return Number.isFinite(ms) ? new Date(ms).toISOString() : null;
+	const text = value.trim();
+	return DATE_TIME.test(text) ? readPlantDateTime(text) : null;
 }
 
-/** The `datetime-local` value (YYYY-MM-DDTHH:mm, UTC) of an ISO instant. */
+/** The `datetime-local` value (YYYY-MM-DDTHH:mm, plant clock) of an ISO instant. */
 export function toLocalInput(iso: string): string {
-	return iso.slice(0, 16);
+	return toPlantInput(iso);
 }
 
 /** Kept as typed so a form can show it again; read with `toUtcIso` after validation. */

@@ -80,7 +80,7 @@ export async function trailingShotsPerDay(
 			lifeStatus({
 				totalShots: d.totalShots,
 				expectedLifeShots: d.expectedLifeShots,
-				recentShots: sum === 0 ? [] : [{ at: `${lastNoon}T12:00:00.000Z`, shots: sum }],
+				recentShots: sum === 0 ? [] : [{ at: plantNoon(lastNoon), shots: sum }],
 				asOf
 			}).shotsPerDay
 		);
