@@ -10,7 +10,9 @@ import {
 	dateTimeInZone,
 	isTimeZone,
 	startOfDayInZone,
-	wallClockToMs
+	wallClockToMs,
+	zonedFields,
+	zoneOffsetMinutes
 } from './calc/zone';
 
 /** The zone a plant runs in until an admin picks one. */
@@ -42,6 +44,23 @@ export function plantDate(iso: string | number | Date, zone = currentZone): stri
 /** `YYYY-MM-DD HH:mm` on the plant's clock. */
 export function plantDateTime(iso: string | number | Date, zone = currentZone): string {
 	return dateTimeInZone(iso, zone);
+}
+
+/**
+ * ISO-8601 timestamp on the plant's clock with its offset (`2026-01-15T14:30:00+01:00`): plant
+ * time in exports, still one exact instant for any program that reads it back.
+ */
+export function plantTimestamp(iso: string | number | Date, zone = currentZone): string {
+	const ms = typeof iso === 'number' ? iso : new Date(iso).getTime();
+	const f = zonedFields(ms, zone);
+	const offset = zoneOffsetMinutes(ms, zone);
+	const sign = offset < 0 ? '-' : '+';
+	const abs = Math.abs(offset);
+	const p2 = (n: number) => String(n).padStart(2, '0');
+	return (
+		`${dateInZone(ms, zone)}T${p2(f.hour)}:${p2(f.minute)}:${p2(f.second)}` +
+		`${sign}${p2(Math.floor(abs / 60))}:${p2(abs % 60)}`
+	);
 }
 
 /** Today's date at the plant. */
