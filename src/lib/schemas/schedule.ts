@@ -145,7 +145,10 @@ export const bookingFormSchema = z
 	.superRefine(checkWindow);
 export type BookingForm = z.infer<typeof bookingFormSchema>;
 
-/** `POST /api/v1/bookings`: warnings are accepted only with `"confirm": true`. Times as ISO UTC. */
+/**
+ * `POST /api/v1/bookings`: warnings are accepted only with `"confirm": true`. Times with Z or an
+ * offset, or plant time without one.
+ */
 export const bookingApiSchema = z
 	.object({ ...bookingFields, confirm: z.boolean().default(false) })
 	.superRefine(checkWindow)
@@ -166,7 +169,7 @@ const isoDay = z
 	.regex(/^\d{4}-\d{2}-\d{2}$/, 'Use a date like 2026-12-14.')
 	.refine((v) => Number.isFinite(Date.parse(v)), 'Not a real date.');
 
-/** `GET /api/v1/bookings?from&to` — whole days, UTC, at most a year and a bit. */
+/** `GET /api/v1/bookings?from&to` — whole plant days, at most a year and a bit. */
 export const bookingWindowQuerySchema = z
 	.object({
 		from: isoDay,
