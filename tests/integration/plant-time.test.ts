@@ -6,7 +6,9 @@
 // UTC+1, and UTC+2 in summer time from the last Sunday of March 01:00 UTC to the last Sunday of
 // October 01:00 UTC (EU Directive 2000/84/EC) — 2026-03-29 and 2026-10-25.
 import { afterEach, beforeEach, describe, expect, test } from 'vitest';
-import { setPlantZone } from '../../src/lib/plant-time';
+import { formatDate } from '../../src/lib/format';
+import { plantTimestamp, setPlantZone } from '../../src/lib/plant-time';
+import { composeDigest } from '../../src/lib/server/notices/digest';
 import { dieLife, findDie, cumulativeShotSeries } from '../../src/lib/server/dies/die-detail';
 import { listServicePlan, markTaskDone } from '../../src/lib/server/dies/service-plan';
 import { getPlantTimeZone, savePlantTimeZone } from '../../src/lib/server/settings/plant-time';
@@ -259,5 +261,45 @@ describe('a plant in Central Europe (Europe/Vienna)', () => {
 		);
 		expect(ok.ok).toBe(true);
 		expect(await storedTimes(p.dies.zinc)).toEqual(['2026-03-29T01:30:00.000Z']);
+	});
+});
+
+describe('e-mail, export and page agree on plant time', () => {
+	test('a notice digest, the CSV timestamp and the page date give the same plant day', () => {
+		setPlantZone('Europe/Vienna');
+		// 23:30 UTC on 1 March is 00:30 on 2 March in Vienna (UTC+1 in winter).
+		const asOf = '2026-03-01T23:30:00.000Z';
+		const mail = composeDigest(
+			[
+				{
+					level: 'due',
+					subject: 'D-0001 · Stress relief · due',
+					dieNumber: 'D-0001',
+					payload: {
+						kind: 'service',
+						dieNumber: 'D-0001',
+						partName: 'Part 1',
+						customerName: 'Testbury',
+						taskId: 1,
+						taskKind: 'stress_relief',
+						state: 'due',
+						fraction: 1,
+						intervalShots: 15_000,
+						intervalDays: null,
+						shotsRemaining: 0,
+						daysRemaining: null,
+						lastDoneAt: asOf
+					}
+				}
+			],
+			{ origin: 'https://c.test', asOf }
+		);
+		expect(mail.text).toContain('Service notice, 2026-03-02');
+		expect(mail.text).toContain('(last done 2026-03-02)');
+		expect(mail.text.match(/Europe\/Vienna/g)).toHaveLength(1);
+		expect(plantTimestamp(asOf)).toBe('2026-03-02T00:30:00+01:00');
+		expect(formatDate(asOf)).toBe('2026-03-02');
+		// The CSV timestamp reads back to the stored instant.
+		expect(new Date(plantTimestamp(asOf)).toISOString()).toBe(asOf);
 	});
 });
