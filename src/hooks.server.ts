@@ -6,11 +6,13 @@ import { getLucia } from '$lib/server/auth';
 import { getDb } from '$lib/server/db';
 import { migrateToLatest } from '$lib/server/db/connect';
 import { startNoticeCron } from '$lib/server/notices/cron';
+import { getPlantTimeZone } from '$lib/server/settings/plant-time';
 
 export const init: ServerInit = async () => {
 	if (building) return;
 	const applied = await migrateToLatest(getDb());
 	if (applied.length) console.log(`Castellan: applied migrations ${applied.join(', ')}`);
+	console.log(`Castellan: plant time is ${await getPlantTimeZone(getDb())}.`);
 	// The notice job lives in the server process, once per process (NOTICE_CRON=off stops it).
 	if (!building) startNoticeCron();
 };
@@ -80,4 +82,17 @@ const requestLog: Handle = async ({ event, resolve }) => {
 	return response;
 };
 
-export const handle = sequence(requestLog, securityHeaders, refuseControlCharacters, authenticate);
+// Every request reads the plant's zone (one row), so a change made by an admin in another server
+// process shows here at once.
+const plantTime: Handle = async ({ event, resolve }) => {
+	await getPlantTimeZone(getDb());
+	return resolve(event);
+};
+
+export const handle = sequence(
+	requestLog,
+	securityHeaders,
+	refuseControlCharacters,
+	plantTime,
+	authenticate
+);

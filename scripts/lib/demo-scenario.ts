@@ -4,6 +4,7 @@ import { sql } from 'kysely';
 import type { DB } from '../../src/lib/server/db/connect';
 import type { AlloyFamily, DieProcess, DieStatus } from '../../src/lib/domain';
 import { recordShots, type ShotInput } from '../../src/lib/server/shots/ledger';
+import { setPlantZone } from '../../src/lib/plant-time';
 import { createUser } from '../../src/lib/server/users/users';
 import { createApiToken } from '../../src/lib/server/auth/tokens';
 import { seedScheduleDemo } from './demo-schedule';
@@ -12,6 +13,8 @@ import { seedToolroomDemo } from './demo-toolroom';
 
 export const DEMO_PASSWORD = 'castellan-demo';
 export const DEMO_PLANT = 'Kestrel Vale Diecast Works';
+/** The demo plant runs on Central European time, so plant days are not UTC days. */
+export const DEMO_PLANT_ZONE = 'Europe/Vienna';
 
 export const DEMO_USERS = [
 	{ email: 'admin@kestrelvale.test', name: 'Ines Marwood', role: 'admin', customer: null },
@@ -218,6 +221,13 @@ export async function seedDemo(
 ): Promise<SeedSummary> {
 	const rand = mulberry32(20261201);
 	const nowIso = now.toISOString();
+	// Set before any shot is counted, so the roll-up is keyed by Vienna days from the start.
+	await db
+		.updateTable('plant_settings')
+		.set({ time_zone: DEMO_PLANT_ZONE, updated_at: nowIso })
+		.where('id', '=', 1)
+		.execute();
+	setPlantZone(DEMO_PLANT_ZONE);
 	await db.insertInto('customers').values(CUSTOMERS).execute();
 	await db
 		.insertInto('machines')
@@ -348,7 +358,8 @@ export async function seedDemo(
 		}
 		const perDay = target / Math.max(1, workDays.length);
 		for (const day of workDays) {
-			day.setUTCHours(22, 0, 0, 0);
+			// End of the late shift: 22:00 in Vienna in winter, 23:00 in summer — the same plant day.
+			day.setUTCHours(21, 0, 0, 0);
 			if (day.getTime() > now.getTime()) continue;
 			const shots = Math.max(1, Math.round(perDay * (0.6 + rand() * 0.8)));
 			rows.push({

@@ -1,7 +1,11 @@
+import { plantZone } from '$lib/plant-time';
 import type { LayoutServerLoad } from './$types';
 
-// Only what the shell needs: who is signed in. Every page checks its own role.
+// Only what the shell needs: who is signed in, and the plant's time zone (set per request by the
+// plantTime hook) so the browser shows the same plant times as the server. Every page checks its
+// own role.
 export const load: LayoutServerLoad = async ({ locals }) => ({
+	plantZone: plantZone(),
 	user: locals.user
 		? {
 				name: locals.user.name,

@@ -147,6 +147,7 @@ export const ACTIONS: Record<string, Cells> = {
 	'/presses/new?/default': roles(...PLANNERS),
 	'/settings?/alloy': roles('admin'),
 	'/settings?/customer': roles('admin'),
+	'/settings?/zone': roles('admin'),
 	'/shots/new?/default': roles(...RECORDERS),
 	'/shots/upload?/commit': roles(...RECORDERS),
 	'/shots/upload?/preview': roles(...RECORDERS),

@@ -126,7 +126,7 @@ test.describe('without JavaScript', () => {
 		await expect(again.getByText('Give an interval in shots, in days, or both.')).toBeVisible();
 
 		// A done date in the future is refused with the reason.
-		await again.getByLabel('Done on (UTC date)').fill('2099-01-01');
+		await again.getByLabel('Done on (plant date)').fill('2099-01-01');
 		await again.getByRole('button', { name: 'Mark done' }).click();
 		await expect(
 			page

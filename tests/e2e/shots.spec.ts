@@ -4,9 +4,15 @@ import { signIn } from './support';
 // Dies used only by this file: D-0113, D-0115, D-0116 (hot chamber), D-0118 (cold chamber).
 
 const shotsOf = (text: string | null) => Number((text ?? '').replace(/[^\d]/g, ''));
-/** `YYYY-MM-DD HH:MM` (UTC) some minutes before now, as a counter gateway would write it. */
+/**
+ * `YYYY-MM-DD HH:MM` on the demo plant's clock (Europe/Vienna) some minutes before now, as a
+ * counter gateway would write it (no offset: read as plant time). Formatted by Intl, not by the
+ * app's own helpers.
+ */
 const minutesAgo = (m: number) =>
-	new Date(Date.now() - m * 60_000).toISOString().slice(0, 16).replace('T', ' ');
+	new Date(Date.now() - m * 60_000)
+		.toLocaleString('sv-SE', { timeZone: 'Europe/Vienna', hour12: false })
+		.slice(0, 16);
 
 async function upload(page: Page, name: string, text: string) {
 	await page.getByLabel('CSV file').setInputFiles({

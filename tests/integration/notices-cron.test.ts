@@ -1,5 +1,11 @@
 import { afterEach, describe, expect, it, vi } from 'vitest';
-import { startNoticeCron, stopNoticeCron } from '../../src/lib/server/notices/cron';
+import { dateTimeInZone } from '../../src/lib/calc/zone';
+import {
+	nextNoticeRun,
+	setNoticeCronZone,
+	startNoticeCron,
+	stopNoticeCron
+} from '../../src/lib/server/notices/cron';
 
 afterEach(async () => {
 	await stopNoticeCron();
@@ -27,5 +33,20 @@ describe('startNoticeCron', () => {
 			String(line).startsWith('Castellan notices: "')
 		);
 		expect(starts).toHaveLength(1);
+	});
+
+	it('runs at 06:00 on the plant clock, and follows a change of zone', async () => {
+		vi.spyOn(console, 'log').mockImplementation(() => {});
+		const source = { NOTICE_CRON: '0 6 * * *', SMTP_URL: 'smtp://127.0.0.1:1' };
+		expect(startNoticeCron(source, 'Australia/Brisbane')).toBe(true);
+		const brisbane = nextNoticeRun()!;
+		expect(dateTimeInZone(brisbane, 'Australia/Brisbane').slice(11)).toBe('06:00');
+		// Brisbane is UTC+10 all year: 06:00 there is 20:00 UTC the day before.
+		expect(brisbane.toISOString().slice(11, 16)).toBe('20:00');
+		await setNoticeCronZone('Europe/Vienna');
+		const vienna = nextNoticeRun()!;
+		expect(dateTimeInZone(vienna, 'Europe/Vienna').slice(11)).toBe('06:00');
+		// Vienna is UTC+1 in winter and UTC+2 in summer: 05:00 or 04:00 UTC.
+		expect(['05:00', '04:00']).toContain(vienna.toISOString().slice(11, 16));
 	});
 });

@@ -146,7 +146,7 @@ describe('blocking checks, each with its message', () => {
 				code: 'die_double_booked',
 				level: 'block',
 				message:
-					'Z-1 is already booked on HC-20 from 2027-03-08 06:00 UTC to 2027-03-08 22:00 UTC (order PO-1).'
+					'Z-1 is already booked on HC-20 from 2027-03-08 06:00 to 2027-03-08 22:00 (order PO-1).'
 			}
 		]);
 	});
@@ -163,7 +163,7 @@ describe('blocking checks, each with its message', () => {
 			code: 'press_double_booked',
 			level: 'block',
 			message:
-				'HC-20 is already booked for Z-1 from 2027-03-08 06:00 UTC to 2027-03-08 22:00 UTC (order PO-1).'
+				'HC-20 is already booked for Z-1 from 2027-03-08 06:00 to 2027-03-08 22:00 (order PO-1).'
 		});
 	});
 
@@ -340,7 +340,7 @@ describe('warnings, each with its message', () => {
 				code: 'service_due',
 				level: 'warn',
 				message:
-					"Stress relief comes due during this run, around 2027-03-08 11:00 UTC, after about 1,500 of the run's 2,000 shots."
+					"Stress relief comes due during this run, around 2027-03-08 11:00, after about 1,500 of the run's 2,000 shots."
 			}
 		]);
 	});
@@ -364,7 +364,7 @@ describe('warnings, each with its message', () => {
 		await addTask(db, 'Z-1', { kind: 'cooling_flush', intervalDays: 90, daysAgo: 83 });
 		const ev = await checks({ startsAt: at(6, 6), endsAt: at(9, 6) });
 		expect(ev.warnings.map((w) => w.message)).toEqual([
-			'Cooling-line flush comes due during this run, around 2027-03-08 08:00 UTC (90-day interval).'
+			'Cooling-line flush comes due during this run, around 2027-03-08 08:00 (90-day interval).'
 		]);
 	});
 
@@ -444,7 +444,7 @@ describe('confirming warnings', () => {
 });
 
 describe('booking form input', () => {
-	test('datetime-local values are read as UTC and the end must follow the start', () => {
+	test('datetime-local values are read as plant time (UTC here) and the end must follow the start', () => {
 		const ok = bookingFormSchema.safeParse({
 			die: 'z-1',
 			press: 'HC-20',

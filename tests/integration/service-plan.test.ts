@@ -254,7 +254,7 @@ describe('marking a task done', () => {
 			ok: false,
 			status: 400,
 			field: 'doneOn',
-			message: 'The date cannot be in the future (today is 2026-03-10, UTC).'
+			message: 'The date cannot be in the future (today is 2026-03-10 at the plant, UTC).'
 		});
 		expect((await taskOf('stress_relief')).state).toBe('due');
 		expect(await auditActions()).toEqual([]);

@@ -70,7 +70,11 @@ describe('reading the file', () => {
 		).toEqual([
 			[2, 'die', 'The die is missing.'],
 			[3, 'counted_at', 'counted_at is missing.'],
-			[4, 'counted_at', '"10/06/2026" is not a date and time (use 2026-03-01 14:30).'],
+			[
+				4,
+				'counted_at',
+				'"10/06/2026" is not a date and time at the plant (use 2026-03-01 14:30, plant time).'
+			],
 			[5, 'shots', 'Shots must be a whole number (found "12.5").'],
 			[6, 'counter_end', 'Give both counter readings, or shots.'],
 			[7, 'shots', 'Give shots, or counter_start and counter_end.'],

@@ -5,9 +5,11 @@ import {
 	SERVICE_KINDS,
 	SERVICE_KIND_LABELS,
 	SERVICE_STATES,
+	dayIntervalDueMs,
 	projectServiceDue,
 	serviceState,
-	serviceStateRank
+	serviceStateRank,
+	taskDayCount
 } from './service';
 
 // Bands are plant practice (DESIGN.md "Service due"): coming up ≥ 90 %, due ≥ 100 %, overdue ≥ 110 %.
@@ -136,6 +138,71 @@ describe('projectServiceDue (hand-checked)', () => {
 				asOf
 			})
 		).toBeNull();
+	});
+});
+
+describe('due dates from the as-of instant, days counted alike on one row', () => {
+	// Task done 23:00 UTC on 1 March 2026, interval 30 days, shots not the limit.
+	const done = '2026-03-01T23:00:00.000Z';
+	const base = { intervalShots: null, intervalDays: 30, shotsSinceDone: 0, shotsPerDay: 0 };
+
+	test('task done 23:00 UTC, interval 30 days → due 31 March on a UTC plant, whatever the as-of hour', () => {
+		// Hand calculation: 1 March + 30 days = 31 March (March has 31 days). The old way added
+		// ceil(30 − age) days to the as-of *date*: as of 01:00 UTC on 10 March the age is
+		// 8 d 2 h = 8.083 d, ceil(21.917) = 22, 10 March + 22 = 1 April — one day late.
+		for (const asOf of ['2026-03-10T01:00:00.000Z', '2026-03-10T23:30:00.000Z']) {
+			const days = taskDayCount(done, asOf);
+			expect(projectServiceDue({ ...base, daysSinceDone: days, asOf, lastDoneAt: done })).toBe(
+				'2026-03-31'
+			);
+		}
+		// Without the completion time, from the exact age: 01:00 on 10 March + 21.917 d
+		// = 31 March 23:00 UTC → still 31 March.
+		const asOf = '2026-03-10T01:00:00.000Z';
+		const age = (Date.parse(asOf) - Date.parse(done)) / 86_400_000;
+		expect(projectServiceDue({ ...base, daysSinceDone: age, asOf })).toBe('2026-03-31');
+	});
+
+	test('days since done and days remaining are whole plant days that add up to the interval', () => {
+		// UTC plant, as of 01:00 on 10 March: dates 1 → 10 March = 9 days since, 30 − 9 = 21 left,
+		// and 10 March + 21 days = 31 March, the projected date.
+		const asOf = '2026-03-10T01:00:00.000Z';
+		const since = taskDayCount(done, asOf);
+		const status = serviceState({ ...base, daysSinceDone: since });
+		expect(since).toBe(9);
+		expect(status.daysRemaining).toBe(21);
+		expect(since + status.daysRemaining!).toBe(30);
+	});
+
+	test('on a Vienna plant the same task is done on 2 March and due on 1 April', () => {
+		// 23:00 UTC on 1 March is 00:00 on 2 March in Vienna (UTC+1). 2 March + 30 days = 1 April,
+		// which starts at 00:00 summer time (UTC+2) = 22:00 UTC on 31 March.
+		const zone = 'Europe/Vienna';
+		const asOf = '2026-03-10T01:00:00.000Z'; // 02:00 on 10 March in Vienna
+		const since = taskDayCount(done, asOf, zone);
+		expect(since).toBe(8); // 2 → 10 March
+		expect(serviceState({ ...base, daysSinceDone: since }).daysRemaining).toBe(22);
+		expect(projectServiceDue({ ...base, daysSinceDone: since, asOf, lastDoneAt: done, zone })).toBe(
+			'2026-04-01'
+		);
+		expect(new Date(dayIntervalDueMs(done, 30, zone)).toISOString()).toBe(
+			'2026-03-31T22:00:00.000Z'
+		);
+	});
+
+	test('shot-based projection runs from the as-of instant, not its date', () => {
+		// 1 200 shots left at 1 000/day from 02:00 UTC on 10 March = 1.2 d = 28 h 48 min
+		// → 11 March 06:48 UTC. The old way: 10 March + ceil(1.2) = 12 March.
+		expect(
+			projectServiceDue({
+				intervalShots: 10_000,
+				intervalDays: null,
+				shotsSinceDone: 8_800,
+				daysSinceDone: 0,
+				shotsPerDay: 1_000,
+				asOf: '2026-03-10T02:00:00.000Z'
+			})
+		).toBe('2026-03-11');
 	});
 });
 

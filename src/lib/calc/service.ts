@@ -1,4 +1,5 @@
-import { isoDateOf, projectDate } from './dates';
+import { MS_PER_DAY, parseInstant } from './dates';
+import { dateInZone, startOfDayInZone } from './zone';
 import type { AlloyFamily } from './life';
 
 /** Service states, worst first. */
@@ -95,31 +96,73 @@ export function serviceState(input: ServiceStateInput): ServiceStatus {
 export interface ProjectServiceInput extends IntervalInput {
 	/** Current shot rate, shots per day (e.g. `lifeStatus().shotsPerDay`). */
 	shotsPerDay: number;
-	/** Reference date or timestamp; the projection counts whole days from its UTC date. */
+	/** Reference instant (ISO-8601); the projection runs from this instant, not from its date. */
 	asOf: string;
+	/**
+	 * When the task was last done. With it, a day-based task is due on the plant date it was done
+	 * plus `intervalDays` calendar days (as `taskDayCount` counts); without it, `daysSinceDone`
+	 * days before `asOf`.
+	 */
+	lastDoneAt?: string;
+	/** IANA zone whose calendar dates are answered; default UTC. */
+	zone?: string;
 }
 
+/** Latest instant a projection reports; beyond it the answer is "not in any useful future". */
+const LAST_PROJECTED_MS = Date.parse('9999-12-31T00:00:00Z');
+
 /**
- * UTC date (`YYYY-MM-DD`) on which the task reaches 100 % of its interval: the earlier of the
- * shot-based date (at `shotsPerDay`, whole days rounded up) and the day-based date. The as-of date
- * when already due; null when only a shot interval is set and the die is not running.
+ * Calendar date (`YYYY-MM-DD`, in `zone`) on which the task reaches 100 % of its interval: the
+ * earlier of the shot-based instant (the as-of instant plus shots left ÷ `shotsPerDay` days) and
+ * the day-based one. The as-of date when already due; null when only a shot interval is set and
+ * the die is not running, or the date lies past 9999.
  */
 export function projectServiceDue(input: ProjectServiceInput): string | null {
 	checkIntervals(input);
 	const { intervalShots, intervalDays, shotsSinceDone, daysSinceDone, shotsPerDay, asOf } = input;
+	const zone = input.zone ?? 'UTC';
 	if (!(shotsPerDay >= 0) || !Number.isFinite(shotsPerDay)) {
 		throw new RangeError('The shot rate must be zero or more shots per day.');
 	}
-	const asOfDate = isoDateOf(asOf);
+	const asOfMs = parseInstant(asOf);
 	const candidates: number[] = [];
 	if (intervalShots !== null) {
 		const left = intervalShots - shotsSinceDone;
-		if (left <= 0) candidates.push(0);
-		else if (shotsPerDay > 0) candidates.push(Math.ceil(left / shotsPerDay));
+		if (left <= 0) candidates.push(asOfMs);
+		else if (shotsPerDay > 0) candidates.push(asOfMs + (left / shotsPerDay) * MS_PER_DAY);
 	}
-	if (intervalDays !== null) candidates.push(Math.max(0, Math.ceil(intervalDays - daysSinceDone)));
+	if (intervalDays !== null) {
+		const dueMs = input.lastDoneAt
+			? dayIntervalDueMs(input.lastDoneAt, intervalDays, zone)
+			: asOfMs + (intervalDays - daysSinceDone) * MS_PER_DAY;
+		candidates.push(Math.max(asOfMs, dueMs));
+	}
 	if (candidates.length === 0) return null;
-	return projectDate(asOfDate, Math.min(...candidates));
+	const due = Math.min(...candidates);
+	if (!Number.isFinite(due) || due > LAST_PROJECTED_MS) return null;
+	return dateInZone(due, zone);
+}
+
+/**
+ * Whole calendar days in `zone` from the date a task was done to the date of `asOf` — the count a
+ * day-based interval is measured in, so "days since done" and "days remaining" on one row always
+ * add up to the interval. Plant practice: a day interval is kept by calendar days.
+ */
+export function taskDayCount(lastDoneAt: string, asOf: string, zone = 'UTC'): number {
+	const from = Date.parse(dateInZone(parseInstant(lastDoneAt), zone));
+	const to = Date.parse(dateInZone(parseInstant(asOf), zone));
+	return Math.max(0, Math.round((to - from) / MS_PER_DAY));
+}
+
+/**
+ * Instant (epoch ms) at which a day-based task falls due: the start (plant midnight in `zone`) of
+ * the calendar date `intervalDays` days after the date it was done — the moment `taskDayCount`
+ * reaches the interval.
+ */
+export function dayIntervalDueMs(lastDoneAt: string, intervalDays: number, zone = 'UTC'): number {
+	const doneDate = Date.parse(dateInZone(parseInstant(lastDoneAt), zone));
+	const dueDate = new Date(doneDate + Math.round(intervalDays) * MS_PER_DAY).toISOString();
+	return startOfDayInZone(dueDate.slice(0, 10), zone);
 }
 
 /** Kinds of recurring service a die gets. */

@@ -1,6 +1,7 @@
 // Turns the board's compact JSON (GET /api/v1/board) into rows the timeline and the phone list
 // draw. Runs in the browser once per fetch; linear in the size of the answer.
 import type { BoardData } from '$lib/server/schedule/board';
+import { plantDayStart } from '$lib/plant-time';
 
 export type { BoardData };
 
@@ -60,16 +61,18 @@ export interface BoardModel {
 }
 
 export function buildBoardModel(data: BoardData, nowMs = Date.now()): BoardModel {
-	const fromMs = Date.parse(data.from);
-	const toMs = Date.parse(data.to);
+	// Columns are plant days: the timeline starts at plant midnight of `from`.
+	const fromMs = Date.parse(plantDayStart(data.from));
+	const toMs = Date.parse(plantDayStart(data.to));
 	const days: BoardDay[] = [];
-	for (let t = fromMs; t < toMs; t += DAY_MS) {
+	const firstDay = Date.parse(data.from);
+	for (let t = firstDay; t < Date.parse(data.to); t += DAY_MS) {
 		const d = new Date(t);
 		const iso = d.toISOString().slice(0, 10);
 		days.push({
 			iso,
 			label:
-				d.getUTCDate() === 1 || t === fromMs
+				d.getUTCDate() === 1 || t === firstDay
 					? `${d.getUTCDate()} ${d.toLocaleString('en-GB', { month: 'short', timeZone: 'UTC' })}`
 					: String(d.getUTCDate()),
 			weekday: WEEKDAYS[d.getUTCDay()],

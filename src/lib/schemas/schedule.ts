@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { readPlantDateTime, toPlantInput } from '../plant-time';
 import { MAX_PLAUSIBLE_SHOTS_PER_HOUR } from '../calc/life';
 import { decimalNumber, optionalDecimalNumber, wholeNumber } from './numbers';
 
@@ -61,18 +62,17 @@ const DATE_TIME =
 	/^(\d{4}-\d{2}-\d{2})[T ](\d{2}:\d{2}(?::\d{2}(?:\.\d{1,3})?)?)(Z|[+-]\d{2}:\d{2})?$/;
 
 /**
- * A date and time as a `datetime-local` field sends it (read as UTC, the zone Castellan shows) or
- * a full ISO-8601 timestamp with Z or an offset, as ISO UTC text; null when it is not one.
+ * A date and time as a `datetime-local` field sends it (read as plant time) or a full ISO-8601
+ * timestamp with Z or an offset, as ISO UTC text; null when it is not one.
  */
 export function toUtcIso(value: string): string | null {
-	const m = DATE_TIME.exec(value.trim());
-	const ms = m ? Date.parse(`${m[1]}T${m[2]}${m[3] ?? 'Z'}`) : Number.NaN;
-	return Number.isFinite(ms) ? new Date(ms).toISOString() : null;
+	const text = value.trim();
+	return DATE_TIME.test(text) ? readPlantDateTime(text) : null;
 }
 
-/** The `datetime-local` value (YYYY-MM-DDTHH:mm, UTC) of an ISO instant. */
+/** The `datetime-local` value (YYYY-MM-DDTHH:mm, plant clock) of an ISO instant. */
 export function toLocalInput(iso: string): string {
-	return iso.slice(0, 16);
+	return toPlantInput(iso);
 }
 
 /** Kept as typed so a form can show it again; read with `toUtcIso` after validation. */
@@ -140,7 +140,10 @@ export const bookingFormSchema = z
 	.superRefine(checkWindow);
 export type BookingForm = z.infer<typeof bookingFormSchema>;
 
-/** `POST /api/v1/bookings`: warnings are accepted only with `"confirm": true`. Times as ISO UTC. */
+/**
+ * `POST /api/v1/bookings`: warnings are accepted only with `"confirm": true`. Times with Z or an
+ * offset, or plant time without one.
+ */
 export const bookingApiSchema = z
 	.object({ ...bookingFields, confirm: z.boolean().default(false) })
 	.superRefine(checkWindow)
@@ -161,7 +164,7 @@ const isoDay = z
 	.regex(/^\d{4}-\d{2}-\d{2}$/, 'Use a date like 2026-12-14.')
 	.refine((v) => Number.isFinite(Date.parse(v)), 'Not a real date.');
 
-/** `GET /api/v1/bookings?from&to` — whole days, UTC, at most a year and a bit. */
+/** `GET /api/v1/bookings?from&to` — whole plant days, at most a year and a bit. */
 export const bookingWindowQuerySchema = z
 	.object({
 		from: isoDay,

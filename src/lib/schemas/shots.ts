@@ -10,7 +10,7 @@ export const SHOT_SOURCE_LABELS: Record<(typeof SHOT_SOURCES)[number], string> =
 	seed: 'Imported'
 };
 
-/** `YYYY-MM-DDTHH:MM` as a datetime-local input sends it (read as UTC). */
+/** `YYYY-MM-DDTHH:MM` as a datetime-local input sends it (read as plant time). */
 const DATETIME_LOCAL = /^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}(:\d{2}(\.\d{1,3})?)?$/;
 const DAY = /^\d{4}-\d{2}-\d{2}$/;
 /** Keyset cursor: `<counted_at>_<id>` of the last row shown. */
@@ -67,7 +67,7 @@ export const pressRunSchema = z
 		countedAt: z
 			.string()
 			.trim()
-			.regex(DATETIME_LOCAL, 'Enter the date and time of the count (UTC).'),
+			.regex(DATETIME_LOCAL, 'Enter the date and time of the count (plant time).'),
 		shots: optionalCount('Shots'),
 		counterStart: optionalCount('The counter start'),
 		counterEnd: optionalCount('The counter end'),

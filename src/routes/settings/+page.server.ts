@@ -6,6 +6,7 @@ import { requireRole } from '$lib/server/auth/guard';
 import { getDb } from '$lib/server/db';
 import { listAlloys, listServiceTemplates, saveAlloy } from '$lib/server/settings/alloys';
 import { listCustomers, saveCustomer } from '$lib/server/settings/customers';
+import { loadPlantZoneForm, savePlantZone } from './plant-time';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -53,10 +54,11 @@ export const load: PageServerLoad = async (event) => {
 			{ errors: false }
 		)
 	]);
-	return { customers, alloys, templates, customerForm, alloyForm };
+	return { customers, alloys, templates, customerForm, alloyForm, ...(await loadPlantZoneForm()) };
 };
 
 export const actions: Actions = {
+	zone: savePlantZone,
 	customer: async (event) => {
 		requireRole(event, 'admin');
 		const form = await superValidate(event.request, zod4(customerSchema));

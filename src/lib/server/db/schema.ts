@@ -6,6 +6,7 @@ import type { ToolroomTables } from './schema-toolroom';
 import type { ScheduleTables } from './schema-schedule';
 import type { NoticesTables } from './schema-notices';
 import type { InvitationsTables } from './schema-invitations';
+import type { PlantSettingsTables } from './schema-settings';
 
 export type { AlloyFamily, DieProcess, DieStatus, HalfSide, Role, ShotSource };
 
@@ -161,7 +162,7 @@ export type ReviewState = 'to_review' | 'confirmed';
 
 export interface ShotDailyTable {
 	die_id: number;
-	/** YYYY-MM-DD (UTC). */
+	/** YYYY-MM-DD, plant date (the plant's time zone; see plant_settings). */
 	day: string;
 	shots: number;
 }
@@ -196,7 +197,8 @@ export interface AuditLogTable {
 	detail: Generated<string>;
 }
 
-export interface Database extends ToolroomTables, ScheduleTables, NoticesTables, InvitationsTables {
+export interface Database
+	extends ToolroomTables, ScheduleTables, NoticesTables, InvitationsTables, PlantSettingsTables {
 	customers: CustomersTable;
 	users: UsersTable;
 	sessions: SessionsTable;

@@ -1,4 +1,5 @@
 import { sql } from 'kysely';
+import { plantDate, plantNoon } from '../../plant-time';
 import type { DB } from '../db/connect';
 import { nowIso } from '../time';
 import { loadDieLife, type DieLife } from './life';
@@ -28,6 +29,21 @@ export async function findDie(db: DB, number: string, scope: DieScope) {
 		.executeTakeFirst();
 }
 export type FoundDie = NonNullable<Awaited<ReturnType<typeof findDie>>>;
+
+const DAY_MS = 86_400_000;
+
+/** Daily shots of the trailing window, from the roll-up (never the ledger). */
+export async function recentDailyShots(db: DB, dieId: number, asOf: string, days = 28) {
+	const from = plantDate(Date.parse(asOf) - days * DAY_MS);
+	const rows = await db
+		.selectFrom('shot_daily')
+		.select(['day', 'shots'])
+		.where('die_id', '=', dieId)
+		// From the day that holds the window's start; lifeStatus keeps only what lies inside it.
+		.where('day', '>=', from)
+		.execute();
+	return rows.map((r) => ({ at: plantNoon(r.day), shots: r.shots }));
+}
 
 /**
  * The die's life used, shots remaining and projected end of life — those of its most-worn active

@@ -1,15 +1,18 @@
 // A die's service plan: the tasks with their due state and projected due date, and the writes
 // that keep the plan (edit intervals, add, deactivate, mark done), each audited in its transaction.
-import { projectServiceDue } from '../../calc/service';
 import { serviceKindLabel } from '../../labels';
 import type { AddTaskForm, MarkDoneForm } from '../../schemas/service-plan';
 import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
 import type { DieStatus } from '../db/schema';
+import { plantDate, plantZone, readPlantDateTime } from '../../plant-time';
 import { nowIso } from '../time';
-import { sortWorstFirst, viewServiceTask, type ServiceTaskView } from './service-summary';
-
-const DAY_MS = 86_400_000;
+import {
+	projectTaskDue,
+	sortWorstFirst,
+	viewServiceTask,
+	type ServiceTaskView
+} from './service-summary';
 
 /** What the plan needs to know about the die; `FoundDie` fits. */
 export interface PlanDie {
@@ -19,7 +22,7 @@ export interface PlanDie {
 }
 
 export interface PlanTask extends ServiceTaskView {
-	/** UTC date the task reaches 100 % at the die's trailing rate; null if it never will. */
+	/** Plant date the task reaches 100 % at the die's trailing rate; null if it never will. */
 	projectedDue: string | null;
 }
 
@@ -54,15 +57,7 @@ function planTask(
 	asOf: string
 ): PlanTask {
 	const view = viewServiceTask(row, totalShots, asOf);
-	const projectedDue = projectServiceDue({
-		intervalShots: row.interval_shots,
-		intervalDays: row.interval_days,
-		shotsSinceDone: view.shotsSinceDone,
-		// The exact age, not the whole days shown, so a task done this morning projects correctly.
-		daysSinceDone: Math.max(0, (Date.parse(asOf) - Date.parse(row.last_done_at)) / DAY_MS),
-		shotsPerDay: Math.max(0, shotsPerDay),
-		asOf
-	});
+	const projectedDue = projectTaskDue(row, view, shotsPerDay, asOf);
 	return { ...view, projectedDue };
 }
 
@@ -264,9 +259,10 @@ export async function deactivateServiceTask(
 }
 
 /**
- * Records that a task was done on `doneOn` (UTC date) at `shots` on the die's counter. The date
- * may be earlier than today, but not in the future nor before the previous completion; the count
- * lies between the count at the previous completion and the die's current total.
+ * Records that a task was done on `doneOn` (plant date) at `shots` on the die's counter. The date
+ * may be earlier than today at the plant, but not in the future nor before the previous
+ * completion; the count lies between the count at the previous completion and the die's current
+ * total.
  */
 export async function markTaskDone(
 	db: DB,
@@ -283,14 +279,15 @@ export async function markTaskDone(
 		if (!task || !current) return notOnPlan;
 		if (current.status === 'retired') return retiredDie;
 
-		const today = now.slice(0, 10);
-		const lastDoneDay = task.last_done_at.slice(0, 10);
+		const zone = plantZone();
+		const today = plantDate(now, zone);
+		const lastDoneDay = plantDate(task.last_done_at, zone);
 		if (input.doneOn > today) {
 			return {
 				ok: false,
 				status: 400,
 				field: 'doneOn',
-				message: `The date cannot be in the future (today is ${today}, UTC).`
+				message: `The date cannot be in the future (today is ${today} at the plant, ${zone}).`
 			};
 		}
 		if (input.doneOn < lastDoneDay) {
@@ -320,8 +317,9 @@ export async function markTaskDone(
 			};
 		}
 
-		// Today means now; an earlier day is dated midday, never before the previous completion.
-		let doneAt = input.doneOn === today ? now : `${input.doneOn}T12:00:00.000Z`;
+		// Today means now; an earlier day is dated midday plant time, never before the previous
+		// completion.
+		let doneAt = input.doneOn === today ? now : readPlantDateTime(`${input.doneOn}T12:00`, zone)!;
 		if (doneAt < task.last_done_at) doneAt = task.last_done_at;
 		await trx
 			.updateTable('service_tasks')

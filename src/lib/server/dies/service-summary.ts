@@ -1,4 +1,10 @@
-import { serviceState, serviceStateRank } from '../../calc/service';
+import {
+	projectServiceDue,
+	serviceState,
+	serviceStateRank,
+	taskDayCount
+} from '../../calc/service';
+import { plantZone } from '../../plant-time';
 import type { ServiceTask } from '../db/schema';
 
 export interface ServiceTaskView {
@@ -16,9 +22,11 @@ export interface ServiceTaskView {
 	daysRemaining: number | null;
 }
 
-const DAY_MS = 86_400_000;
-
-/** A service task's due state from the die's running total, worst-first sortable. */
+/**
+ * A service task's due state from the die's running total, worst-first sortable. Days are whole
+ * plant calendar days (`taskDayCount`), so days since done and days remaining on one row add up
+ * to the interval and agree with the projected due date.
+ */
 export function viewServiceTask(
 	task: Pick<
 		ServiceTask,
@@ -26,10 +34,11 @@ export function viewServiceTask(
 	>,
 	dieTotalShots: number,
 	asOf: string,
-	threshold = 0.9
+	threshold = 0.9,
+	zone = plantZone()
 ): ServiceTaskView {
 	const shotsSinceDone = Math.max(0, dieTotalShots - task.last_done_shots);
-	const daysSinceDone = Math.max(0, (Date.parse(asOf) - Date.parse(task.last_done_at)) / DAY_MS);
+	const daysSinceDone = taskDayCount(task.last_done_at, asOf, zone);
 	const s = serviceState({
 		intervalShots: task.interval_shots,
 		intervalDays: task.interval_days,
@@ -45,9 +54,32 @@ export function viewServiceTask(
 		lastDoneAt: task.last_done_at,
 		lastDoneShots: task.last_done_shots,
 		shotsSinceDone,
-		daysSinceDone: Math.floor(daysSinceDone),
+		daysSinceDone,
 		...s
 	};
+}
+
+/**
+ * Plant date a task reaches 100 % of its interval at `shotsPerDay`, from the as-of instant (the
+ * one projection the plan, the board and the notices show); null if it never will.
+ */
+export function projectTaskDue(
+	task: Pick<ServiceTask, 'interval_shots' | 'interval_days' | 'last_done_at'>,
+	view: Pick<ServiceTaskView, 'shotsSinceDone' | 'daysSinceDone'>,
+	shotsPerDay: number,
+	asOf: string,
+	zone = plantZone()
+): string | null {
+	return projectServiceDue({
+		intervalShots: task.interval_shots,
+		intervalDays: task.interval_days,
+		shotsSinceDone: view.shotsSinceDone,
+		daysSinceDone: view.daysSinceDone,
+		lastDoneAt: task.last_done_at,
+		shotsPerDay: Math.max(0, shotsPerDay),
+		asOf,
+		zone
+	});
 }
 
 /** Worst first: by state band, then by how far through its interval. */

@@ -1,6 +1,7 @@
 import cron, { type ScheduledTask } from 'node-cron';
 import { building } from '$app/environment';
 import { env } from '$env/dynamic/private';
+import { plantZone } from '../../plant-time';
 import { getDb } from '../db';
 import { createMailer, type Mailer } from '../mail/transport';
 import { nowIso } from '../time';
@@ -59,13 +60,25 @@ function deliverOnce(state: NoticeCron): Promise<void> {
 	});
 }
 
+function scheduleDaily(state: NoticeCron, zone: string): ScheduledTask {
+	return cron.schedule(state.config.cron!, () => runOnce(state), {
+		name: 'castellan-notices',
+		noOverlap: true,
+		timezone: zone
+	});
+}
+
 /**
  * Starts the notice job in this server process: the daily run on NOTICE_CRON (default 06:00
- * server time) and the delivery tick. Once per process; never while building; not at all when
- * NOTICE_CRON=off. A bad expression is reported and leaves the server running without the job.
- * Returns whether the job is running. `source` is the environment (tests pass their own).
+ * plant time — the expression is read on the plant's clock, `zone`) and the delivery tick. Once
+ * per process; never while building; not at all when NOTICE_CRON=off. A bad expression is
+ * reported and leaves the server running without the job. Returns whether the job is running.
+ * `source` is the environment (tests pass their own).
  */
-export function startNoticeCron(source: Record<string, string | undefined> = env): boolean {
+export function startNoticeCron(
+	source: Record<string, string | undefined> = env,
+	zone = plantZone()
+): boolean {
 	if (building) return false;
 	if (holder[STATE]) return true;
 	const config = readNoticeConfig(source);
@@ -87,10 +100,7 @@ export function startNoticeCron(source: Record<string, string | undefined> = env
 	};
 	holder[STATE] = state;
 	state.tasks.push(
-		cron.schedule(config.cron, () => runOnce(state), {
-			name: 'castellan-notices',
-			noOverlap: true
-		}),
+		scheduleDaily(state, zone),
 		cron.schedule(DELIVERY_TICK, () => deliverOnce(state), {
 			name: 'castellan-notice-delivery',
 			noOverlap: true
@@ -98,9 +108,23 @@ export function startNoticeCron(source: Record<string, string | undefined> = env
 	);
 	const next = state.tasks[0].getNextRun();
 	console.log(
-		`Castellan notices: "${config.cron}", next run ${next ? next.toISOString() : 'unknown'}.`
+		`Castellan notices: "${config.cron}" (${zone}), next run ${next ? next.toISOString() : 'unknown'}.`
 	);
 	return true;
+}
+
+/** Moves the daily run onto a new plant clock after the admin changed the zone. */
+export async function setNoticeCronZone(zone: string): Promise<void> {
+	const state = holder[STATE];
+	if (!state) return;
+	const [daily, ...rest] = state.tasks;
+	await daily.destroy();
+	state.tasks = [scheduleDaily(state, zone), ...rest];
+}
+
+/** When the daily run next starts, or null when the job is not running. */
+export function nextNoticeRun(): Date | null {
+	return holder[STATE]?.tasks[0].getNextRun() ?? null;
 }
 
 /** Stops the job (tests, shutdown). */

@@ -1,4 +1,5 @@
-import { formatShots } from '../../format';
+import { formatDate, formatShots } from '../../format';
+import { plantDate, plantTimeNote } from '../../plant-time';
 import { serviceKindLabel } from '../../labels';
 import { escapeHtml, layoutEmail } from '../mail/html';
 import {
@@ -86,7 +87,7 @@ export function describeEntry(payload: NoticePayload): string {
 						: `${daysWord(payload.daysRemaining)} past`
 				);
 			}
-			return `${parts.join(', ')} (last done ${payload.lastDoneAt.slice(0, 10)})`;
+			return `${parts.join(', ')} (last done ${formatDate(payload.lastDoneAt)})`;
 		}
 		case 'life':
 			return (
@@ -129,7 +130,7 @@ export function composeDigest(
 	if (entries.length === 0) throw new Error('A digest needs at least one item.');
 	const groups = groupByLevel(entries);
 	const subject = subjectOf(groups, entries.length, entries[0]);
-	const date = options.asOf.slice(0, 10);
+	const date = plantDate(options.asOf);
 	const hasToolroomWork = entries.some((e) => e.level !== 'ready_again');
 	const title = hasToolroomWork ? `Service notice, ${date}` : `Dies ready again, ${date}`;
 	const intro = hasToolroomWork
@@ -187,6 +188,9 @@ export function composeDigest(
 			`<p style="margin:20px 0 0;padding:10px 12px;background:#fff7ed;border-left:4px solid #e8711c;font-size:13px;">${escapeHtml(SAFETY)}</p>`
 		);
 	}
+	const zoneNote = plantTimeNote();
+	text.push(zoneNote, '');
+	html.push(`<p style="margin:16px 0 0;color:#6b7280;font-size:13px;">${escapeHtml(zoneNote)}</p>`);
 	text.push('--', FOOTER);
 
 	return {

@@ -105,7 +105,7 @@ export async function countOpenBookings(db: DB, dieId: number, asOf = nowIso()) 
 }
 
 export interface MonthRow {
-	/** YYYY-MM (UTC). */
+	/** YYYY-MM (plant months). */
 	month: string;
 	shots: number;
 	/** Days with shots counted in the month. */

@@ -3,6 +3,8 @@
  * so an invitation is sent at once over the same SMTP settings, and the result — sent, or failed
  * with the reason — is written on the invitation for the admin to see and act on.
  */
+import { formatDateTime } from '../../format';
+import { plantZone } from '../../plant-time';
 import type { DB } from '../db/connect';
 import { escapeHtml, layoutEmail } from '../mail/html';
 import { createMailer, type Mailer } from '../mail/transport';
@@ -22,7 +24,7 @@ export function inviteLink(origin: string, token: string): string {
 }
 
 function expiryText(iso: string) {
-	return `${iso.slice(0, 10)} ${iso.slice(11, 16)} UTC`;
+	return `${formatDateTime(iso)} (${plantZone()})`;
 }
 
 export function composeInvitationMail(input: InvitationMailInput) {

@@ -12,6 +12,7 @@ import type { OwnerDieQuery } from '../../schemas/owner';
 import type { DB } from '../db/connect';
 import { worstTasks } from '../dies/register';
 import type { ServiceTaskView } from '../dies/service-summary';
+import { plantDate, plantNoon } from '../../plant-time';
 import { nowIso } from '../time';
 
 const DAY_MS = 86_400_000;
@@ -70,12 +71,12 @@ export function sharedSummary(job: { owner_summary: string | null; summary_share
 /** One line about the last job: the shared summary, or only the date, never the internals. */
 export function describeLastJob(job: OwnerLastJob | null): string {
 	if (!job) return '';
-	return job.summary ?? `Serviced on ${job.closedAt.slice(0, 10)}`;
+	return job.summary ?? `Serviced on ${plantDate(job.closedAt)}`;
 }
 
 /** The window `dieLife` uses: days after (asOf − 28 d), so both give the same rate. */
 function windowStartDay(asOf: string) {
-	return new Date(Date.parse(asOf) - TRAILING_RATE_DAYS * DAY_MS).toISOString().slice(0, 10);
+	return plantDate(Date.parse(asOf) - TRAILING_RATE_DAYS * DAY_MS);
 }
 
 /**
@@ -145,7 +146,7 @@ export async function loadOwnerDies(
 	const recentByDie = new Map<number, { at: string; shots: number }[]>();
 	for (const r of daily) {
 		const list = recentByDie.get(r.dieId) ?? [];
-		list.push({ at: `${r.day}T12:00:00.000Z`, shots: r.shots });
+		list.push({ at: plantNoon(r.day), shots: r.shots });
 		recentByDie.set(r.dieId, list);
 	}
 	const jobByDie = new Map(lastJobs.map((j) => [j.dieId, j]));

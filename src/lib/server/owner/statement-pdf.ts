@@ -4,7 +4,8 @@
  * markup. Streams are left uncompressed: the statement is small and stays searchable.
  */
 import pdfmake from 'pdfmake';
-import { formatShots } from '../../format';
+import { formatDate, formatShots } from '../../format';
+import { plantDate, plantZone } from '../../plant-time';
 import {
 	DIE_STATUS_FOR_OWNERS,
 	SERVICE_STATE_LABELS,
@@ -60,14 +61,14 @@ const t = (text: string) => toWinAnsi(text);
 const pct = (n: number) => `${n.toFixed(1)} %`;
 
 function replacementText(d: StatementDie): string {
-	if (d.status === 'retired') return `Retired ${d.retiredAt?.slice(0, 10) ?? ''}`.trim();
+	if (d.status === 'retired') return d.retiredAt ? `Retired ${formatDate(d.retiredAt)}` : 'Retired';
 	if (d.shotsRemaining <= 0) return 'Expected life reached';
 	return d.projectedEndOfLife ?? 'Not projected (no recent shots)';
 }
 
 function lastServiceText(d: StatementDie): string {
 	if (!d.service.lastDoneAt) return 'None recorded';
-	return d.service.lastDoneAt.slice(0, 10);
+	return formatDate(d.service.lastDoneAt);
 }
 
 function dieTable(dies: StatementDie[]) {
@@ -175,7 +176,7 @@ export async function renderStatementPdf(
 	statement: OwnerStatement,
 	plantName: string
 ): Promise<Buffer> {
-	const date = statement.asOf.slice(0, 10);
+	const date = plantDate(statement.asOf);
 	const owner = `${statement.customer.name} (${statement.customer.code})`;
 	const doc = {
 		compress: false,
@@ -216,7 +217,7 @@ export async function renderStatementPdf(
 			{
 				columns: [
 					{ text: t(`Tooling owner: ${owner}`) },
-					{ text: `Statement date: ${date}`, alignment: 'right' }
+					{ text: `Statement date: ${date} (${plantZone()})`, alignment: 'right' }
 				]
 			},
 			summaryBlock(statement),

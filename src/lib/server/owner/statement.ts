@@ -4,6 +4,7 @@
  * is assembled here; statement-pdf.ts lays it out.
  */
 import type { DB } from '../db/connect';
+import { plantDate } from '../../plant-time';
 import { nowIso } from '../time';
 import {
 	findOwnerCustomer,
@@ -80,7 +81,7 @@ export async function getOwnerStatement(
 		const text = sharedSummary(j);
 		if (text && s.summaries.length < STATEMENT_SUMMARIES_PER_DIE) {
 			s.summaries.push({
-				date: (j.closed_at ?? '').slice(0, 10),
+				date: j.closed_at ? plantDate(j.closed_at) : '',
 				kind: j.kind,
 				text,
 				billable: j.billable_to_owner === 1

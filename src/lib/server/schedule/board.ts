@@ -1,13 +1,13 @@
 import { sql } from 'kysely';
 import { addDaysToDate } from '../../calc/dates';
 import type { AlloyFamily } from '../../calc/life';
-import { projectServiceDue } from '../../calc/service';
+import { plantDate } from '../../plant-time';
 import type { BoardQuery } from '../../schemas/schedule';
 import { lifeExpectedSql, lifeShotsSql, lifeUsedPctOf } from '../dies/life';
 import type { DB } from '../db/connect';
 import type { DieProcess, DieStatus } from '../db/schema';
 import type { DieScope } from '../dies/register';
-import { viewServiceTask } from '../dies/service-summary';
+import { projectTaskDue, viewServiceTask } from '../dies/service-summary';
 import { nowIso } from '../time';
 import { chamberChecks, dieClampRequirement } from './booking-checks';
 import { bookingPhase, windowBounds } from './bookings';
@@ -64,9 +64,9 @@ export interface BoardData {
 	service: { columns: typeof BOARD_SERVICE_COLUMNS; rows: BoardServiceRow[] };
 }
 
-/** Monday of the UTC week holding `iso` — the board's default first day. */
+/** Monday of the plant week holding `iso` — the board's default first day. */
 export function startOfWeek(iso: string): string {
-	const day = new Date(Date.parse(iso.slice(0, 10)));
+	const day = new Date(Date.parse(plantDate(iso)));
 	const back = (day.getUTCDay() + 6) % 7;
 	return new Date(day.getTime() - back * DAY_MS).toISOString().slice(0, 10);
 }
@@ -141,7 +141,7 @@ export async function loadBoard(
 	scope: DieScope,
 	now = nowIso()
 ): Promise<BoardData> {
-	const today = now.slice(0, 10);
+	const today = plantDate(now);
 	const from = query.from ?? startOfWeek(now);
 	const to = addDaysToDate(from, query.days);
 	const { start, end } = windowBounds(from, addDaysToDate(from, query.days - 1));
@@ -228,14 +228,7 @@ export async function loadBoard(
 	for (const t of tasks) {
 		const total = totals.get(t.die_id) ?? 0;
 		const view = viewServiceTask(t, total, now);
-		const due = projectServiceDue({
-			intervalShots: t.interval_shots,
-			intervalDays: t.interval_days,
-			shotsSinceDone: view.shotsSinceDone,
-			daysSinceDone: Math.max(0, (Date.parse(now) - Date.parse(t.last_done_at)) / DAY_MS),
-			shotsPerDay: rates.get(t.die_id) ?? 0,
-			asOf: now
-		});
+		const due = projectTaskDue(t, view, rates.get(t.die_id) ?? 0, now);
 		if (due === null || due >= to) continue;
 		// Already due: shown on today (or the first day when the window starts later).
 		const day = due < from ? (today >= from && today < to ? today : from) : due;

@@ -1,4 +1,5 @@
 import type { UnitSystem } from '../../calc/units';
+import { plantDate } from '../../plant-time';
 import { toLocalInput, toUtcIso, type BookingForm } from '../../schemas/schedule';
 import type { DB } from '../db/connect';
 import { nowIso } from '../time';
@@ -17,16 +18,15 @@ export interface BookingMessage {
 
 /**
  * Starting values of the booking form from the URL (the board and the die page link here with
- * `die`, `press` and `start` as a date or date and time): by default tomorrow from 06:00 UTC for
- * two shifts.
+ * `die`, `press` and `start` as a date or date and time, plant time): by default tomorrow (at
+ * the plant) from 06:00 plant time for two shifts.
  */
 export function bookingFormDefaults(params: URLSearchParams, now = nowIso()): Partial<BookingForm> {
 	const startParam = params.get('start') ?? '';
 	const start =
 		(/^\d{4}-\d{2}-\d{2}$/.test(startParam)
 			? toUtcIso(`${startParam}T06:00`)
-			: toUtcIso(startParam)) ??
-		toUtcIso(`${new Date(Date.parse(now) + 24 * HOUR_MS).toISOString().slice(0, 10)}T06:00`)!;
+			: toUtcIso(startParam)) ?? toUtcIso(`${plantDate(Date.parse(now) + 24 * HOUR_MS)}T06:00`)!;
 	const end =
 		toUtcIso(params.get('end') ?? '') ?? new Date(Date.parse(start) + 16 * HOUR_MS).toISOString();
 	return {

@@ -1,4 +1,5 @@
 import type { UnitSystem } from '../../calc/units';
+import { plantDayStart } from '../../plant-time';
 import { MAX_BOOKING_DAYS } from '../../schemas/schedule';
 import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
@@ -217,10 +218,10 @@ export async function getBooking(db: DB, id: number, scope: DieScope) {
 	return bookingsQuery(db, scope).where('b.id', '=', id).executeTakeFirst();
 }
 
-/** Start of the UTC day `YYYY-MM-DD`, and the start of the day after `to`, as ISO instants. */
+/** Start of the plant day `from` (`YYYY-MM-DD`), and the start of the day after `to`, as ISO instants. */
 export function windowBounds(from: string, to: string) {
-	const start = new Date(Date.parse(from)).toISOString();
-	const end = new Date(Date.parse(to) + DAY_MS).toISOString();
+	const start = plantDayStart(from);
+	const end = plantDayStart(new Date(Date.parse(to) + DAY_MS).toISOString().slice(0, 10));
 	return { start, end };
 }
 

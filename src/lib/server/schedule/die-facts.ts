@@ -1,5 +1,6 @@
 import { sql } from 'kysely';
 import { addDaysToDate } from '../../calc/dates';
+import { plantDate, plantNoon } from '../../plant-time';
 import {
 	lifeStatus,
 	TRAILING_RATE_DAYS,
@@ -55,10 +56,10 @@ export async function trailingShotsPerDay(
 	const asOfMs = Date.parse(asOf);
 	const windowStart = asOfMs - TRAILING_RATE_DAYS * DAY_MS;
 	// First day whose noon is after the window start; last day whose noon is not after asOf.
-	const firstNoon = new Date(windowStart - NOON_MS).toISOString().slice(0, 10);
+	const firstNoon = plantDate(windowStart - NOON_MS);
 	const first =
-		Date.parse(firstNoon) + NOON_MS > windowStart ? firstNoon : addDaysToDate(firstNoon, 1);
-	const lastNoon = new Date(asOfMs - NOON_MS).toISOString().slice(0, 10);
+		Date.parse(plantNoon(firstNoon)) > windowStart ? firstNoon : addDaysToDate(firstNoon, 1);
+	const lastNoon = plantDate(asOfMs - NOON_MS);
 	const rows = await db
 		.selectFrom('shot_daily')
 		.select(['die_id', sql<number>`sum(shots)`.as('shots')])
@@ -79,7 +80,7 @@ export async function trailingShotsPerDay(
 			lifeStatus({
 				totalShots: d.totalShots,
 				expectedLifeShots: d.expectedLifeShots,
-				recentShots: sum === 0 ? [] : [{ at: `${lastNoon}T12:00:00.000Z`, shots: sum }],
+				recentShots: sum === 0 ? [] : [{ at: plantNoon(lastNoon), shots: sum }],
 				asOf
 			}).shotsPerDay
 		);

@@ -1,6 +1,7 @@
 import { createHash } from 'node:crypto';
 import { parse } from 'csv-parse/sync';
 import { parseTypedNumber } from '../../parse-number';
+import { plantZone } from '../../plant-time';
 import type { DB } from '../db/connect';
 import {
 	MAX_BATCH,
@@ -120,7 +121,7 @@ export function deriveRowKey(r: {
 	return `csv:${createHash('sha256').update(text).digest('hex').slice(0, 32)}`;
 }
 
-function readRow(cells: Record<Column, string>, line: number): CsvShotRow {
+function readRow(cells: Record<Column, string>, line: number, zone: string): CsvShotRow {
 	const row: CsvShotRow = {
 		line,
 		die: cells.die.toUpperCase(),
@@ -138,9 +139,12 @@ function readRow(cells: Record<Column, string>, line: number): CsvShotRow {
 	const wrong = (column: string, message: string) => ({ ...row, problem: { column, message } });
 	if (!row.die) return wrong('die', 'The die is missing.');
 	if (!row.countedAt) return wrong('counted_at', 'counted_at is missing.');
-	const countedAt = normalizeInstant(row.countedAt);
+	const countedAt = normalizeInstant(row.countedAt, zone);
 	if (!countedAt) {
-		return wrong('counted_at', `"${row.countedAt}" is not a date and time (use 2026-03-01 14:30).`);
+		return wrong(
+			'counted_at',
+			`"${row.countedAt}" is not a date and time at the plant (use 2026-03-01 14:30, plant time).`
+		);
 	}
 	const shots = wholeNumber(row.shots);
 	const start = wholeNumber(row.counterStart);
@@ -194,9 +198,9 @@ function readRow(cells: Record<Column, string>, line: number): CsvShotRow {
 /**
  * Reads an upload: header row, comma or semicolon (detected), UTF-8 with or without BOM, at
  * most 2 MB and 5000 data rows. File-level problems come back as one message; row-level ones
- * stay on their row.
+ * stay on their row. A counted_at without an offset is plant time (`zone`).
  */
-export function parseShotCsv(text: string): ParsedCsv {
+export function parseShotCsv(text: string, zone = plantZone()): ParsedCsv {
 	if (Buffer.byteLength(text, 'utf8') > MAX_CSV_BYTES) {
 		return { ok: false, message: 'The file is larger than 2 MB. Split it into smaller files.' };
 	}
@@ -257,7 +261,7 @@ export function parseShotCsv(text: string): ParsedCsv {
 		const cells = Object.fromEntries(
 			CSV_COLUMNS.map((c) => [c, index.has(c) ? (record[index.get(c)!] ?? '').trim() : ''])
 		) as Record<Column, string>;
-		return readRow(cells, info.lines);
+		return readRow(cells, info.lines, zone);
 	});
 	return { ok: true, delimiter, rows, ignoredColumns };
 }

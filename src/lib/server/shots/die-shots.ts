@@ -1,4 +1,5 @@
 import { sql } from 'kysely';
+import { plantDate } from '../../plant-time';
 import type { DB } from '../db/connect';
 import { cumulativeShotSeries, type FoundDie } from '../dies/die-detail';
 import { listHalfLives } from '../dies/life';
@@ -98,13 +99,13 @@ export async function getDieShotsView(db: DB, die: FoundDie) {
 	for (const t of tasks) {
 		// A task "done" at 0 shots on the day the die was registered is the plan's start, not a service.
 		if (t.last_done_shots > 0) {
-			events.push({ day: t.last_done_at.slice(0, 10), kind: 'service', label: t.kind });
+			events.push({ day: plantDate(t.last_done_at), kind: 'service', label: t.kind });
 		}
 	}
 	for (const h of halves) {
 		if (h.dieShotsAtInstall > 0) {
 			events.push({
-				day: h.installedAt.slice(0, 10),
+				day: plantDate(h.installedAt),
 				kind: 'half',
 				label: `${h.side}:${h.serial}`
 			});

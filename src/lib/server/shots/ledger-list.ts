@@ -1,4 +1,5 @@
 import { sql } from 'kysely';
+import { plantDayStart } from '../../plant-time';
 import type { ShotListQuery } from '../../schemas/shots';
 import type { DB } from '../db/connect';
 import type { ReviewState, ShotSource } from '../db/schema';
@@ -44,8 +45,9 @@ function splitCursor(cursor: string): [string, number] {
 	const at = cursor.lastIndexOf('_');
 	return [cursor.slice(0, at), Number(cursor.slice(at + 1))];
 }
+// Filter dates are plant dates: a day runs from plant midnight to the next plant midnight.
 const dayAfter = (day: string) =>
-	new Date(Date.parse(`${day}T00:00:00.000Z`) + 86_400_000).toISOString();
+	plantDayStart(new Date(Date.parse(day) + 86_400_000).toISOString().slice(0, 10));
 
 /**
  * Die ids a search names: the exact die when there is one, else dies whose number starts with
@@ -125,7 +127,7 @@ export async function listShotEntries(
 	}
 	if (query.source) q = q.where('e.source', '=', query.source);
 	if (machine) q = q.where('e.machine_id', '=', machine.id);
-	if (query.from) q = q.where('e.counted_at', '>=', `${query.from}T00:00:00.000Z`);
+	if (query.from) q = q.where('e.counted_at', '>=', plantDayStart(query.from));
 	if (query.to) q = q.where('e.counted_at', '<', dayAfter(query.to));
 	if (query.before) {
 		const [at, id] = splitCursor(query.before);

@@ -1,8 +1,10 @@
 import type SQLite from 'better-sqlite3';
+import { dateInZone, dateTimeInZone, wallClockToMs } from '../../calc/zone';
 import { rawHandle, type DB } from '../db/connect';
 import type { AlloyFamily, DieProcess, DieStatus, ShotSource } from '../db/schema';
 import { formatShots } from '../../format';
 import { dayOf } from '../time';
+import { plantZone } from '../../plant-time';
 import { maxShotsIn, maxShotsPerHour } from './plausibility';
 
 /** One counted entry as every source hands it in (form, CSV row, API object). */
@@ -191,6 +193,9 @@ function statements(raw: SQLite.Database) {
 		half: raw.prepare(`update die_halves set shots = shots + ? where id = ?`),
 		audit: raw.prepare(
 			`insert into audit_log (at, user_id, token_id, action, die_id, detail) values (?, ?, ?, ?, ?, ?)`
+		),
+		zone: raw.prepare<[], { time_zone: string }>(
+			`select time_zone from plant_settings where id = 1`
 		)
 	};
 }
@@ -241,24 +246,45 @@ function canonicalMs(t: string): number | null {
 
 /**
  * An instant as stored (ISO-8601 UTC) with its epoch milliseconds, or null when the text is not
- * a real date and time. A time without an offset is read as UTC — the one zone Castellan shows —
- * whatever the server's zone.
+ * a real date and time. A time without an offset is read as plant time (`zone`, the plant's
+ * time zone) whatever the server's zone; a plant clock time skipped when summer time starts is
+ * refused.
  */
-export function parseInstant(value: string): { iso: string; ms: number } | null {
+export function parseInstant(value: string, zone = 'UTC'): { iso: string; ms: number } | null {
 	let text = value.trim();
 	if (CANONICAL.test(text)) {
 		const ms = canonicalMs(text);
 		return ms === null ? null : { iso: text, ms };
 	}
-	if (LOCAL_DATE_TIME.test(text)) text = text.replace(' ', 'T') + 'Z';
+	if (LOCAL_DATE_TIME.test(text)) {
+		if (zone !== 'UTC') {
+			const ms = wallClockToMs(text, zone);
+			return ms === null ? null : { iso: new Date(ms).toISOString(), ms };
+		}
+		text = text.replace(' ', 'T') + 'Z';
+	}
 	if (!/^\d{4}-\d{2}-\d{2}/.test(text) || !calendarFieldsValid(text)) return null;
 	const ms = Date.parse(text);
 	return Number.isNaN(ms) ? null : { iso: new Date(ms).toISOString(), ms };
 }
 
 /** The stored form of an instant, or null (see parseInstant). */
-export function normalizeInstant(value: string): string | null {
-	return parseInstant(value)?.iso ?? null;
+export function normalizeInstant(value: string, zone = 'UTC'): string | null {
+	return parseInstant(value, zone)?.iso ?? null;
+}
+
+/** Why a counted-at was not read: not a date at all, or a plant clock time that does not exist. */
+export function unreadableTimeMessage(value: string, zone: string): string {
+	const text = value.trim();
+	if (zone !== 'UTC' && LOCAL_DATE_TIME.test(text) && parseInstant(text, 'UTC')) {
+		return `${text.replace('T', ' ')} does not exist in ${zone} (the clocks skip that hour when summer time starts).`;
+	}
+	return 'Counted-at is not a date and time (use 2026-03-01T14:30 plant time, or add Z or an offset).';
+}
+
+/** The plant's time zone as the ledger reads it (inside its transaction). */
+export function ledgerZone(raw: SQLite.Database): string {
+	return prepared(raw).zone.get()?.time_zone ?? 'UTC';
 }
 
 interface CheckedRow {
@@ -328,8 +354,7 @@ function latestBefore(list: number[] | undefined, value: number): number | null 
 }
 
 const isCount = (v: unknown): v is number => Number.isSafeInteger(v) && (v as number) >= 0;
-const shortTime = (ms: number) =>
-	`${new Date(ms).toISOString().slice(0, 16).replace('T', ' ')} UTC`;
+const shortTime = (ms: number, zone: string = plantZone()) => `${dateTimeInZone(ms, zone)} ${zone}`;
 
 const MIN_REASON = 5;
 const counterText = (start: number, end: number) => `${formatShots(start)} → ${formatShots(end)}`;
@@ -361,7 +386,7 @@ function checkRows(
 	raw: SQLite.Database,
 	inputs: ShotInput[],
 	actor: LedgerActor,
-	opts: { source: ShotSource; now: string; onWarning: 'refuse' | 'review' }
+	opts: { source: ShotSource; now: string; onWarning: 'refuse' | 'review'; zone: string }
 ): { issues: ShotIssue[]; rows: CheckedRow[] } {
 	const st = prepared(raw);
 	const issues: ShotIssue[] = [];
@@ -480,9 +505,10 @@ function checkRows(
 		let countedAt = opts.now;
 		let countedMs = nowMs;
 		if (input.countedAt !== undefined && input.countedAt !== null && input.countedAt !== '') {
-			const parsed = typeof input.countedAt === 'string' ? parseInstant(input.countedAt) : null;
+			const parsed =
+				typeof input.countedAt === 'string' ? parseInstant(input.countedAt, opts.zone) : null;
 			if (!parsed) {
-				return issue('countedAt', 'Counted-at is not a date and time (use 2026-03-01T14:30:00Z).');
+				return issue('countedAt', unreadableTimeMessage(String(input.countedAt), opts.zone));
 			}
 			countedAt = parsed.iso;
 			countedMs = parsed.ms;
@@ -646,7 +672,7 @@ function checkRows(
 				const limit = maxShotsIn(countedMs - previous, perHour);
 				if (shots > limit) {
 					warnings.push(
-						`${formatShots(shots)} shots between the previous count (${shortTime(previous)}) and this one (${shortTime(countedMs)}) is more than a press can plausibly make: at most ${formatShots(limit)} at ${formatShots(perHour)} shots/h.`
+						`${formatShots(shots)} shots between the previous count (${shortTime(previous, opts.zone)}) and this one (${shortTime(countedMs, opts.zone)}) is more than a press can plausibly make: at most ${formatShots(limit)} at ${formatShots(perHour)} shots/h.`
 					);
 				}
 			}
@@ -879,7 +905,8 @@ function recordRowsNow(
 	const { issues, rows } = checkRows(raw, inputs, actor, {
 		source,
 		now,
-		onWarning: options.onWarning ?? 'refuse'
+		onWarning: options.onWarning ?? 'refuse',
+		zone: ledgerZone(raw)
 	});
 	if (issues.length) return { ok: false, issues };
 	if (options.dryRun) {

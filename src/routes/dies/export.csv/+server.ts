@@ -5,6 +5,7 @@ import { getDb } from '$lib/server/db';
 import { listDies } from '$lib/server/dies/register';
 import { scopeOf } from '$lib/server/dies/scope';
 import { PLANT_ROLES } from '$lib/roles';
+import { plantToday } from '$lib/plant-time';
 import type { RequestHandler } from './$types';
 
 // The register as filtered on screen, every page of it.
@@ -13,7 +14,7 @@ export const GET: RequestHandler = async (event) => {
 	const query = dieListQuerySchema.parse(Object.fromEntries(event.url.searchParams));
 	const { rows } = await listDies(getDb(), { ...query, page: 1, size: 100_000 }, scopeOf(user));
 	return csvResponse(
-		`castellan-dies-${new Date().toISOString().slice(0, 10)}.csv`,
+		`castellan-dies-${plantToday()}.csv`,
 		[
 			'die',
 			'part',

@@ -4,6 +4,7 @@ import { csvResponse } from '$lib/server/csv';
 import { getDb } from '$lib/server/db';
 import { TOOLROOM_READERS } from '$lib/server/toolroom/access';
 import { listJobsForExport } from '$lib/server/toolroom/board';
+import { plantTimestamp, plantToday } from '$lib/plant-time';
 import type { RequestHandler } from './$types';
 
 // Every job matching the board's filters, open and closed, for a spreadsheet.
@@ -12,7 +13,7 @@ export const GET: RequestHandler = async (event) => {
 	const query = jobBoardQuerySchema.parse(Object.fromEntries(event.url.searchParams));
 	const rows = await listJobsForExport(getDb(), query);
 	return csvResponse(
-		`castellan-toolroom-jobs-${new Date().toISOString().slice(0, 10)}.csv`,
+		`castellan-toolroom-jobs-${plantToday()}.csv`,
 		[
 			'job',
 			'die',
@@ -43,8 +44,8 @@ export const GET: RequestHandler = async (event) => {
 			r.zone ?? '',
 			r.status,
 			r.assigneeName ?? '',
-			r.openedAt,
-			r.closedAt ?? '',
+			plantTimestamp(r.openedAt),
+			r.closedAt ? plantTimestamp(r.closedAt) : '',
 			r.shotsAtOpen,
 			r.shotsAtClose ?? '',
 			r.hours ?? '',

@@ -9,6 +9,7 @@ import {
 	pageOwnerDies
 } from '$lib/server/owner/portfolio';
 import { nowIso } from '$lib/server/time';
+import { plantDate, plantToday } from '$lib/plant-time';
 import type { RequestHandler } from './$types';
 
 // The owner's dies as filtered and sorted on screen, every page of them.
@@ -22,7 +23,7 @@ export const GET: RequestHandler = async (event) => {
 	]);
 	const { rows } = pageOwnerDies(dies, { ...query, page: 1, size: Number.MAX_SAFE_INTEGER });
 	return csvResponse(
-		`tooling-${customer?.code ?? 'owner'}-${nowIso().slice(0, 10)}.csv`,
+		`tooling-${customer?.code ?? 'owner'}-${plantToday(nowIso())}.csv`,
 		[
 			'die',
 			'part',
@@ -50,7 +51,7 @@ export const GET: RequestHandler = async (event) => {
 			d.lifeUsedPct.toFixed(1),
 			d.shotsLast28Days,
 			d.projectedEndOfLife ?? '',
-			d.retiredAt?.slice(0, 10) ?? '',
+			d.retiredAt ? plantDate(d.retiredAt) : '',
 			d.nextService?.kind ?? '',
 			d.nextService?.state ?? '',
 			describeLastJob(d.lastJob)

@@ -5,6 +5,7 @@ import { requireOwner } from '$lib/server/owner/guard';
 import { readPlantName } from '$lib/server/owner/plant-name';
 import { getOwnerStatement } from '$lib/server/owner/statement';
 import { renderStatementPdf } from '$lib/server/owner/statement-pdf';
+import { plantDate } from '$lib/plant-time';
 import type { RequestHandler } from './$types';
 
 // The owner's tooling statement as a PDF to file: only its own dies, as of now.
@@ -14,7 +15,7 @@ export const GET: RequestHandler = async (event) => {
 	if (!statement) error(404, { message: 'There is no statement for your account.' });
 	const plantName = readPlantName(env);
 	const pdf = await renderStatementPdf(statement, plantName);
-	const name = `tooling-statement-${statement.customer.code}-${statement.asOf.slice(0, 10)}.pdf`;
+	const name = `tooling-statement-${statement.customer.code}-${plantDate(statement.asOf)}.pdf`;
 	return new Response(new Uint8Array(pdf), {
 		headers: {
 			'content-type': 'application/pdf',

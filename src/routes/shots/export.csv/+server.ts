@@ -4,10 +4,12 @@ import { csvResponse } from '$lib/server/csv';
 import { getDb } from '$lib/server/db';
 import { listShotEntries, SHOT_EXPORT_LIMIT } from '$lib/server/shots/ledger-list';
 import { SHOT_RECORDERS } from '$lib/roles';
+import { plantTimestamp, plantToday } from '$lib/plant-time';
 import type { RequestHandler } from './$types';
 
 // The ledger as filtered on screen, newest first, up to SHOT_EXPORT_LIMIT rows (narrow the dates
 // for more). Columns match what the CSV upload reads, plus who counted and when it was entered.
+// Times are plant time with their UTC offset, so the file reads back to the same instants.
 export const GET: RequestHandler = async (event) => {
 	requireRole(event, ...SHOT_RECORDERS);
 	const query = shotListQuerySchema.parse(Object.fromEntries(event.url.searchParams));
@@ -17,7 +19,7 @@ export const GET: RequestHandler = async (event) => {
 		SHOT_EXPORT_LIMIT
 	);
 	return csvResponse(
-		`castellan-shots-${new Date().toISOString().slice(0, 10)}.csv`,
+		`castellan-shots-${plantToday()}.csv`,
 		[
 			'die',
 			'counted_at',
@@ -36,7 +38,7 @@ export const GET: RequestHandler = async (event) => {
 		],
 		rows.map((r) => [
 			r.die,
-			r.countedAt,
+			plantTimestamp(r.countedAt),
 			r.shots,
 			r.counterStart ?? '',
 			r.counterEnd ?? '',
@@ -45,7 +47,7 @@ export const GET: RequestHandler = async (event) => {
 			r.key ?? '',
 			r.note ?? '',
 			r.enteredBy ?? r.token ?? '',
-			r.createdAt,
+			plantTimestamp(r.createdAt),
 			r.voidedAt ? 'voided' : (r.reviewState ?? 'counted'),
 			r.voidReason ?? ''
 		])

@@ -2,6 +2,7 @@ import { fail, redirect } from '@sveltejs/kit';
 import { setError, superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
 import { pressRunSchema, pressRunShots } from '$lib/schemas/shots';
+import { toPlantInput } from '$lib/plant-time';
 import { requireRole } from '$lib/server/auth/guard';
 import { getDb } from '$lib/server/db';
 import { findDieShotSummary } from '$lib/server/shots/die-summary';
@@ -10,7 +11,7 @@ import { listActiveDieChoices, listPresses } from '$lib/server/shots/ledger-list
 import { SHOT_RECORDERS } from '$lib/roles';
 import type { Actions, PageServerLoad } from './$types';
 
-const nowLocal = () => new Date().toISOString().slice(0, 16);
+const nowLocal = () => toPlantInput(Date.now());
 function wholeNumber(v: string | null): number | undefined {
 	return v !== null && /^\d{1,12}$/.test(v.trim()) ? Number(v.trim()) : undefined;
 }

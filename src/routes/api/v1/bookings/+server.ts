@@ -14,7 +14,7 @@ import {
 import { nowIso } from '$lib/server/time';
 
 // GET /api/v1/bookings?from=YYYY-MM-DD&to=YYYY-MM-DD[&die=&press=&cancelled=1] — bookings that
-// overlap the days from..to (UTC, both included). A customer-bound caller sees its own dies only.
+// overlap the days from..to (plant days, both included). A customer-bound caller sees its own dies only.
 export const GET = apiRoute(async (event) => {
 	const principal = await authorizeApi(event, 'dies:read');
 	const parsed = bookingWindowQuerySchema.safeParse(Object.fromEntries(event.url.searchParams));

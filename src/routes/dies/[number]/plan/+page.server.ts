@@ -19,6 +19,7 @@ import {
 	type PlanResult
 } from '$lib/server/dies/service-plan';
 import { nowIso } from '$lib/server/time';
+import { plantToday } from '$lib/plant-time';
 import { DIE_EDITORS, PLANT_ROLES, type RoleName } from '$lib/roles';
 import type { Actions, PageServerLoad } from './$types';
 
@@ -29,7 +30,7 @@ export const load: PageServerLoad = async (event) => {
 	const user = requireRole(event, ...PLANT_ROLES);
 	const { die, life } = await event.parent();
 	const asOf = nowIso();
-	const today = asOf.slice(0, 10);
+	const today = plantToday(asOf);
 	const plan = await listServicePlan(getDb(), die, life.shotsPerDay, asOf);
 	const tasks = await Promise.all(
 		plan.tasks.map(async (t) => {
