@@ -1,13 +1,21 @@
 import type { Generated, Insertable, Selectable, Updateable } from 'kysely';
 
-import type { AlloyFamily, DieProcess, DieStatus, HalfSide, Role, ShotSource } from '../../domain';
+import type {
+	AlloyFamily,
+	DieProcess,
+	DieStatus,
+	HalfSide,
+	RetirementReason,
+	Role,
+	ShotSource
+} from '../../domain';
 
 import type { ToolroomTables } from './schema-toolroom';
 import type { ScheduleTables } from './schema-schedule';
 import type { NoticesTables } from './schema-notices';
 import type { InvitationsTables } from './schema-invitations';
 
-export type { AlloyFamily, DieProcess, DieStatus, HalfSide, Role, ShotSource };
+export type { AlloyFamily, DieProcess, DieStatus, HalfSide, RetirementReason, Role, ShotSource };
 
 /** 0/1 integer as SQLite stores booleans. */
 export type Flag = number;
@@ -106,6 +114,10 @@ export interface DiesTable {
 	created_at: Generated<string>;
 	updated_at: Generated<string>;
 	retired_at: string | null;
+	/** The die's own intensification (metal) pressure, bar; null = the family default. */
+	metal_pressure_bar: number | null;
+	/** Set when retired: why (only worn_out and cracked are wear failures). */
+	retirement_reason: RetirementReason | null;
 }
 
 export interface DieHalvesTable {
@@ -121,6 +133,8 @@ export interface DieHalvesTable {
 	die_shots_at_install: Generated<number>;
 	removed_at: string | null;
 	removal_reason: string | null;
+	/** Optional picture of the half for picking surface zones (photos.id). */
+	picture_photo_id: number | null;
 }
 
 export interface ShotEntriesTable {
