@@ -5,48 +5,91 @@ import { z } from 'zod';
 const optionalText = (max: number) =>
 	z.string().trim().max(max, `Keep it under ${max} characters.`).default('');
 
+/** Units a die's metal pressure may be entered in; stored as bar. */
+export const PRESSURE_UNITS = ['bar', 'MPa', 'psi'] as const;
+export type PressureUnit = (typeof PRESSURE_UNITS)[number];
+const BAR_PER_UNIT: Record<PressureUnit, number> = {
+	bar: 1,
+	MPa: 10, // 1 MPa = 10⁶ Pa = 10 bar (unit definition)
+	psi: 6894.757293168 / 1e5 // 1 psi = 6 894.757 Pa (unit definition: lbf/in²)
+};
+/** Lowest and highest metal pressure Castellan takes, bar: die casting spans about 7–7 000 bar
+ * overall, but die-casting intensification pressures sit roughly between 50 and 2 000 bar
+ * (*common practice*, ../shared/REFERENCES.md "Process facts"). */
+export const METAL_PRESSURE_RANGE_BAR = { min: 50, max: 2000 } as const;
+
+/** The form's pressure in bar; null when left empty (the family default applies). */
+export function metalPressureBarOf(form: {
+	metalPressure?: number;
+	metalPressureUnit?: PressureUnit;
+}): number | null {
+	if (form.metalPressure === undefined) return null;
+	const perUnit = BAR_PER_UNIT[form.metalPressureUnit ?? 'bar'];
+	return Math.round(form.metalPressure * perUnit * 10) / 10;
+}
+
 export const dieNumberPattern = /^[A-Z0-9][A-Z0-9-]{1,19}$/;
 
-export const dieFormSchema = z.object({
-	number: z
-		.string()
-		.trim()
-		.toUpperCase()
-		.regex(dieNumberPattern, 'Use 2–20 capital letters, digits or dashes, e.g. D-0147.'),
-	partName: z
-		.string()
-		.trim()
-		.min(1, 'Name the part this die casts.')
-		.max(120, 'Keep it under 120 characters.'),
-	partNumber: optionalText(60),
-	customerId: z.coerce.number({ error: 'Choose the owner.' }).int().positive('Choose the owner.'),
-	alloyId: z.coerce.number({ error: 'Choose the alloy.' }).int().positive('Choose the alloy.'),
-	process: z.enum(['hot_chamber', 'cold_chamber'], { error: 'Choose hot or cold chamber.' }),
-	cavities: z.coerce
-		.number({ error: 'Enter the number of cavities.' })
-		.int('Cavities must be a whole number.')
-		.min(1, 'A die has at least one cavity.')
-		.max(128, 'More than 128 cavities is not plausible.'),
-	projectedAreaCm2: z.coerce
-		.number({ error: 'Enter the projected area in cm².' })
-		.gt(0, 'The projected area must be greater than 0.')
-		.max(50000, 'More than 50 000 cm² is not plausible for a die-casting die.'),
-	hasSlides: z.boolean().default(false),
-	location: optionalText(60),
-	notes: optionalText(2000),
-	expectedLifeShots: z.preprocess(
-		(v) => (v === '' || v === null || v === undefined ? undefined : v),
-		z.coerce
-			.number()
-			.int('Enter whole shots.')
-			.positive('Expected life must be above 0.')
-			.max(10_000_000, 'More than 10 million shots is not plausible.')
-			.optional()
-	),
-	coverSerial: z.string().trim().max(40, 'Keep it under 40 characters.').optional(),
-	ejectorSerial: z.string().trim().max(40, 'Keep it under 40 characters.').optional(),
-	steel: z.string().trim().max(40, 'Keep it under 40 characters.').default('H13')
-});
+export const dieFormSchema = z
+	.object({
+		number: z
+			.string()
+			.trim()
+			.toUpperCase()
+			.regex(dieNumberPattern, 'Use 2–20 capital letters, digits or dashes, e.g. D-0147.'),
+		partName: z
+			.string()
+			.trim()
+			.min(1, 'Name the part this die casts.')
+			.max(120, 'Keep it under 120 characters.'),
+		partNumber: optionalText(60),
+		customerId: z.coerce.number({ error: 'Choose the owner.' }).int().positive('Choose the owner.'),
+		alloyId: z.coerce.number({ error: 'Choose the alloy.' }).int().positive('Choose the alloy.'),
+		process: z.enum(['hot_chamber', 'cold_chamber'], { error: 'Choose hot or cold chamber.' }),
+		cavities: z.coerce
+			.number({ error: 'Enter the number of cavities.' })
+			.int('Cavities must be a whole number.')
+			.min(1, 'A die has at least one cavity.')
+			.max(128, 'More than 128 cavities is not plausible.'),
+		projectedAreaCm2: z.coerce
+			.number({ error: 'Enter the projected area in cm².' })
+			.gt(0, 'The projected area must be greater than 0.')
+			.max(50000, 'More than 50 000 cm² is not plausible for a die-casting die.'),
+		hasSlides: z.boolean().default(false),
+		metalPressure: z.preprocess(
+			(v) => (v === '' || v === null || v === undefined ? undefined : v),
+			z.coerce
+				.number({ error: 'Enter the metal pressure as a number, or leave it empty.' })
+				.positive('The metal pressure must be above 0.')
+				.optional()
+		),
+		metalPressureUnit: z.enum(PRESSURE_UNITS).optional(),
+		location: optionalText(60),
+		notes: optionalText(2000),
+		expectedLifeShots: z.preprocess(
+			(v) => (v === '' || v === null || v === undefined ? undefined : v),
+			z.coerce
+				.number()
+				.int('Enter whole shots.')
+				.positive('Expected life must be above 0.')
+				.max(10_000_000, 'More than 10 million shots is not plausible.')
+				.optional()
+		),
+		coverSerial: z.string().trim().max(40, 'Keep it under 40 characters.').optional(),
+		ejectorSerial: z.string().trim().max(40, 'Keep it under 40 characters.').optional(),
+		steel: z.string().trim().max(40, 'Keep it under 40 characters.').default('H13')
+	})
+	.superRefine((form, ctx) => {
+		const bar = metalPressureBarOf(form);
+		const { min, max } = METAL_PRESSURE_RANGE_BAR;
+		if (bar !== null && (bar < min || bar > max)) {
+			ctx.addIssue({
+				code: 'custom',
+				path: ['metalPressure'],
+				message: `That is ${Math.round(bar)} bar; die-casting metal pressures lie between ${min} and ${max} bar. Check the figure and its unit.`
+			});
+		}
+	});
 export type DieForm = z.infer<typeof dieFormSchema>;
 
 export const dieStatusSchema = z.object({

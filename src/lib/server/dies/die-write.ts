@@ -1,6 +1,6 @@
 import type { DB } from '../db/connect';
 import type { DieStatus } from '../db/schema';
-import type { DieForm } from '../../schemas/die';
+import { metalPressureBarOf, type DieForm } from '../../schemas/die';
 import { writeAudit } from '../audit';
 import { nowIso } from '../time';
 
@@ -44,6 +44,7 @@ function registerColumns(form: DieForm) {
 		cavities: form.cavities,
 		projected_area_cm2: form.projectedAreaCm2,
 		has_slides: form.hasSlides ? 1 : 0,
+		metal_pressure_bar: metalPressureBarOf(form),
 		location: form.location || null,
 		notes: form.notes || null,
 		expected_life_shots: form.expectedLifeShots ?? null

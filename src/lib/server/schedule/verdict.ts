@@ -1,6 +1,6 @@
 import {
 	CLAMP_SAFETY_FACTOR,
-	defaultMetalPressureBar,
+	effectiveMetalPressureBar,
 	requiredClampForceKn
 } from '../../calc/clamp';
 import { TYPICAL_SHOTS_PER_HOUR } from '../../calc/life';
@@ -78,7 +78,6 @@ export interface ClampFigures {
 	formula: string;
 }
 
-
 export interface CheckOptions {
 	now?: string;
 	scope?: DieScope;
@@ -117,13 +116,10 @@ export type Evaluation =
  * pressure, or the family default where none is recorded.
  */
 export function dieClampRequirement(
-	die: Pick<
-		DieFacts,
-		'process' | 'family' | 'projectedAreaCm2' | 'hasSlides' | 'metalPressureBar'
-	>
+	die: Pick<DieFacts, 'process' | 'family' | 'projectedAreaCm2' | 'hasSlides' | 'metalPressureBar'>
 ) {
 	const pressureIsDefault = die.metalPressureBar === null;
-	const metalPressureBar = die.metalPressureBar ?? defaultMetalPressureBar(die.process, die.family);
+	const metalPressureBar = effectiveMetalPressureBar(die.metalPressureBar, die.process, die.family);
 	const factor = die.hasSlides ? CLAMP_SAFETY_FACTOR.withSlides : CLAMP_SAFETY_FACTOR.withoutSlides;
 	return {
 		metalPressureBar,
@@ -442,11 +438,18 @@ export interface AssessInput {
 export type Assessment = Extract<Evaluation, { ok: true }>;
 
 /** The run's window: from the start (now when not given) to the end (when its shots are done). */
-export function runWindow(draft: BookingDraft, shotsNeeded: number, shotsPerHour: number, now: string) {
+export function runWindow(
+	draft: BookingDraft,
+	shotsNeeded: number,
+	shotsPerHour: number,
+	now: string
+) {
 	const startsAt = draft.startsAt ?? now;
 	const endsAt =
 		draft.endsAt ??
-		new Date(Date.parse(startsAt) + Math.ceil((shotsNeeded / shotsPerHour) * HOUR_MS)).toISOString();
+		new Date(
+			Date.parse(startsAt) + Math.ceil((shotsNeeded / shotsPerHour) * HOUR_MS)
+		).toISOString();
 	return { startsAt, endsAt };
 }
 

@@ -2,7 +2,7 @@ import { json } from '@sveltejs/kit';
 import { ApiError, apiRoute } from '$lib/server/api/respond';
 import { authorizeApi } from '$lib/server/auth/principal';
 import { getDb } from '$lib/server/db';
-import { dieApiView } from '$lib/server/dies/api-view';
+import { dieApiView, dieMetalPressureView } from '$lib/server/dies/api-view';
 import { findDie, dieLife } from '$lib/server/dies/die-detail';
 import { worstTasks } from '$lib/server/dies/register';
 import { nowIso } from '$lib/server/time';
@@ -33,6 +33,7 @@ export const GET = apiRoute(async (event) => {
 			lifeUsedPct: life.lifeUsedPct,
 			nextService: die.status === 'retired' ? null : (tasks.get(die.id) ?? null)
 		}),
+		...dieMetalPressureView(die),
 		shotsPerDay: life.shotsPerDay,
 		projectedEndOfLife: life.projectedEndOfLife
 	});
