@@ -9,6 +9,16 @@ import { createApiToken } from '../../src/lib/server/auth/tokens';
 import { seedScheduleDemo } from './demo-schedule';
 import { seedDemoShots } from './demo-shots';
 import { seedToolroomDemo } from './demo-toolroom';
+import { RETIREMENT_REASONS, type RetirementReason } from '../../src/lib/domain';
+
+const DEMO_RETIREMENT_NOTES: Record<RetirementReason, string> = {
+	worn_out: 'Heat checking over the whole cavity; owner approved a replacement die',
+	cracked: 'Gross crack through the cover insert; beyond weld repair',
+	damaged: 'Die closed on a stuck casting; ejector half broken',
+	obsolete: 'Customer ended the part; die kept on the rack',
+	transferred: 'Moved to the sister plant with the part',
+	recalled: 'Owner took the tool back'
+};
 
 export const DEMO_PASSWORD = 'castellan-demo';
 export const DEMO_PLANT = 'Kestrel Vale Diecast Works';
@@ -269,6 +279,7 @@ export async function seedDemo(
 	}
 
 	let entries = 0;
+	let retiredSoFar = 0;
 	for (const [n, spec] of specs.entries()) {
 		const number = `D-${String(101 + n).padStart(4, '0')}`;
 		const alloy = alloys.get(spec.alloy)!;
@@ -309,6 +320,12 @@ export async function seedDemo(
 				cavities: spec.cavities,
 				projected_area_cm2: spec.area,
 				has_slides: spec.slides ? 1 : 0,
+				// Some cold-chamber aluminium dies record their own, higher intensification pressure
+				// (invented process sheets); the rest use the family default.
+				metal_pressure_bar:
+					spec.family === 'aluminium' && spec.process === 'cold_chamber' && n % 4 === 1
+						? 1000 + 50 * (n % 3)
+						: null,
 				status: 'ready',
 				location: `Rack ${'ABCDEF'[n % 6]}-${1 + (n % 8)}`,
 				notes: null,
@@ -407,13 +424,18 @@ export async function seedDemo(
 				})
 				.execute();
 		}
+		// Retirements cycle through every reason, so the fleet page has wear failures (worn out,
+		// cracked) and suspensions (accident, obsolete part, transfer, recall) to show.
+		const retirementReason = retired
+			? RETIREMENT_REASONS[retiredSoFar++ % RETIREMENT_REASONS.length]
+			: null;
 		if (status !== 'ready') {
 			const at = retired
 				? new Date(now.getTime() - (HISTORY_DAYS - endDay) * DAY).toISOString()
 				: nowIso;
 			await db
 				.updateTable('dies')
-				.set({ status, retired_at: retired ? at : null })
+				.set({ status, retired_at: retired ? at : null, retirement_reason: retirementReason })
 				.where('id', '=', die.id)
 				.execute();
 			await db
@@ -426,8 +448,8 @@ export async function seedDemo(
 					detail: JSON.stringify({
 						from: 'ready',
 						to: status,
-						reason: retired
-							? 'Gross cracking across the cavity; owner approved replacement'
+						reason: retirementReason
+							? DEMO_RETIREMENT_NOTES[retirementReason]
 							: status === 'held'
 								? 'Porosity complaint from the customer; awaiting decision'
 								: status === 'in_toolroom'

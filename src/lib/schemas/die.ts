@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { RETIREMENT_REASONS } from '../domain';
 
 // Optional text stays a string ('' when empty) so the form can round-trip it; the server stores
 // empty text as null.
@@ -92,12 +93,31 @@ export const dieFormSchema = z
 	});
 export type DieForm = z.infer<typeof dieFormSchema>;
 
-export const dieStatusSchema = z.object({
-	status: z.enum(['ready', 'running', 'in_toolroom', 'held', 'retired'], {
-		error: 'Choose a status.'
-	}),
-	reason: z.string().trim().min(3, 'Give a reason of at least 3 characters.').max(500)
-});
+export const dieStatusSchema = z
+	.object({
+		status: z.enum(['ready', 'running', 'in_toolroom', 'held', 'retired'], {
+			error: 'Choose a status.'
+		}),
+		reason: z.string().trim().min(3, 'Give a reason of at least 3 characters.').max(500),
+		/** Asked when retiring: only worn out and cracked count as wear failures in the fleet fit. */
+		retirementReason: z.enum([...RETIREMENT_REASONS, '']).default('')
+	})
+	.superRefine((form, ctx) => {
+		if (form.status === 'retired' && form.retirementReason === '') {
+			ctx.addIssue({
+				code: 'custom',
+				path: ['retirementReason'],
+				message: 'Say why the die is retired.'
+			});
+		}
+		if (form.status !== 'retired' && form.retirementReason !== '') {
+			ctx.addIssue({
+				code: 'custom',
+				path: ['retirementReason'],
+				message: 'A retirement reason goes only with moving the die to retired.'
+			});
+		}
+	});
 
 export const dieListQuerySchema = z.object({
 	q: z.string().trim().max(80).catch(''),

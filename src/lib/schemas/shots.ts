@@ -165,4 +165,3 @@ export const shotListQuerySchema = z.object({
 	size: z.coerce.number().int().min(10).max(200).catch(50)
 });
 export type ShotListQuery = z.infer<typeof shotListQuerySchema>;
-

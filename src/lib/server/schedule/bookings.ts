@@ -66,7 +66,8 @@ export async function createBooking(
 			unitSystem: options.unitSystem
 		});
 		if (!ev.ok) return { ok: false, kind: 'invalid', field: ev.field, message: ev.message };
-		if (!ev.press) return { ok: false, kind: 'invalid', field: 'press', message: 'Choose a press.' };
+		if (!ev.press)
+			return { ok: false, kind: 'invalid', field: 'press', message: 'Choose a press.' };
 		if (ev.blocks.length > 0)
 			return { ok: false, kind: 'blocked', blocks: ev.blocks, warnings: ev.warnings };
 		if (!warningsAccepted(ev.warnings, options.confirm)) {

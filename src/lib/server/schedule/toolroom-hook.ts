@@ -38,7 +38,16 @@ export async function listOpenToolroomJobs(db: DB, dieIds?: readonly number[]): 
 	if (dieIds && dieIds.length === 0) return [];
 	const rows = await db
 		.selectFrom('toolroom_jobs')
-		.select(['die_id', 'number', 'kind', 'status', 'opened_at', 'description', 'die_to_toolroom', 'expected_release_at'])
+		.select([
+			'die_id',
+			'number',
+			'kind',
+			'status',
+			'opened_at',
+			'description',
+			'die_to_toolroom',
+			'expected_release_at'
+		])
 		.where('status', 'in', [...OPEN_STATUSES])
 		.$if(dieIds !== undefined, (q) => q.where('die_id', 'in', [...dieIds!]))
 		.orderBy('opened_at')
