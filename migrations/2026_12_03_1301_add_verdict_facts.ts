@@ -15,6 +15,10 @@ import { sql, type Kysely } from 'kysely';
 // - job_repairs: which zones a toolroom job repaired, and how (weld, insert change, re-machining);
 //   a crack series restarts after such a repair.
 // - die_halves.picture_photo_id: an optional picture of the half to pick zones from.
+// - alloys.specific_heat_liquid_j_kgk: the liquid's specific heat, apart from the solid's. The
+//   reference alloys get their base metal's liquid heat capacity (NIST-JANAF, from memory: Al
+//   1 177, Mg 1 411, Zn 480, Cu 516 J/(kg·K)); plant-added alloys stay empty and the heat balance
+//   uses the solid's value for them, saying so.
 // - toolroom_jobs.expected_release_at: when the toolroom expects to give the die back (optional).
 
 export async function up(db: Kysely<any>): Promise<void> {
@@ -73,7 +77,10 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addColumn('job_id', 'integer', (c) => c.notNull().references('toolroom_jobs.id'))
 		.addColumn('zone_id', 'integer', (c) => c.notNull().references('die_zones.id'))
 		.addColumn('kind', 'text', (c) => c.notNull())
-		.addCheckConstraint('job_repairs_kind_check', sql`kind in ('weld','insert_change','remachining')`)
+		.addCheckConstraint(
+			'job_repairs_kind_check',
+			sql`kind in ('weld','insert_change','remachining')`
+		)
 		.execute();
 	await db.schema
 		.createIndex('job_repairs_unique')
@@ -87,9 +94,26 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addColumn('picture_photo_id', 'integer', (c) => c.references('photos.id'))
 		.execute();
 	await db.schema.alterTable('toolroom_jobs').addColumn('expected_release_at', 'text').execute();
+
+	await db.schema.alterTable('alloys').addColumn('specific_heat_liquid_j_kgk', 'real').execute();
+	for (const [code, cp] of [
+		['ZP0400', 480],
+		['ZP0410', 480],
+		['AZ91D', 1411],
+		['A380', 1177],
+		['EN-AC-46000', 1177],
+		['CW617N', 516]
+	] as const) {
+		await db
+			.updateTable('alloys')
+			.set({ specific_heat_liquid_j_kgk: cp })
+			.where('code', '=', code)
+			.execute();
+	}
 }
 
 export async function down(db: Kysely<any>): Promise<void> {
+	await db.schema.alterTable('alloys').dropColumn('specific_heat_liquid_j_kgk').execute();
 	await db.schema.alterTable('toolroom_jobs').dropColumn('expected_release_at').execute();
 	await db.schema.alterTable('die_halves').dropColumn('picture_photo_id').execute();
 	await db.schema.dropTable('job_repairs').execute();

@@ -76,6 +76,8 @@ export interface AlloysTable {
 	expected_life_shots: number;
 	density_kg_m3: number | null;
 	specific_heat_j_kgk: number | null;
+	/** Specific heat of the liquid; null = not recorded (the solid's value stands in). */
+	specific_heat_liquid_j_kgk: number | null;
 	latent_heat_j_kg: number | null;
 	solidus_c: number | null;
 	liquidus_c: number | null;
