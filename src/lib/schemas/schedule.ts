@@ -113,7 +113,7 @@ const bookingFields = {
 			.number({ error: 'Enter scrap as a percentage.' })
 			.min(0, 'Scrap cannot be below 0 %.')
 			.max(90, 'Scrap above 90 % is not plausible.')
-			.default(0)
+			.default(DEFAULT_SCRAP_PCT)
 	),
 	shotsPerHour: optionalPositive('planned shots per hour', MAX_PLAUSIBLE_SHOTS_PER_HOUR),
 	notes: optionalText(1000)

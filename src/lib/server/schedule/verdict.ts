@@ -437,7 +437,11 @@ export interface AssessInput {
 
 export type Assessment = Extract<Evaluation, { ok: true }>;
 
-/** The run's window: from the start (now when not given) to the end (when its shots are done). */
+/**
+ * The run's window: from the start (now when not given) to the end — when given, as booked;
+ * otherwise when its shots are done at the rate, rounded up to the whole minute so that a booking
+ * made for exactly this window (booking times are kept to the minute) is judged the same.
+ */
 export function runWindow(
 	draft: BookingDraft,
 	shotsNeeded: number,
@@ -445,10 +449,13 @@ export function runWindow(
 	now: string
 ) {
 	const startsAt = draft.startsAt ?? now;
+	const MINUTE_MS = 60_000;
 	const endsAt =
 		draft.endsAt ??
 		new Date(
-			Date.parse(startsAt) + Math.ceil((shotsNeeded / shotsPerHour) * HOUR_MS)
+			Math.ceil(
+				(Date.parse(startsAt) + Math.ceil((shotsNeeded / shotsPerHour) * HOUR_MS)) / MINUTE_MS
+			) * MINUTE_MS
 		).toISOString();
 	return { startsAt, endsAt };
 }
