@@ -128,6 +128,7 @@ export const ACTIONS: Record<string, Cells> = {
 	'/dies/[number]/shots?/correct': roles(...LEADS),
 	'/dies/[number]/shots?/replaceHalf': roles(...LEADS),
 	'/dies/[number]/surface?/inspect': roles(...WORKERS),
+	'/dies/[number]/surface?/zone': roles(...LEADS),
 	'/dies/new?/default': roles(...LEADS),
 	'/invite/[token]?/default': everyone('ok'),
 	'/jobs/[job]?/assign': roles(...WORKERS),

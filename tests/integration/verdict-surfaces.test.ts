@@ -101,7 +101,8 @@ async function bookingFormVerdict(
 	try {
 		const result = await actions.default(event(url, { request }));
 		if (isActionFailure(result)) {
-			const kind = (result.data as { form: { message?: { kind: string } } }).form.message?.kind;
+			const kind = (result.data as unknown as { form: { message?: { kind: string } } }).form.message
+				?.kind;
 			if (kind === 'blocked') return 'blocked';
 			if (kind === 'confirm') return 'warning';
 		}

@@ -262,3 +262,13 @@ export const photoShareSchema = z.object({
 		.regex(/^[A-Za-z0-9_-]{16,40}$/, 'Unknown photo.'),
 	shared: z.enum(['0', '1']).transform((v) => v === '1')
 });
+
+/** A zone the toolroom lead adds to a die's list (one half). */
+export const zoneSchema = z.object({
+	half: z.enum(['cover', 'ejector'], { error: 'Choose the half.' }),
+	name: z
+		.string()
+		.trim()
+		.min(2, 'Name the zone, e.g. gate side or cavity 2.')
+		.max(60, 'Keep the zone name under 60 characters.')
+});

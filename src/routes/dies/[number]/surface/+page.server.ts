@@ -1,14 +1,20 @@
 import { fail } from '@sveltejs/kit';
-import { message, superValidate } from 'sveltekit-superforms';
+import { message, setError, superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
-import { inspectionSchema, MAX_PHOTOS_PER_UPLOAD } from '$lib/schemas/toolroom';
+import { inspectionSchema, MAX_PHOTOS_PER_UPLOAD, zoneSchema } from '$lib/schemas/toolroom';
 import { requireRole } from '$lib/server/auth/guard';
 import { getDb } from '$lib/server/db';
 import { loadPlantDie } from '$lib/server/dies/load-die';
 import { MAX_PHOTO_BYTES, MAX_PHOTO_PIXELS } from '$lib/server/photos/process-image';
 import { selectedFiles } from '$lib/server/photos/store';
 import { getUploadDir } from '$lib/server/photos/upload-dir';
-import { canWorkToolroom, TOOLROOM_READERS, TOOLROOM_WORKERS } from '$lib/server/toolroom/access';
+import {
+	canWorkToolroom,
+	TOOLROOM_LEADS,
+	TOOLROOM_READERS,
+	TOOLROOM_WORKERS
+} from '$lib/server/toolroom/access';
+import { addDieZone, listDieZones } from '$lib/server/toolroom/zones';
 import {
 	findComparePhotos,
 	getSurfaceOverview,
@@ -21,12 +27,14 @@ export const load: PageServerLoad = async (event) => {
 	const die = await loadPlantDie(event.params.number);
 	const db = getDb();
 	const params = event.url.searchParams;
-	const [overview, compare, form] = await Promise.all([
+	const [overview, compare, form, zoneList, zoneForm] = await Promise.all([
 		getSurfaceOverview(db, die, { zone: params.get('zone') }),
 		findComparePhotos(db, die.id, [params.get('a') ?? '', params.get('b') ?? '']),
 		superValidate({ shotsAt: die.total_shots, half: 'cover' }, zod4(inspectionSchema), {
 			errors: false
-		})
+		}),
+		listDieZones(db, die.id),
+		superValidate(zod4(zoneSchema), { id: 'zone' })
 	]);
 	return {
 		...overview,
@@ -34,6 +42,9 @@ export const load: PageServerLoad = async (event) => {
 		compareIds: { a: params.get('a') ?? '', b: params.get('b') ?? '' },
 		form,
 		canWork: canWorkToolroom(user.role),
+		zoneList,
+		zoneForm,
+		canKeepZones: TOOLROOM_LEADS.includes(user.role),
 		limits: {
 			maxFiles: MAX_PHOTOS_PER_UPLOAD,
 			maxMb: Math.round(MAX_PHOTO_BYTES / 1024 / 1024),
@@ -43,6 +54,18 @@ export const load: PageServerLoad = async (event) => {
 };
 
 export const actions: Actions = {
+	zone: async (event) => {
+		const user = requireRole(event, ...TOOLROOM_LEADS);
+		const die = await loadPlantDie(event.params.number);
+		const form = await superValidate(event.request, zod4(zoneSchema), { id: 'zone' });
+		if (!form.valid) return fail(400, { zoneForm: form });
+		const result = await addDieZone(getDb(), die.id, form.data, {
+			userId: user.id,
+			role: user.role
+		});
+		if (!result.ok) return setError(form, 'name', result.message);
+		return message(form, `Zone “${form.data.name}” added to the ${form.data.half} half.`);
+	},
 	inspect: async (event) => {
 		const user = requireRole(event, ...TOOLROOM_WORKERS);
 		const die = await loadPlantDie(event.params.number);
