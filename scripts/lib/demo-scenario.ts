@@ -11,6 +11,15 @@ import { seedDemoShots } from './demo-shots';
 import { seedToolroomDemo } from './demo-toolroom';
 import { RETIREMENT_REASONS, type RetirementReason } from '../../src/lib/domain';
 
+const DEMO_RETIREMENT_ORDER: RetirementReason[] = [
+	'worn_out',
+	'cracked',
+	'obsolete',
+	'worn_out',
+	'damaged',
+	...RETIREMENT_REASONS.filter((r) => r === 'transferred' || r === 'recalled')
+];
+
 const DEMO_RETIREMENT_NOTES: Record<RetirementReason, string> = {
 	worn_out: 'Heat checking over the whole cavity; owner approved a replacement die',
 	cracked: 'Gross crack through the cover insert; beyond weld repair',
@@ -424,10 +433,10 @@ export async function seedDemo(
 				})
 				.execute();
 		}
-		// Retirements cycle through every reason, so the fleet page has wear failures (worn out,
-		// cracked) and suspensions (accident, obsolete part, transfer, recall) to show.
+		// Retirements of both groups: wear failures (worn out, cracked) and suspensions (obsolete
+		// part, accident), keeping three failures so the aluminium fleet still has a fit.
 		const retirementReason = retired
-			? RETIREMENT_REASONS[retiredSoFar++ % RETIREMENT_REASONS.length]
+			? DEMO_RETIREMENT_ORDER[retiredSoFar++ % DEMO_RETIREMENT_ORDER.length]
 			: null;
 		if (status !== 'ready') {
 			const at = retired
