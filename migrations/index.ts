@@ -9,6 +9,7 @@ import * as createInvitations from './2026_12_01_2340_create_invitations';
 import * as addLedgerReview from './2026_12_03_1001_add_ledger_review';
 import * as addRecordVoids from './2026_12_03_1101_add_record_voids';
 import * as createPlantSettings from './2026_12_03_1201_create_plant_settings';
+import * as addVerdictFacts from './2026_12_03_1301_add_verdict_facts';
 
 // Every migration is listed here by name so the same list works in the built app, in Vitest and
 // in tsx scripts (none of which share a way to glob the folder). Add new ones at the end.
@@ -22,5 +23,6 @@ export const migrations: Record<string, Migration> = {
 	'2026_12_01_2340_create_invitations': createInvitations,
 	'2026_12_03_1001_add_ledger_review': addLedgerReview,
 	'2026_12_03_1101_add_record_voids': addRecordVoids,
-	'2026_12_03_1201_create_plant_settings': createPlantSettings
+	'2026_12_03_1201_create_plant_settings': createPlantSettings,
+	'2026_12_03_1301_add_verdict_facts': addVerdictFacts
 };

@@ -10,6 +10,25 @@ import { createApiToken } from '../../src/lib/server/auth/tokens';
 import { seedScheduleDemo } from './demo-schedule';
 import { seedDemoShots } from './demo-shots';
 import { seedToolroomDemo } from './demo-toolroom';
+import { RETIREMENT_REASONS, type RetirementReason } from '../../src/lib/domain';
+
+const DEMO_RETIREMENT_ORDER: RetirementReason[] = [
+	'worn_out',
+	'cracked',
+	'obsolete',
+	'worn_out',
+	'damaged',
+	...RETIREMENT_REASONS.filter((r) => r === 'transferred' || r === 'recalled')
+];
+
+const DEMO_RETIREMENT_NOTES: Record<RetirementReason, string> = {
+	worn_out: 'Heat checking over the whole cavity; owner approved a replacement die',
+	cracked: 'Gross crack through the cover insert; beyond weld repair',
+	damaged: 'Die closed on a stuck casting; ejector half broken',
+	obsolete: 'Customer ended the part; die kept on the rack',
+	transferred: 'Moved to the sister plant with the part',
+	recalled: 'Owner took the tool back'
+};
 
 export const DEMO_PASSWORD = 'castellan-demo';
 export const DEMO_PLANT = 'Kestrel Vale Diecast Works';
@@ -279,6 +298,7 @@ export async function seedDemo(
 	}
 
 	let entries = 0;
+	let retiredSoFar = 0;
 	for (const [n, spec] of specs.entries()) {
 		const number = `D-${String(101 + n).padStart(4, '0')}`;
 		const alloy = alloys.get(spec.alloy)!;
@@ -319,6 +339,12 @@ export async function seedDemo(
 				cavities: spec.cavities,
 				projected_area_cm2: spec.area,
 				has_slides: spec.slides ? 1 : 0,
+				// Some cold-chamber aluminium dies record their own, higher intensification pressure
+				// (invented process sheets); the rest use the family default.
+				metal_pressure_bar:
+					spec.family === 'aluminium' && spec.process === 'cold_chamber' && n % 4 === 1
+						? 1000 + 50 * (n % 3)
+						: null,
 				status: 'ready',
 				location: `Rack ${'ABCDEF'[n % 6]}-${1 + (n % 8)}`,
 				notes: null,
@@ -418,13 +444,18 @@ export async function seedDemo(
 				})
 				.execute();
 		}
+		// Retirements of both groups: wear failures (worn out, cracked) and suspensions (obsolete
+		// part, accident), keeping three failures so the aluminium fleet still has a fit.
+		const retirementReason = retired
+			? DEMO_RETIREMENT_ORDER[retiredSoFar++ % DEMO_RETIREMENT_ORDER.length]
+			: null;
 		if (status !== 'ready') {
 			const at = retired
 				? new Date(now.getTime() - (HISTORY_DAYS - endDay) * DAY).toISOString()
 				: nowIso;
 			await db
 				.updateTable('dies')
-				.set({ status, retired_at: retired ? at : null })
+				.set({ status, retired_at: retired ? at : null, retirement_reason: retirementReason })
 				.where('id', '=', die.id)
 				.execute();
 			await db
@@ -437,8 +468,8 @@ export async function seedDemo(
 					detail: JSON.stringify({
 						from: 'ready',
 						to: status,
-						reason: retired
-							? 'Gross cracking across the cavity; owner approved replacement'
+						reason: retirementReason
+							? DEMO_RETIREMENT_NOTES[retirementReason]
 							: status === 'held'
 								? 'Porosity complaint from the customer; awaiting decision'
 								: status === 'in_toolroom'

@@ -6,7 +6,7 @@ import {
 	chamberChecks,
 	dieClampRequirement,
 	findClashes
-} from '../../src/lib/server/schedule/booking-checks';
+} from '../../src/lib/server/schedule/verdict';
 import { createBooking } from '../../src/lib/server/schedule/bookings';
 import {
 	defaultShotsPerHour,

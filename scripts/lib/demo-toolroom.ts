@@ -14,6 +14,7 @@ import {
 } from '../../src/lib/schemas/toolroom';
 import { addCircuit, recordCheck } from '../../src/lib/server/toolroom/cooling';
 import { recordInspection } from '../../src/lib/server/toolroom/inspections';
+import { addDieZone, findDieZone, recordJobRepairs } from '../../src/lib/server/toolroom/zones';
 import { closeJob, moveJob, openJob, type Actor } from '../../src/lib/server/toolroom/jobs';
 import { setPhotoShared, uploadPhotos } from '../../src/lib/server/toolroom/photos';
 
@@ -189,16 +190,28 @@ export async function seedToolroomDemo(
 			days: 80,
 			photo: true
 		},
+		// Welded at 87 % (the repair job below): the zone's series starts again.
+		{
+			die: 'D-0131',
+			half: 'cover',
+			zone: 'gate side',
+			fraction: 0.9,
+			grade: 0,
+			crack: null,
+			days: 40,
+			photo: true,
+			notes: 'First look after the weld repair: clean.'
+		},
 		{
 			die: 'D-0131',
 			half: 'cover',
 			zone: 'gate side',
 			fraction: 0.97,
-			grade: 2,
-			crack: 4.5,
+			grade: 1,
+			crack: 0.6,
 			days: 12,
 			photo: true,
-			notes: 'Network spreading towards the overflow; plan a repair at the next change.'
+			notes: 'Fine hairlines again beside the weld.'
 		},
 		{
 			die: 'D-0131',
@@ -252,6 +265,75 @@ export async function seedToolroomDemo(
 			notes: 'Open network across the sealing face.'
 		}
 	];
+	// The toolroom lead's zone lists: a starting list on every die, plus every zone the
+	// inspections use, on its half.
+	for (const d of dies.values()) {
+		for (const [half, name] of [
+			['cover', 'gate side'],
+			['cover', 'cavity 1'],
+			['ejector', 'core 1'],
+			['ejector', 'ejector pin bosses']
+		] as const) {
+			await addDieZone(db, d.id, { half, name }, lead, daysAgo(220));
+		}
+	}
+	for (const ins of inspections) {
+		const d = die(ins.die);
+		if (!(await findDieZone(db, d.id, ins.half, ins.zone))) {
+			const added = await addDieZone(
+				db,
+				d.id,
+				{ half: ins.half, name: ins.zone },
+				lead,
+				daysAgo(220)
+			);
+			if (!added.ok) throw new Error(`Demo zone on ${ins.die}: ${added.message}`);
+		}
+	}
+	// D-0131's gate side was welded 55 days ago (a closed repair job that records the zone).
+	const welded = die('D-0131');
+	const weldShots = Math.round(welded.total_shots * 0.87);
+	const weldJob = await db
+		.insertInto('toolroom_jobs')
+		.values({
+			number: 'TJ-WELD',
+			die_id: welded.id,
+			kind: 'repair',
+			half: 'cover',
+			zone: 'gate side',
+			description: 'Weld the heat-check network on the gate side and re-polish.',
+			source: 'die',
+			status: 'done',
+			die_to_toolroom: 1,
+			die_shots_at_open: weldShots,
+			die_shots_at_close: weldShots,
+			opened_by: lead.userId,
+			opened_at: daysAgo(58),
+			updated_at: daysAgo(55, 16),
+			closed_at: daysAgo(55, 16),
+			closed_by: maker.userId,
+			findings: 'Grade 2 network, longest crack 3 mm, towards the overflow.',
+			work_done: 'TIG weld with H13 filler, stress relieved, re-machined and polished.',
+			hours: 9
+		})
+		.returning('id')
+		.executeTakeFirstOrThrow();
+	await db
+		.updateTable('toolroom_jobs')
+		.set({ number: `TJ-${String(weldJob.id).padStart(5, '0')}` })
+		.where('id', '=', weldJob.id)
+		.execute();
+	const gateSide = (await findDieZone(db, welded.id, 'cover', 'gate side'))!;
+	const weldRecorded = await recordJobRepairs(
+		db,
+		weldJob.id,
+		[{ zoneId: gateSide.id, kind: 'weld' }],
+		lead,
+		daysAgo(55, 16)
+	);
+	if (!weldRecorded.ok) throw new Error(`Demo weld repair: ${weldRecorded.message}`);
+	summary.jobs++;
+
 	for (const ins of inspections) {
 		const d = die(ins.die);
 		const files = ins.photo

@@ -124,3 +124,26 @@ export const AUDIT_ACTION_LABELS: Record<string, string> = {
 	'photo.add': 'Photos added',
 	'photo.share': 'Photo sharing changed'
 };
+// Verdicts of the order check and the booking form (one judge: lib/server/schedule/verdict.ts).
+export const VERDICT_LABELS = {
+	fits: 'Fits',
+	warning: 'Fits with warnings',
+	blocked: 'Blocked'
+} as const;
+// Why a die was retired; only worn out and cracked beyond repair are wear failures in the fleet fit.
+export const RETIREMENT_REASON_LABELS = {
+	worn_out: 'Worn out',
+	cracked: 'Cracked beyond repair',
+	damaged: 'Damaged (accident)',
+	obsolete: 'Part obsolete',
+	transferred: 'Transferred to another plant',
+	recalled: 'Customer recalled the tool'
+} as const;
+export const REPAIR_KIND_LABELS = {
+	weld: 'Weld repair',
+	insert_change: 'Insert changed',
+	remachining: 'Re-machined'
+} as const;
+/** Shown wherever a clamping figure is: figures plan, the press maker's rating decides. */
+export const CLAMP_CAUTION =
+	'Caution: an under-sized clamp lets the die open and molten metal spray from the parting line. The press maker’s rating and the plant’s procedures decide; this figure is a planning aid.';

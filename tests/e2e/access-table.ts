@@ -133,6 +133,7 @@ export const ACTIONS: Record<string, Cells> = {
 	'/dies/[number]/surface?/correctInspection': roles(...LEADS),
 	'/dies/[number]/surface?/inspect': roles(...WORKERS),
 	'/dies/[number]/surface?/voidInspection': roles(...LEADS),
+	'/dies/[number]/surface?/zone': roles(...LEADS),
 	'/dies/new?/default': roles(...LEADS),
 	'/invite/[token]?/default': everyone('ok'),
 	'/jobs/[job]?/assign': roles(...WORKERS),

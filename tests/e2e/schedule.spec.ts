@@ -53,7 +53,9 @@ test('a scheduler opens the board, books a die on a suitable press and sees why 
 	await page.getByRole('button', { name: 'Check and book' }).click();
 	const blocks = page.getByTestId('booking-blocks');
 	await expect(blocks).toContainText('D-0119 is in the toolroom');
-	await expect(blocks).toContainText('It cannot be booked until the toolroom releases it.');
+	await expect(blocks).toContainText(
+		'It cannot run until its job is closed and the toolroom releases it.'
+	);
 	await expect(page.getByLabel('Book anyway — I have read the warnings above')).toHaveCount(0);
 	await page.screenshot({ path: info.outputPath('refused-toolroom.png'), fullPage: true });
 
@@ -90,7 +92,18 @@ test('the order check shows shots, clamping force and the chance the die lasts',
 	await expect(page).toHaveURL(/die=D-0135/);
 	// ⌈5 000 / 0.98⌉ = 5 103 shots on one cavity.
 	await expect(page.getByTestId('shots-needed')).toHaveText('5,103');
-	await expect(page.getByText('The press holds the die shut.')).toBeVisible();
+	await expect(page.getByTestId('clamp-fit')).toHaveText(
+		/The press is rated above the figure below/
+	);
+	await expect(page.getByTestId('clamp-formula')).toContainText(' ÷ 100 × ');
+	await expect(page.getByTestId('clamp-caution')).toContainText(
+		'molten metal spray from the parting line'
+	);
+	// The verdict element carries the verdict for tests and tools to compare with the API.
+	await expect(page.getByTestId('order-verdict')).toHaveAttribute(
+		'data-verdict',
+		/^(fits|warning|blocked)$/
+	);
 	await expect(page.getByTestId('survival')).toHaveText(/^\d+(\.\d+)? %$/);
 	await page.screenshot({ path: info.outputPath('order-check.png'), fullPage: true });
 });

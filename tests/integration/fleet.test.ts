@@ -4,13 +4,20 @@ import { openTestDatabase, type DB } from '../../src/lib/server/db/connect';
 import { createDie, changeDieStatus } from '../../src/lib/server/dies/die-write';
 import { buildFleetLife, kaplanMeier, survivalAt } from '../../src/lib/server/dies/fleet';
 import { recordShots } from '../../src/lib/server/shots/ledger';
+import { fitFleetByFamily } from '../../src/lib/server/schedule/fleet-fit';
+import type { RetirementReason } from '../../src/lib/domain';
 
 const LEAD = 'lead-0001';
 let db: DB;
 let customerId: number;
 
 /** Registers a die of the alloy, counts its shots through the ledger, and retires it if asked. */
-async function addDie(number: string, alloyCode: string, shots: number, retired = false) {
+async function addDie(
+	number: string,
+	alloyCode: string,
+	shots: number,
+	retired: boolean | RetirementReason = false
+) {
 	const alloy = await db
 		.selectFrom('alloys')
 		.select('id')
@@ -52,7 +59,8 @@ async function addDie(number: string, alloyCode: string, shots: number, retired 
 			.select(['id', 'status'])
 			.where('number', '=', number)
 			.executeTakeFirstOrThrow();
-		expect((await changeDieStatus(db, die, 'retired', 'Worn out', LEAD)).ok).toBe(true);
+		const why = retired === true ? 'worn_out' : retired;
+		expect((await changeDieStatus(db, die, 'retired', 'Retired', LEAD, why)).ok).toBe(true);
 	}
 }
 
@@ -175,5 +183,44 @@ describe('fleet life by alloy family', () => {
 		const old = al.running.find((d) => d.number === 'D-0904')!;
 		expect(old.pastExpected).toBe(true);
 		expect(old.chanceToExpected).toBe(1);
+	});
+});
+
+describe('retirement reasons in the fleet fit', () => {
+	// NIST/SEMATECH e-Handbook §8.4.1.3: failures at 54, 187, 216, 240, 244, 335, 361, 373, 375,
+	// 386 and ten units removed unfailed at 500 → β̂ = 1.7208, η̂ = 606.528.
+	const FAILURES = [54, 187, 216, 240, 244, 335, 361, 373, 375, 386];
+
+	it('right-censors a die retired because its part went obsolete, like one still running', async () => {
+		for (const [i, shots] of FAILURES.entries())
+			await addDie(`AW-${i}`, 'A380', shots, i % 2 ? 'cracked' : 'worn_out');
+		for (let i = 0; i < 9; i++) await addDie(`AR-${i}`, 'A380', 500);
+		// The tenth unit at 500 shots was retired, but only because the part went obsolete.
+		await addDie('AO-1', 'A380', 500, 'obsolete');
+		const al = (await fitFleetByFamily(db)).find((f) => f.family === 'aluminium')!;
+		expect(al.failures).toBe(10);
+		expect(al.suspensions).toBe(10);
+		expect(al.fit!.shape).toBeCloseTo(1.7208, 3); // NIST/SEMATECH §8.4.1.3
+		expect(al.fit!.scale).toBeCloseTo(606.528, 1); // NIST/SEMATECH §8.4.1.3
+		const page = (await buildFleetLife(db)).find((f) => f.family === 'aluminium')!;
+		expect(page.failures).toHaveLength(10);
+		expect(page.censored.map((d) => d.number)).toEqual(['AO-1']);
+		expect(page.retirements).toEqual({
+			worn_out: 5,
+			cracked: 5,
+			damaged: 0,
+			obsolete: 1,
+			transferred: 0,
+			recalled: 0
+		});
+	});
+
+	it('would count the same die as a failure if it had worn out (the fit moves)', async () => {
+		for (const [i, shots] of FAILURES.entries()) await addDie(`AW-${i}`, 'A380', shots, true);
+		for (let i = 0; i < 9; i++) await addDie(`AR-${i}`, 'A380', 500);
+		await addDie('AO-1', 'A380', 500, 'worn_out');
+		const al = (await fitFleetByFamily(db)).find((f) => f.family === 'aluminium')!;
+		expect(al.failures).toBe(11);
+		expect(Math.abs(al.fit!.shape - 1.7208)).toBeGreaterThan(0.01);
 	});
 });

@@ -187,9 +187,14 @@ describe('die register', () => {
 		const d = (await findDie(db, 'D-0001', { customerId: null }))!;
 		expect(await changeDieStatus(db, d, 'held', 'Porosity complaint', admin)).toEqual({ ok: true });
 		const held = (await findDie(db, 'D-0001', { customerId: null }))!;
+		// Retiring asks why; without a reason nothing changes.
 		expect(await changeDieStatus(db, held, 'retired', 'Cracked through', admin)).toEqual({
-			ok: true
+			ok: false,
+			message: 'Say why the die is retired.'
 		});
+		expect(await changeDieStatus(db, held, 'retired', 'Cracked through', admin, 'cracked')).toEqual(
+			{ ok: true }
+		);
 		const retired = (await findDie(db, 'D-0001', { customerId: null }))!;
 		expect(retired.retired_at).not.toBeNull();
 		expect(await changeDieStatus(db, retired, 'ready', 'Oops', admin)).toMatchObject({ ok: false });
@@ -201,8 +206,9 @@ describe('die register', () => {
 			.execute();
 		expect(audit.map((a) => JSON.parse(a.detail))).toEqual([
 			{ from: 'ready', to: 'held', reason: 'Porosity complaint' },
-			{ from: 'held', to: 'retired', reason: 'Cracked through' }
+			{ from: 'held', to: 'retired', reason: 'Cracked through', retirementReason: 'cracked' }
 		]);
+		expect(retired.retirement_reason).toBe('cracked');
 	});
 
 	test('search, filters, sort and paging work together; life used follows the alloy', async () => {

@@ -14,7 +14,7 @@ import {
 	listBookingsInWindow,
 	windowBounds
 } from '../../src/lib/server/schedule/bookings';
-import { evaluateBooking } from '../../src/lib/server/schedule/booking-checks';
+import { judgeRun } from '../../src/lib/server/schedule/verdict';
 import {
 	actor,
 	addTask,
@@ -193,7 +193,7 @@ describe('planned runs before the start', () => {
 	test('shots of the die’s earlier bookings count when larger than its recent pace', async () => {
 		// 4 000 parts on 2 cavities = 2 000 shots on day 2.
 		await book({ startsAt: at(2, 6), endsAt: at(2, 22) });
-		const ev = await evaluateBooking(
+		const ev = await judgeRun(
 			db,
 			draft({ startsAt: at(7, 6), endsAt: at(7, 22), orderRef: 'PO-2' }),
 			{ now: NOW }

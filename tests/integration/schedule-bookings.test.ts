@@ -1,6 +1,6 @@
 import { beforeEach, describe, expect, test } from 'vitest';
 import type { DB } from '../../src/lib/server/db/connect';
-import { evaluateBooking } from '../../src/lib/server/schedule/booking-checks';
+import { judgeRun } from '../../src/lib/server/schedule/verdict';
 import {
 	cancelBooking,
 	createBooking,
@@ -24,7 +24,7 @@ beforeEach(async () => {
 });
 
 async function checks(over: Parameters<typeof draft>[0] = {}) {
-	const ev = await evaluateBooking(db, draft(over), { now: NOW });
+	const ev = await judgeRun(db, draft(over), { now: NOW });
 	if (!ev.ok) throw new Error(ev.message);
 	return ev;
 }
@@ -55,12 +55,12 @@ describe('a clean booking', () => {
 	});
 
 	test('an unknown die or press is an input error, not a check', async () => {
-		expect(await evaluateBooking(db, draft({ die: 'NOPE' }), { now: NOW })).toEqual({
+		expect(await judgeRun(db, draft({ die: 'NOPE' }), { now: NOW })).toEqual({
 			ok: false,
 			field: 'die',
 			message: 'There is no die NOPE.'
 		});
-		expect(await evaluateBooking(db, draft({ press: 'XX-1' }), { now: NOW })).toMatchObject({
+		expect(await judgeRun(db, draft({ press: 'XX-1' }), { now: NOW })).toMatchObject({
 			ok: false,
 			field: 'press'
 		});
@@ -74,7 +74,7 @@ describe('a clean booking', () => {
 				.where('code', '=', 'BOLT')
 				.executeTakeFirstOrThrow()
 		).id;
-		const ev = await evaluateBooking(db, draft(), { now: NOW, scope: { customerId: bolt } });
+		const ev = await judgeRun(db, draft(), { now: NOW, scope: { customerId: bolt } });
 		expect(ev).toMatchObject({ ok: false, field: 'die', message: 'There is no die Z-1.' });
 	});
 });
@@ -85,7 +85,9 @@ describe('blocking checks, each with its message', () => {
 		expect(ev.blocks).toContainEqual({
 			code: 'die_retired',
 			level: 'block',
-			message: 'RET-1 is retired and cannot be booked.'
+			message: 'RET-1 is retired and cannot run again.',
+			// The number behind it: the shots it retired at (130 000 in the fixture).
+			number: 130_000
 		});
 	});
 
@@ -96,7 +98,8 @@ describe('blocking checks, each with its message', () => {
 				code: 'die_held',
 				level: 'block',
 				message:
-					'HELD-1 is held: Porosity complaint, awaiting the owner. A held die waits for a decision and cannot be booked.'
+					'HELD-1 is held: Porosity complaint, awaiting the owner. A held die waits for a decision and cannot run until it is released.',
+				number: null
 			}
 		]);
 	});
@@ -122,7 +125,8 @@ describe('blocking checks, each with its message', () => {
 				code: 'die_in_toolroom',
 				level: 'block',
 				message:
-					'TR-1 is in the toolroom (Cracked ejector pin bore). Open toolroom job: TJ-00007. It cannot be booked until the toolroom releases it.'
+					'TR-1 is in the toolroom (Cracked ejector pin bore). It cannot run until its job is closed and the toolroom releases it. Open toolroom job: TJ-00007. No expected release date is recorded.',
+				number: null
 			}
 		]);
 	});
@@ -146,7 +150,8 @@ describe('blocking checks, each with its message', () => {
 				code: 'die_double_booked',
 				level: 'block',
 				message:
-					'Z-1 is already booked on HC-20 from 2027-03-08 06:00 to 2027-03-08 22:00 (order PO-1).'
+					'Z-1 is already booked on HC-20 from 2027-03-08 06:00 to 2027-03-08 22:00 (order PO-1).',
+				number: 1
 			}
 		]);
 	});
@@ -163,7 +168,8 @@ describe('blocking checks, each with its message', () => {
 			code: 'press_double_booked',
 			level: 'block',
 			message:
-				'HC-20 is already booked for Z-1 from 2027-03-08 06:00 to 2027-03-08 22:00 (order PO-1).'
+				'HC-20 is already booked for Z-1 from 2027-03-08 06:00 to 2027-03-08 22:00 (order PO-1).',
+			number: 1
 		});
 	});
 
@@ -173,7 +179,8 @@ describe('blocking checks, each with its message', () => {
 			{
 				code: 'press_down',
 				level: 'block',
-				message: 'CC-84 is down for maintenance (Hydraulic pump rebuild).'
+				message: 'CC-84 is down for maintenance (Hydraulic pump rebuild).',
+				number: null
 			}
 		]);
 	});
@@ -181,13 +188,14 @@ describe('blocking checks, each with its message', () => {
 	test('a press whose clamping force is below the die’s requirement (Giesserei-Lexikon formula)', async () => {
 		// BIG-1: 1400 cm² at the cold-chamber aluminium default 600 bar → 8400 kN × 1.1 = 9240 kN.
 		const ev = await checks({ die: 'BIG-1', press: 'CC-40', shotsPerHour: 100 });
-		expect(ev.requiredClampKn).toBeCloseTo(9240, 6);
+		expect(ev.clamp.requiredKn).toBeCloseTo(9240, 6);
 		expect(ev.blocks).toEqual([
 			{
 				code: 'clamp_force',
 				level: 'block',
 				message:
-					'CC-40 clamps 3,923 kN; BIG-1 needs at least 9,240 kN (1,400 cm² at 600 bar, × 1.1 without slides). Choose a larger press.'
+					'CC-40 clamps 3,923 kN; BIG-1 needs at least 9,240 kN (1,400 cm² × 600 bar ÷ 100 × 1.1 (without slides) = 9,240 kN) (family default pressure; record the die’s own). Choose a larger press. Caution: an under-sized clamp lets the die open and molten metal spray from the parting line. The press maker’s rating and the plant’s procedures decide; this figure is a planning aid.',
+				number: 9240
 			}
 		]);
 		const big = await checks({ die: 'BIG-1', press: 'CC-160', shotsPerHour: 100 });
@@ -195,7 +203,7 @@ describe('blocking checks, each with its message', () => {
 	});
 
 	test('the clamping force message follows the caller’s unit system', async () => {
-		const ev = await evaluateBooking(
+		const ev = await judgeRun(
 			db,
 			draft({ die: 'BIG-1', press: 'CC-40', shotsPerHour: 100 }),
 			{
@@ -215,7 +223,8 @@ describe('blocking checks, each with its message', () => {
 		expect(ev.blocks).toContainEqual({
 			code: 'chamber_process',
 			level: 'block',
-			message: 'Z-1 is built for hot-chamber casting; CC-40 is a cold-chamber press.'
+			message: 'Z-1 is built for hot-chamber casting; CC-40 is a cold-chamber press.',
+			number: null
 		});
 	});
 
@@ -225,7 +234,8 @@ describe('blocking checks, each with its message', () => {
 			code: 'chamber_alloy',
 			level: 'block',
 			message:
-				'Aluminium (A380) is cast on cold-chamber presses only: molten aluminium attacks the iron pot and gooseneck of a hot-chamber press. HC-20 is hot chamber.'
+				'Aluminium (A380) is cast on cold-chamber presses only: molten aluminium attacks the iron pot and gooseneck of a hot-chamber press. HC-20 is hot chamber.',
+			number: null
 		});
 		const cu = await checks({ die: 'CU-1', press: 'HC-20', parts: 100, shotsPerHour: 100 });
 		expect(cu.blocks.find((c) => c.code === 'chamber_alloy')?.message).toMatch(
@@ -244,7 +254,8 @@ describe('blocking checks, each with its message', () => {
 				code: 'chamber_alloy',
 				level: 'warn',
 				message:
-					'Zinc (ZA27X) usually runs on hot-chamber presses; CC-40 is cold chamber. Only high-aluminium zinc alloys and very large zinc parts are cast that way.'
+					'Zinc (ZA27X) usually runs on hot-chamber presses; CC-40 is cold chamber. Only high-aluminium zinc alloys and very large zinc parts are cast that way.',
+				number: null
 			}
 		]);
 	});
@@ -340,7 +351,8 @@ describe('warnings, each with its message', () => {
 				code: 'service_due',
 				level: 'warn',
 				message:
-					"Stress relief comes due during this run, around 2027-03-08 11:00, after about 1,500 of the run's 2,000 shots."
+					"Stress relief comes due during this run, around 2027-03-08 11:00, after about 1,500 of the run's 2,000 shots.",
+				number: 1500
 			}
 		]);
 	});
@@ -356,7 +368,7 @@ describe('warnings, each with its message', () => {
 		// Starting in 30 days, the interval is used up before the run.
 		const late = await checks({ startsAt: at(30, 6), endsAt: at(30, 22) });
 		expect(late.warnings[0].message).toBe(
-			'Stress relief is due before this run starts: its 25,000-shot interval is used up. Plan it first, or book anyway.'
+			'Stress relief is due before this run starts: its 25,000-shot interval is used up. Plan it first, or run anyway.'
 		);
 	});
 
@@ -376,7 +388,8 @@ describe('warnings, each with its message', () => {
 				code: 'end_of_life',
 				level: 'warn',
 				message:
-					'The order needs 1,200 shots; CU-1 has about 500 left before the end of its expected life (20,000 shots).'
+					'The order needs 1,200 shots; CU-1 has about 500 left before the end of its expected life (20,000 shots).',
+				number: 500
 			}
 		]);
 	});
@@ -388,7 +401,8 @@ describe('warnings, each with its message', () => {
 				code: 'rate_unusual',
 				level: 'warn',
 				message:
-					'120 shots per hour is outside the usual 200–550 for zinc (NADCA). Check the planned rate.'
+					'120 shots per hour is outside the usual 200–550 for zinc (NADCA). Check the planned rate.',
+				number: 120
 			}
 		]);
 	});
@@ -400,7 +414,8 @@ describe('warnings, each with its message', () => {
 				code: 'too_short',
 				level: 'warn',
 				message:
-					'The booked 4 h at 300 shots per hour give about 1,200 shots; the order needs 2,000. Book more time or plan a faster rate.'
+					'The booked 4 h at 300 shots per hour give about 1,200 shots; the order needs 2,000. Book more time or plan a faster rate.',
+				number: 1200
 			}
 		]);
 	});
@@ -433,8 +448,8 @@ describe('confirming warnings', () => {
 
 	test('a confirmation of other warnings than the current ones does not count', () => {
 		const w = [
-			{ code: 'rate_unusual' as const, level: 'warn' as const, message: '' },
-			{ code: 'service_due' as const, level: 'warn' as const, message: '' }
+			{ code: 'rate_unusual' as const, level: 'warn' as const, message: '', number: null },
+			{ code: 'service_due' as const, level: 'warn' as const, message: '', number: null }
 		];
 		expect(warningsAccepted(w, ['rate_unusual'])).toBe(false);
 		expect(warningsAccepted(w, ['service_due', 'rate_unusual'])).toBe(true);

@@ -82,14 +82,13 @@ describe('order check', () => {
 		);
 		if (!r.ok) throw new Error(r.message);
 		const a = r.answer;
-		// 4 000 parts / 2 cavities = 2 000 shots; 8 h at 250 shots/h.
-		expect(a.order).toEqual({
-			shotsNeeded: 2000,
-			pressHours: 8,
-			fits: false,
-			blockedBy: 'service',
-			shotsShort: 500
-		});
+		// 4 000 parts / 2 cavities = 2 000 shots; 8 h at 250 shots/h. The stress relief is due after
+		// 1 500 of them, so the run needs the service first: a warning (not a green tick) with the
+		// 1 500 shots left as its number.
+		expect(a.shotsNeeded).toBe(2000);
+		expect(a.pressHours).toBe(8);
+		expect(a.verdict).toBe('warning');
+		expect(a.reasons).toMatchObject([{ code: 'service_due', level: 'warn', number: 1500 }]);
 		expect(a.nextService).toEqual({
 			kind: 'stress_relief',
 			label: 'Stress relief',
@@ -117,8 +116,13 @@ describe('order check', () => {
 		expect(r.answer.shotsPerHour).toBe(120);
 		expect(r.answer.rateIsDefault).toBe(true);
 		// 1 200 / (1 × 0.96) = 1 250 shots.
-		expect(r.answer.order.shotsNeeded).toBe(1250);
-		expect(r.answer.pressFindings.map((f) => f.code)).toEqual(['chamber_process', 'chamber_alloy']);
+		expect(r.answer.shotsNeeded).toBe(1250);
+		expect(r.answer.verdict).toBe('blocked');
+		expect(r.answer.blocks.map((f) => f.code)).toEqual([
+			'chamber_process',
+			'chamber_alloy',
+			'clamp_force'
+		]);
 		expect(r.answer.clamp.fits).toBe(false);
 	});
 

@@ -1,7 +1,7 @@
 import { beforeEach, describe, expect, test } from 'vitest';
 import { shotListQuerySchema } from '../../src/lib/schemas/shots';
 import { findDie } from '../../src/lib/server/dies/die-detail';
-import { checkDieOrder } from '../../src/lib/server/shots/die-order-check';
+import { judgeRun } from '../../src/lib/server/schedule/verdict';
 import { getDieShotsView, thinSeries } from '../../src/lib/server/shots/die-shots';
 import { findDieShotSummary } from '../../src/lib/server/shots/die-summary';
 import { recordShots, type ShotInput } from '../../src/lib/server/shots/ledger';
@@ -166,50 +166,32 @@ describe('order check for a die', () => {
 				}
 			])
 			.execute();
-		const die = (await findDie(p.db, 'A-0001', { customerId: null }))!;
-		// 2 cavities, 5 % scrap: 20 000 parts → ⌈20000 / (2 × 0.95)⌉ = 10 527 shots.
-		const r = await checkDieOrder(
+		// 2 cavities, 5 % scrap: 20 000 parts → ⌈20000 / (2 × 0.95)⌉ = 10 527 shots. The stress relief
+		// has 10 000 − 600 = 9 400 shots left, so it comes due during the run: a warning.
+		const r = await judgeRun(
 			p.db,
-			die,
-			{ parts: 20_000, scrapPct: 5, shotsPerHour: 120 },
-			NOW
+			{ die: 'A-0001', parts: 20_000, scrapPct: 5, shotsPerHour: 120 },
+			{ now: NOW }
 		);
-		expect(r).toMatchObject({
-			die: 'A-0001',
-			cavities: 2,
-			totalShots: 600,
-			shotsToNextService: 9_400,
-			nextServiceKind: 'stress_relief',
-			shotsToEndOfLife: 124_400,
-			shotsNeeded: 10_527,
-			fits: false,
-			blockedBy: 'service',
-			shotsShort: 1_127
-		});
+		if (!r.ok) throw new Error(r.message);
+		expect(r).toMatchObject({ shotsNeeded: 10_527, verdict: 'warning', lifeLeftAtStart: 124_400 });
+		expect(r.reasons).toMatchObject([{ code: 'service_due', number: 9_400 }]);
 		expect(r.pressHours).toBeCloseTo(10_527 / 120, 9);
 	});
 
-	test('a die without shot-counted tasks is limited by its life only; a retired die by nothing left', async () => {
-		const die = (await findDie(p.db, 'Z-0001', { customerId: null }))!;
-		const fits = await checkDieOrder(
+	test('a die without shot-counted tasks is limited by its life only; a retired die is blocked', async () => {
+		const fits = await judgeRun(
 			p.db,
-			die,
-			{ parts: 1000, scrapPct: 0, shotsPerHour: 300 },
-			NOW
+			{ die: 'Z-0001', parts: 1000, scrapPct: 0, shotsPerHour: 300 },
+			{ now: NOW }
 		);
-		expect(fits).toMatchObject({
-			shotsToNextService: null,
-			fits: true,
-			blockedBy: null,
-			shotsNeeded: 500
-		});
-		const retired = (await findDie(p.db, 'R-0001', { customerId: null }))!;
+		expect(fits).toMatchObject({ verdict: 'fits', reasons: [], shotsNeeded: 500 });
 		expect(
-			await checkDieOrder(p.db, retired, { parts: 10, scrapPct: 0, shotsPerHour: 100 }, NOW)
-		).toMatchObject({
-			shotsToEndOfLife: 0,
-			fits: false,
-			blockedBy: 'end_of_life'
-		});
+			await judgeRun(
+				p.db,
+				{ die: 'R-0001', parts: 10, scrapPct: 0, shotsPerHour: 100 },
+				{ now: NOW }
+			)
+		).toMatchObject({ verdict: 'blocked', reasons: [{ code: 'die_retired' }] });
 	});
 });

@@ -214,15 +214,17 @@ describe('die heat balance', () => {
 			ejectC: 300,
 			latentHeatKjKg: undefined
 		});
-		// A380 in the alloy record (NADCA A-3-2 figures): c 963, L 389 000, solidus 540, liquidus
-		// 595, pour 660 → 2 kg · (963·65 + 389 000 + 963·240) J = 1365.43 kJ per shot; at 60 shots
-		// an hour 22.76 kW against 5.8 + 8.8 kW of cooling.
-		expect(view.heatPerShotKj).toBeCloseTo(1365.43, 2);
+		// A380 in the alloy record (NADCA A-3-2 figures): c solid 963, c liquid 1 177 (liquid
+		// aluminium, NIST-JANAF, from memory), L 389 000, solidus 540, liquidus 595, pour 660 →
+		// 2 kg · (1 177·65 + 389 000 + 1 070·55 + 963·240) J
+		//   = 2 · (76 505 + 389 000 + 58 850 + 231 120) = 2 · 755 475 J = 1510.95 kJ per shot;
+		// at 60 shots an hour 1510.95 · 60 / 3600 = 25.1825 kW against 5.8 + 8.8 kW of cooling.
+		expect(view.heatPerShotKj).toBeCloseTo(1510.95, 2);
 		expect(view.coolingKw).toBeCloseTo(
 			circuits.reduce((s, c) => s + c.latest!.figures.heatKw!, 0),
 			10
 		);
-		expect(view.result?.heatInKw).toBeCloseTo(22.757, 3);
+		expect(view.result?.heatInKw).toBeCloseTo(25.1825, 3);
 		expect(view.result?.verdict).toBe('cooling_short');
 		expect(view.result?.message).toMatch(/Planning aid only/);
 		expect(view.circuitsCounted).toBe(2);

@@ -6,6 +6,7 @@ import { inspectionSchema } from '../../src/lib/schemas/toolroom';
 import { storePhotoFilesWith } from '../../src/lib/server/photos/store';
 import { closePhotoPool } from '../../src/lib/server/photos/worker-pool';
 import { recordInspection } from '../../src/lib/server/toolroom/inspections';
+import { addDieZone } from '../../src/lib/server/toolroom/zones';
 import { cancelJob, openJob } from '../../src/lib/server/toolroom/jobs';
 import {
 	findViewablePhoto,
@@ -237,6 +238,10 @@ describe('uploading photos to a job', () => {
 	});
 
 	it('an inspection with a bad photo is not recorded at all', async () => {
+		// The zone is on the die's list, so only the photo can refuse the entry.
+		expect(
+			await addDieZone(plant.db, plant.dieId, { half: 'cover', name: 'gate' }, plant.lead)
+		).toMatchObject({ ok: true });
 		const form = inspectionSchema.parse({ half: 'cover', zone: 'gate', shotsAt: 12000, grade: 2 });
 		const result = await recordInspection(plant.db, {
 			dieId: plant.dieId,
@@ -246,6 +251,7 @@ describe('uploading photos to a job', () => {
 			uploadDir: uploads.dir
 		});
 		expect(result).toMatchObject({ ok: false, status: 400 });
+		expect(result.ok ? [] : result.problems).not.toHaveLength(0);
 		expect(await plant.db.selectFrom('surface_inspections').selectAll().execute()).toHaveLength(0);
 		await expectNothingStored();
 	});

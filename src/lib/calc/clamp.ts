@@ -130,3 +130,12 @@ export function checkMetalPressure(process: DieCastingProcess, bar: number): Pre
 	}
 	return { level: 'ok', message: 'Metal pressure is within the usual range for this process.' };
 }
+
+/** The metal pressure a clamping check uses, bar: the die's own figure, else the family default. */
+export function effectiveMetalPressureBar(
+	own: number | null,
+	process: DieCastingProcess,
+	family: AlloyFamily
+): number {
+	return own ?? defaultMetalPressureBar(process, family);
+}

@@ -79,3 +79,72 @@ export function crackTrend(
 	}
 	return { slopePerShot, intercept, projectedShotsAtRepair };
 }
+
+/** One surface inspection of a zone, as the series split needs it. */
+export interface CrackPoint {
+	/** Die shots at the inspection. */
+	shots: number;
+	grade: number;
+	longestCrackMm: number | null;
+	/** When the inspection was made (ISO-8601 UTC). */
+	at: string;
+	/** The physical half inspected (by serial); null when not known. */
+	halfSerial: string | null;
+}
+
+/** A repair that touched the zone (weld, insert change, re-machining), when the job closed. */
+export interface ZoneRepair {
+	at: string;
+	kind: string;
+	shots: number | null;
+}
+
+export interface CrackSeries<P extends CrackPoint = CrackPoint> {
+	halfSerial: string | null;
+	/** Why this series starts: the first ever, a repair of the zone, or another half fitted. */
+	startedBy: { kind: 'first' } | { kind: 'repair'; repair: ZoneRepair } | { kind: 'new_half' };
+	points: P[];
+	trend: CrackTrend;
+	/** True for the series after the latest restart: the one that projects the next repair. */
+	current: boolean;
+}
+
+/**
+ * Splits a zone's inspections into series: a series belongs to one physical half and restarts
+ * after a repair that touched the zone or when another half is fitted, so a fitted line never
+ * mixes worn and repaired steel. Inspections are taken in time order; an inspection made after a
+ * repair's close belongs to the new series. Each series gets its own least-squares trend.
+ */
+export function splitCrackSeries<P extends CrackPoint>(
+	points: readonly P[],
+	repairs: readonly ZoneRepair[],
+	repairGrade = DEFAULT_REPAIR_GRADE
+): CrackSeries<P>[] {
+	const ordered = [...points].sort((a, b) => a.at.localeCompare(b.at) || a.shots - b.shots);
+	const fixes = [...repairs].sort((a, b) => a.at.localeCompare(b.at));
+	const series: { halfSerial: string | null; startedBy: CrackSeries['startedBy']; points: P[] }[] =
+		[];
+	let fixIndex = 0;
+	for (const p of ordered) {
+		let repair: ZoneRepair | null = null;
+		while (fixIndex < fixes.length && fixes[fixIndex].at <= p.at) repair = fixes[fixIndex++];
+		const last = series[series.length - 1];
+		if (!last) {
+			series.push({ halfSerial: p.halfSerial, startedBy: { kind: 'first' }, points: [p] });
+		} else if (repair) {
+			series.push({ halfSerial: p.halfSerial, startedBy: { kind: 'repair', repair }, points: [p] });
+		} else if (p.halfSerial !== last.halfSerial) {
+			series.push({ halfSerial: p.halfSerial, startedBy: { kind: 'new_half' }, points: [p] });
+		} else {
+			last.points.push(p);
+		}
+	}
+	return series.map((s, i) => ({
+		...s,
+		trend: crackTrend(
+			s.points.map((p) => ({ shots: p.shots, grade: p.grade })),
+			repairGrade
+		),
+		current: i === series.length - 1
+	}));
+}

@@ -1,11 +1,15 @@
 import { describe, expect, test } from 'vitest';
-import { ALLOY_PROPERTY_DEFAULTS, dieHeatBalance, heatPerShotKj } from './heat-balance';
+import { ALLOY_PROPERTY_DEFAULTS, dieHeatBalance, heatPerKgJ, heatPerShotKj } from './heat-balance';
 
-describe('heatPerShotKj — sensible + latent heat, A380 figures from NADCA tables A-3-2', () => {
+describe('heatPerShotKj — sensible + latent + freezing-range heat, A380 figures from NADCA tables A-3-2', () => {
 	// A380 per NADCA A-3-2: c = 963 J/(kg·K), melting range 540–595 °C; L ≈ 389 J/g (data sheet).
-	// Hand example: 2 kg poured at 680 °C, ejected at 300 °C:
-	// 963·(680 − 595) + 389 000 + 963·(540 − 300) = 81 855 + 389 000 + 231 120 = 701 975 J/kg,
-	// × 2 kg = 1 403 950 J = 1403.95 kJ.
+	// Hand example with one specific heat for liquid and solid: 2 kg poured at 680 °C, ejected at
+	// 300 °C:
+	//   liquid        963 · (680 − 595) =  81 855
+	//   latent                           389 000
+	//   freezing range 963 · (595 − 540) =  52 965   (mean of 963 and 963)
+	//   solid         963 · (540 − 300) = 231 120
+	//   total                            754 940 J/kg, × 2 kg = 1 509 880 J = 1509.88 kJ.
 	const a380 = {
 		shotMassKg: 2,
 		pourC: 680,
@@ -17,11 +21,77 @@ describe('heatPerShotKj — sensible + latent heat, A380 figures from NADCA tabl
 		latentHeatJPerKg: 389_000
 	};
 
-	test('2 kg of A380, 680 → 300 °C → 1403.95 kJ', () => {
-		expect(heatPerShotKj(a380)).toBeCloseTo(1403.95, 9);
+	test('2 kg of A380, 680 → 300 °C, one specific heat → 1509.88 kJ', () => {
+		expect(heatPerShotKj(a380)).toBeCloseTo(1509.88, 9);
 	});
 
-	test('the A380 defaults reproduce the hand example', () => {
+	test('A380 from Castellan’s constants (liquid 1 177, solid 963 J/(kg·K)), 680 → 300 °C, per kg', () => {
+		// Hand calculation, constants from ALLOY_PROPERTY_DEFAULTS.A380 and their sources:
+		//   liquid         1 177 · (680 − 595) = 1 177 · 85  = 100 045
+		//   latent                                           389 000
+		//   freezing range (1 177 + 963)/2 = 1 070; 1 070 · 55 =  58 850
+		//   solid            963 · (540 − 300) =  963 · 240  = 231 120
+		//   total                                            779 015 J/kg
+		const d = ALLOY_PROPERTY_DEFAULTS.A380;
+		expect([d.cpLiquid, d.cpSolid, d.liquidusC, d.solidusC, d.latentHeatJPerKg]).toEqual([
+			1177, 963, 595, 540, 389_000
+		]);
+		expect(
+			heatPerKgJ({
+				pourC: 680,
+				liquidusC: d.liquidusC,
+				solidusC: d.solidusC,
+				ejectC: 300,
+				cpLiquid: d.cpLiquid,
+				cpSolid: d.cpSolid,
+				latentHeatJPerKg: d.latentHeatJPerKg
+			})
+		).toBeCloseTo(779_015, 6);
+	});
+
+	test('pure aluminium, liquid at 700 °C to solid at its melting point, against handbook enthalpies', () => {
+		// Published values (NIST-JANAF Thermochemical Tables for Al, and the CRC Handbook's enthalpy
+		// of fusion — both from memory, so 1 % tolerance): melting point 933.47 K (660.32 °C, the
+		// ITS-90 fixed point), ΔfusH = 10.71 kJ/mol, liquid Cp = 31.75 J/(mol·K), M = 26.9815 g/mol.
+		// H(973.15 K, l) − H(933.47 K, s) = 31.75 · 39.68 + 10 710 = 11 969.8 J/mol
+		//   = 11 969.8 / 0.0269815 = 443 630 J/kg.
+		// A pure metal has no freezing range: liquidus = solidus = eject = 660.32 °C.
+		const perKg = heatPerKgJ({
+			pourC: 700,
+			liquidusC: 660.32,
+			solidusC: 660.32,
+			ejectC: 660.32,
+			cpLiquid: 31.75 / 0.0269815,
+			cpSolid: 24.2 / 0.0269815, // unused here: no solid cooling
+			latentHeatJPerKg: 10_710 / 0.0269815
+		});
+		expect(Math.abs(perKg - 443_630) / 443_630).toBeLessThan(0.01);
+	});
+
+	test('AZ91D: the freezing range carries a sixth of the heat a single-c, no-range sum leaves out', () => {
+		// AZ91D defaults: c_l 1 411, c_s 1 050, liquidus 595, solidus 470, L 350 000; pour 660, eject 300.
+		//   liquid  1 411 · 65           =  91 715
+		//   latent                          350 000
+		//   range   (1 411 + 1 050)/2 = 1 230.5; · 125 = 153 812.5
+		//   solid   1 050 · 170          = 178 500
+		//   total                           774 027.5 J/kg
+		// The old sum (1 050 for the liquid, no range term): 68 250 + 350 000 + 178 500 = 596 750,
+		// 77 % of it — cooling sized on the old figure would read about a quarter too generous.
+		const d = ALLOY_PROPERTY_DEFAULTS.AZ91D;
+		const q = heatPerKgJ({
+			pourC: 660,
+			liquidusC: d.liquidusC,
+			solidusC: d.solidusC,
+			ejectC: 300,
+			cpLiquid: d.cpLiquid,
+			cpSolid: d.cpSolid,
+			latentHeatJPerKg: d.latentHeatJPerKg
+		});
+		expect(q).toBeCloseTo(774_027.5, 6);
+		expect(596_750 / q).toBeCloseTo(0.771, 3);
+	});
+
+	test('the A380 defaults give 2 × 779 015 J for 2 kg', () => {
 		const d = ALLOY_PROPERTY_DEFAULTS.A380;
 		expect(
 			heatPerShotKj({
@@ -34,7 +104,7 @@ describe('heatPerShotKj — sensible + latent heat, A380 figures from NADCA tabl
 				cpSolid: d.cpSolid,
 				latentHeatJPerKg: d.latentHeatJPerKg
 			})
-		).toBeCloseTo(1403.95, 9);
+		).toBeCloseTo(1558.03, 9);
 	});
 
 	test.each([

@@ -19,17 +19,21 @@ export interface HeatPerShotInput {
 	latentHeatJPerKg: number;
 }
 
+/** Mean specific heat over the freezing range, J/(kg·K): the average of liquid and solid. */
+export function mushySpecificHeat(cpLiquid: number, cpSolid: number): number {
+	return (cpLiquid + cpSolid) / 2;
+}
+
 /**
- * Heat the metal gives to the die per shot, kJ:
- * Q = m · (c_l · (T_pour − T_liq) + L + c_s · (T_sol − T_eject)) / 1000.
- * Standard sensible-plus-latent heat balance (the cooling range between liquidus and solidus is
- * covered by L); the heat still in the casting at ejection leaves with it.
+ * Heat one kilogram of metal gives up from pouring to ejection, J/kg:
+ * q = c_l·(T_pour − T_liq) + L + c_mushy·(T_liq − T_sol) + c_s·(T_sol − T_eject),
+ * with c_mushy the mean of the liquid and solid specific heats. Sensible heat of the liquid, the
+ * latent heat, the sensible heat of the freezing range (not part of L) and the sensible heat of
+ * the solid — the standard enthalpy balance of a casting (any heat-transfer or foundry text).
  */
-export function heatPerShotKj(input: HeatPerShotInput): number {
-	const { shotMassKg, pourC, liquidusC, solidusC, ejectC, cpLiquid, cpSolid, latentHeatJPerKg } =
-		input;
+export function heatPerKgJ(input: Omit<HeatPerShotInput, 'shotMassKg'>): number {
+	const { pourC, liquidusC, solidusC, ejectC, cpLiquid, cpSolid, latentHeatJPerKg } = input;
 	for (const [value, what] of [
-		[shotMassKg, 'Shot mass'],
 		[cpLiquid, 'Specific heat of the liquid'],
 		[cpSolid, 'Specific heat of the solid']
 	] as const) {
@@ -49,8 +53,19 @@ export function heatPerShotKj(input: HeatPerShotInput): number {
 	if (ejectC > solidusC) {
 		throw new RangeError('The ejection temperature must be at or below the solidus.');
 	}
-	const perKg = cpLiquid * (pourC - liquidusC) + latentHeatJPerKg + cpSolid * (solidusC - ejectC);
-	return (shotMassKg * perKg) / 1000;
+	return (
+		cpLiquid * (pourC - liquidusC) +
+		latentHeatJPerKg +
+		mushySpecificHeat(cpLiquid, cpSolid) * (liquidusC - solidusC) +
+		cpSolid * (solidusC - ejectC)
+	);
+}
+
+/** Heat the metal gives to the die per shot, kJ: m · heatPerKgJ / 1000. */
+export function heatPerShotKj(input: HeatPerShotInput): number {
+	if (!(input.shotMassKg > 0) || !Number.isFinite(input.shotMassKg))
+		throw new RangeError('Shot mass must be more than 0.');
+	return (input.shotMassKg * heatPerKgJ(input)) / 1000;
 }
 
 /** Below this ratio of cooling to heat input the cooling is short (*common practice*). */
@@ -138,8 +153,10 @@ export type AlloyKey = 'A380' | 'ZP0400' | 'AZ91D' | 'CuZn39Pb1Al';
 
 /**
  * Starting property values for common die-casting alloys (see ../shared/REFERENCES.md "Alloys and
- * die life"). Sources publish one specific heat, used here for both liquid and solid. Editable
- * per alloy.
+ * die life"). The alloy tables publish the solid's specific heat; the liquid's is taken from the
+ * base metal's liquid heat capacity in the NIST-JANAF Thermochemical Tables, read from memory
+ * (Al 31.75, Mg 34.3, Zn 31.4, Cu 32.8 J/(mol·K)) — from memory, check against the data sheet.
+ * Editable per alloy.
  */
 export const ALLOY_PROPERTY_DEFAULTS: Readonly<Record<AlloyKey, AlloyProperties>> = {
 	A380: {
@@ -148,12 +165,13 @@ export const ALLOY_PROPERTY_DEFAULTS: Readonly<Record<AlloyKey, AlloyProperties>
 		densityKgM3: 2710,
 		liquidusC: 595,
 		solidusC: 540,
-		cpLiquid: 963,
+		// 31.75 J/(mol·K) ÷ 0.0269815 kg/mol = 1 177 J/(kg·K) (liquid Al, NIST-JANAF, from memory).
+		cpLiquid: 1177,
 		cpSolid: 963,
 		latentHeatJPerKg: 389_000,
 		pourC: 680,
 		source:
-			'NADCA product specification tables A-3-2 (density, melting range, specific heat); latent heat from an alloy data sheet copy (medium confidence); pour temperature common practice.'
+			'NADCA product specification tables A-3-2 (density, melting range, solid specific heat); latent heat from an alloy data sheet copy (medium confidence); liquid specific heat of pure aluminium, NIST-JANAF (from memory); pour temperature common practice.'
 	},
 	ZP0400: {
 		name: 'Zamak 3 (ZP0400)',
@@ -161,12 +179,13 @@ export const ALLOY_PROPERTY_DEFAULTS: Readonly<Record<AlloyKey, AlloyProperties>
 		densityKgM3: 6700,
 		liquidusC: 387,
 		solidusC: 381,
-		cpLiquid: 419,
+		// 31.4 J/(mol·K) ÷ 0.06538 kg/mol = 480 J/(kg·K) (liquid Zn, NIST-JANAF, from memory).
+		cpLiquid: 480,
 		cpSolid: 419,
 		latentHeatJPerKg: 110_000,
 		pourC: 425,
 		source:
-			'EN 12844 zinc alloy table (density, melting range, casting range 415–435 °C, specific heat); latent heat from memory (close to pure zinc, about 110 J/g).'
+			'EN 12844 zinc alloy table (density, melting range, casting range 415–435 °C, solid specific heat); latent heat from memory (close to pure zinc, about 110 J/g); liquid specific heat of pure zinc, NIST-JANAF (from memory).'
 	},
 	AZ91D: {
 		name: 'AZ91D',
@@ -174,12 +193,13 @@ export const ALLOY_PROPERTY_DEFAULTS: Readonly<Record<AlloyKey, AlloyProperties>
 		densityKgM3: 1820,
 		liquidusC: 595,
 		solidusC: 470,
-		cpLiquid: 1050,
+		// 34.3 J/(mol·K) ÷ 0.024305 kg/mol = 1 411 J/(kg·K) (liquid Mg, NIST-JANAF, from memory).
+		cpLiquid: 1411,
 		cpSolid: 1050,
 		latentHeatJPerKg: 350_000,
 		pourC: 660,
 		source:
-			'Supplier typical-property tables (density, melting range, specific heat, latent heat; medium confidence); pour temperature common practice.'
+			'Supplier typical-property tables (density, melting range, solid specific heat, latent heat; medium confidence); liquid specific heat of pure magnesium, NIST-JANAF (from memory); pour temperature common practice.'
 	},
 	CuZn39Pb1Al: {
 		name: 'Brass CuZn39Pb1Al-C',
@@ -187,7 +207,8 @@ export const ALLOY_PROPERTY_DEFAULTS: Readonly<Record<AlloyKey, AlloyProperties>
 		densityKgM3: 8500,
 		liquidusC: 900,
 		solidusC: 880,
-		cpLiquid: 380,
+		// 32.8 J/(mol·K) ÷ 0.063546 kg/mol = 516 J/(kg·K) (liquid Cu, NIST-JANAF, from memory).
+		cpLiquid: 516,
 		cpSolid: 380,
 		latentHeatJPerKg: 170_000,
 		pourC: 980,

@@ -1,14 +1,39 @@
 import { z } from 'zod';
-import { decimalNumber, optionalWholeNumber, wholeNumber } from './numbers';
+import { decimalNumber, optionalDecimalNumber, optionalWholeNumber, wholeNumber } from './numbers';
+import { RETIREMENT_REASONS } from '../domain';
 
 // Optional text stays a string ('' when empty) so the form can round-trip it; the server stores
 // empty text as null.
 const optionalText = (max: number) =>
 	z.string().trim().max(max, `Keep it under ${max} characters.`).default('');
 
+/** Units a die's metal pressure may be entered in; stored as bar. */
+export const PRESSURE_UNITS = ['bar', 'MPa', 'psi'] as const;
+export type PressureUnit = (typeof PRESSURE_UNITS)[number];
+const BAR_PER_UNIT: Record<PressureUnit, number> = {
+	bar: 1,
+	MPa: 10, // 1 MPa = 10⁶ Pa = 10 bar (unit definition)
+	psi: 6894.757293168 / 1e5 // 1 psi = 6 894.757 Pa (unit definition: lbf/in²)
+};
+/** Lowest and highest metal pressure Castellan takes, bar: die casting spans about 7–7 000 bar
+ * overall, but die-casting intensification pressures sit roughly between 50 and 2 000 bar
+ * (*common practice*, ../shared/REFERENCES.md "Process facts"). */
+export const METAL_PRESSURE_RANGE_BAR = { min: 50, max: 2000 } as const;
+
+/** The form's pressure in bar; null when left empty (the family default applies). */
+export function metalPressureBarOf(form: {
+	metalPressure?: number;
+	metalPressureUnit?: PressureUnit;
+}): number | null {
+	if (form.metalPressure === undefined) return null;
+	const perUnit = BAR_PER_UNIT[form.metalPressureUnit ?? 'bar'];
+	return Math.round(form.metalPressure * perUnit * 10) / 10;
+}
+
 export const dieNumberPattern = /^[A-Z0-9][A-Z0-9-]{1,19}$/;
 
-export const dieFormSchema = z.object({
+export const dieFormSchema = z
+	.object({
 	number: z
 		.string()
 		.trim()
@@ -34,6 +59,8 @@ export const dieFormSchema = z.object({
 		max: [50000, 'More than 50 000 cm² is not plausible for a die-casting die.']
 	}),
 	hasSlides: z.boolean().default(false),
+	metalPressure: optionalDecimalNumber({ gt: [0, 'The metal pressure must be above 0.'] }),
+	metalPressureUnit: z.enum(PRESSURE_UNITS).optional(),
 	location: optionalText(60),
 	notes: optionalText(2000),
 	expectedLifeShots: optionalWholeNumber({
@@ -43,15 +70,45 @@ export const dieFormSchema = z.object({
 	coverSerial: z.string().trim().max(40, 'Keep it under 40 characters.').optional(),
 	ejectorSerial: z.string().trim().max(40, 'Keep it under 40 characters.').optional(),
 	steel: z.string().trim().max(40, 'Keep it under 40 characters.').default('H13')
-});
+})
+	.superRefine((form, ctx) => {
+		const bar = metalPressureBarOf(form);
+		const { min, max } = METAL_PRESSURE_RANGE_BAR;
+		if (bar !== null && (bar < min || bar > max)) {
+			ctx.addIssue({
+				code: 'custom',
+				path: ['metalPressure'],
+				message: `That is ${Math.round(bar)} bar; die-casting metal pressures lie between ${min} and ${max} bar. Check the figure and its unit.`
+			});
+		}
+	});
 export type DieForm = z.infer<typeof dieFormSchema>;
 
-export const dieStatusSchema = z.object({
-	status: z.enum(['ready', 'running', 'in_toolroom', 'held', 'retired'], {
-		error: 'Choose a status.'
-	}),
-	reason: z.string().trim().min(3, 'Give a reason of at least 3 characters.').max(500)
-});
+export const dieStatusSchema = z
+	.object({
+		status: z.enum(['ready', 'running', 'in_toolroom', 'held', 'retired'], {
+			error: 'Choose a status.'
+		}),
+		reason: z.string().trim().min(3, 'Give a reason of at least 3 characters.').max(500),
+		/** Asked when retiring: only worn out and cracked count as wear failures in the fleet fit. */
+		retirementReason: z.enum([...RETIREMENT_REASONS, '']).default('')
+	})
+	.superRefine((form, ctx) => {
+		if (form.status === 'retired' && form.retirementReason === '') {
+			ctx.addIssue({
+				code: 'custom',
+				path: ['retirementReason'],
+				message: 'Say why the die is retired.'
+			});
+		}
+		if (form.status !== 'retired' && form.retirementReason !== '') {
+			ctx.addIssue({
+				code: 'custom',
+				path: ['retirementReason'],
+				message: 'A retirement reason goes only with moving the die to retired.'
+			});
+		}
+	});
 
 export const dieListQuerySchema = z.object({
 	q: z.string().trim().max(80).catch(''),

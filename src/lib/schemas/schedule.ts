@@ -16,10 +16,13 @@ const optionalPositive = (what: string, max: number) =>
 		max: [max, `More than ${max} is not plausible for the ${what}.`]
 	});
 
+/** Expected scrap when none is given, percent: the same on the order-check page, its API and the booking form. */
+export const DEFAULT_SCRAP_PCT = 2;
+
 const scrapPct = optionalDecimalNumber({
 	min: [0, 'Scrap cannot be below 0 %.'],
 	max: [90, 'Scrap above 90 % is not plausible.']
-}).transform((v) => v ?? 0);
+}).transform((v) => v ?? DEFAULT_SCRAP_PCT);
 
 /** Longest booking Castellan takes; longer runs are booked in parts. Keeps window queries bounded. */
 export const MAX_BOOKING_DAYS = 90;
@@ -211,6 +214,18 @@ export const orderCheckQuerySchema = z.object({
 	}),
 	scrapPct,
 	press: z.string().trim().max(20).default(''),
-	shotsPerHour: optionalPositive('shots per hour', MAX_PLAUSIBLE_SHOTS_PER_HOUR)
+	shotsPerHour: optionalPositive('shots per hour', MAX_PLAUSIBLE_SHOTS_PER_HOUR),
+	/** Start of the run; empty means now. */
+	from: z
+		.string()
+		.trim()
+		.default('')
+		.refine(
+			(v) => v === '' || toUtcIso(v) !== null,
+			'Give the start as date and time, e.g. 2026-12-14T06:00, or leave it empty for now.'
+		)
 });
 export type OrderCheckQuery = z.infer<typeof orderCheckQuerySchema>;
+
+/** `GET /api/v1/dies/{number}/order-check`: the page's question, the die coming from the path. */
+export const orderCheckApiQuerySchema = orderCheckQuerySchema.omit({ die: true });

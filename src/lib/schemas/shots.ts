@@ -248,21 +248,3 @@ export const shotListQuerySchema = z.object({
 	size: z.coerce.number().int().min(10).max(200).catch(50)
 });
 export type ShotListQuery = z.infer<typeof shotListQuerySchema>;
-
-/** `GET /api/v1/dies/{number}/order-check` parameters. */
-export const orderCheckQuerySchema = z.object({
-	parts: wholeNumber({
-		required: 'parts must be a number.',
-		min: [1, 'parts must be at least 1.'],
-		max: [100_000_000, 'parts above 100 million is not plausible.']
-	}),
-	scrapPct: optionalDecimalNumber({
-		min: [0, 'scrapPct must be at least 0.'],
-		lt: [100, 'scrapPct must be below 100.']
-	}).transform((v) => v ?? 0),
-	shotsPerHour: decimalNumber({
-		required: 'shotsPerHour must be a number.',
-		gt: [0, 'shotsPerHour must be more than 0.'],
-		max: [18_000, 'shotsPerHour above 18 000 is not plausible for a die-casting press.']
-	})
-});

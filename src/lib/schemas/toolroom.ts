@@ -264,3 +264,12 @@ export type CorrectInspectionForm = z.infer<typeof correctInspectionSchema>;
 
 /** Voiding a toolroom job: the reason (the job is the page's). */
 export const voidJobSchema = z.object({ reason: voidReason });
+/** A zone the toolroom lead adds to a die's list (one half). */
+export const zoneSchema = z.object({
+	half: z.enum(['cover', 'ejector'], { error: 'Choose the half.' }),
+	name: z
+		.string()
+		.trim()
+		.min(2, 'Name the zone, e.g. gate side or cavity 2.')
+		.max(60, 'Keep the zone name under 60 characters.')
+});

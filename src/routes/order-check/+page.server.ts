@@ -1,6 +1,6 @@
 import { setError, superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
-import { orderCheckQuerySchema } from '$lib/schemas/schedule';
+import { DEFAULT_SCRAP_PCT, orderCheckQuerySchema, toUtcIso } from '$lib/schemas/schedule';
 import { requireRole } from '$lib/server/auth/guard';
 import { getDb } from '$lib/server/db';
 import { runOrderCheck } from '$lib/server/schedule/order-check';
@@ -18,7 +18,7 @@ export const load: PageServerLoad = async (event) => {
 			: superValidate(
 					{
 						die: (event.url.searchParams.get('die') ?? '').toUpperCase().slice(0, 20),
-						scrapPct: 2
+						scrapPct: DEFAULT_SCRAP_PCT
 					},
 					zod4(orderCheckQuerySchema),
 					{ errors: false }
@@ -30,7 +30,21 @@ export const load: PageServerLoad = async (event) => {
 		if (!form.data.die) {
 			setError(form, 'die', 'Enter the die number, e.g. D-0107.');
 		} else {
-			const result = await runOrderCheck(db, form.data, { customerId: null });
+			const q = form.data;
+			const result = await runOrderCheck(
+				db,
+				{
+					die: q.die,
+					parts: q.parts,
+					scrapPct: q.scrapPct,
+					shotsPerHour: q.shotsPerHour ?? null,
+					press: q.press || null,
+					startsAt: q.from ? toUtcIso(q.from) : null
+				},
+				{ customerId: null },
+				undefined,
+				user.unitSystem
+			);
 			if (result.ok) answer = result.answer;
 			else setError(form, result.field, result.message);
 		}

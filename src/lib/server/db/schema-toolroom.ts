@@ -49,6 +49,8 @@ export interface ToolroomJobsTable {
 	voided_at: string | null;
 	voided_by: string | null;
 	void_reason: string | null;
+	/** When the toolroom expects to release the die (ISO-8601 UTC); null when not said. */
+	expected_release_at: string | null;
 }
 
 /** Service tasks a job carries out; marked done at the die's total when the job closes. */
@@ -108,6 +110,26 @@ export interface SurfaceInspectionsTable {
 	void_reason: string | null;
 	/** The inspection this one corrects (that one is voided). */
 	corrects_id: number | null;
+	/** The zone from the die's own list (die_zones); null only for rows that predate the list. */
+	zone_id: number | null;
+	/** The physical half (die_halves.id, by serial) installed when the inspection was made. */
+	half_id: number | null;
+}
+/** A die's surface zones, kept by the toolroom lead; inspections pick from this list. */
+export interface DieZonesTable {
+	id: Generated<number>;
+	die_id: number;
+	half: 'cover' | 'ejector';
+	name: string;
+	active: Generated<number>;
+	created_at: string;
+}
+/** A zone a toolroom job repaired; the zone's crack series restarts after it. */
+export interface JobRepairsTable {
+	id: Generated<number>;
+	job_id: number;
+	zone_id: number;
+	kind: 'weld' | 'insert_change' | 'remachining';
 }
 
 export interface CoolingCircuitsTable {
@@ -156,6 +178,8 @@ export interface ToolroomTables {
 	surface_inspections: SurfaceInspectionsTable;
 	cooling_circuits: CoolingCircuitsTable;
 	cooling_checks: CoolingChecksTable;
+	die_zones: DieZonesTable;
+	job_repairs: JobRepairsTable;
 }
 
 export type ToolroomJob = Selectable<ToolroomJobsTable>;

@@ -1,6 +1,14 @@
 import type { Generated, Insertable, Selectable, Updateable } from 'kysely';
 
-import type { AlloyFamily, DieProcess, DieStatus, HalfSide, Role, ShotSource } from '../../domain';
+import type {
+	AlloyFamily,
+	DieProcess,
+	DieStatus,
+	HalfSide,
+	RetirementReason,
+	Role,
+	ShotSource
+} from '../../domain';
 
 import type { ToolroomTables } from './schema-toolroom';
 import type { ScheduleTables } from './schema-schedule';
@@ -8,7 +16,7 @@ import type { NoticesTables } from './schema-notices';
 import type { InvitationsTables } from './schema-invitations';
 import type { PlantSettingsTables } from './schema-settings';
 
-export type { AlloyFamily, DieProcess, DieStatus, HalfSide, Role, ShotSource };
+export type { AlloyFamily, DieProcess, DieStatus, HalfSide, RetirementReason, Role, ShotSource };
 
 /** 0/1 integer as SQLite stores booleans. */
 export type Flag = number;
@@ -69,6 +77,8 @@ export interface AlloysTable {
 	expected_life_shots: number;
 	density_kg_m3: number | null;
 	specific_heat_j_kgk: number | null;
+	/** Specific heat of the liquid; null = not recorded (the solid's value stands in). */
+	specific_heat_liquid_j_kgk: number | null;
 	latent_heat_j_kg: number | null;
 	solidus_c: number | null;
 	liquidus_c: number | null;
@@ -107,6 +117,10 @@ export interface DiesTable {
 	created_at: Generated<string>;
 	updated_at: Generated<string>;
 	retired_at: string | null;
+	/** The die's own intensification (metal) pressure, bar; null = the family default. */
+	metal_pressure_bar: number | null;
+	/** Set when retired: why (only worn_out and cracked are wear failures). */
+	retirement_reason: RetirementReason | null;
 }
 
 export interface DieHalvesTable {
@@ -124,6 +138,8 @@ export interface DieHalvesTable {
 	removal_reason: string | null;
 	/** Null: the die's expected life applies. */
 	expected_life_shots: number | null;
+	/** Optional picture of the half for picking surface zones (photos.id). */
+	picture_photo_id: number | null;
 }
 
 export interface ShotEntriesTable {

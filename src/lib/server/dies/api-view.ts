@@ -1,4 +1,21 @@
+import { effectiveMetalPressureBar } from '../../calc/clamp';
+import type { AlloyFamily, DieProcess } from '../db/schema';
 import type { DieListRow } from './register';
+
+/**
+ * The die's metal (intensification) pressure as the API shows it: its own figure, or the family
+ * default the clamping check falls back on, saying which.
+ */
+export function dieMetalPressureView(die: {
+	metal_pressure_bar: number | null;
+	process: DieProcess;
+	family: AlloyFamily;
+}) {
+	return {
+		metalPressureBar: effectiveMetalPressureBar(die.metal_pressure_bar, die.process, die.family),
+		metalPressureIsDefault: die.metal_pressure_bar === null
+	};
+}
 
 /** The die as `/api/v1/dies` answers it (DESIGN.md "Interfaces"). */
 export function dieApiView(row: DieListRow) {

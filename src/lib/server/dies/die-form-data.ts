@@ -6,7 +6,7 @@ export async function dieFormChoices(db: DB) {
 		db.selectFrom('customers').select(['id', 'name', 'code']).orderBy('name').execute(),
 		db
 			.selectFrom('alloys')
-			.select(['id', 'name', 'expected_life_shots'])
+			.select(['id', 'name', 'family', 'expected_life_shots'])
 			.orderBy('family')
 			.orderBy('name')
 			.execute()

@@ -1,6 +1,6 @@
 import type { DB } from '../db/connect';
-import type { DieStatus } from '../db/schema';
-import type { DieForm } from '../../schemas/die';
+import type { DieStatus, RetirementReason } from '../db/schema';
+import { metalPressureBarOf, type DieForm } from '../../schemas/die';
 import { writeAudit } from '../audit';
 import { nowIso } from '../time';
 
@@ -44,6 +44,7 @@ function registerColumns(form: DieForm) {
 		cavities: form.cavities,
 		projected_area_cm2: form.projectedAreaCm2,
 		has_slides: form.hasSlides ? 1 : 0,
+		metal_pressure_bar: metalPressureBarOf(form),
 		location: form.location || null,
 		notes: form.notes || null,
 		expected_life_shots: form.expectedLifeShots ?? null
@@ -145,15 +146,30 @@ export async function changeDieStatus(
 	die: { id: number; status: DieStatus },
 	to: DieStatus,
 	reason: string,
-	actorId: string
+	actorId: string,
+	retirementReason: RetirementReason | null = null
 ): Promise<{ ok: true } | { ok: false; message: string }> {
 	if (die.status === 'retired') return { ok: false, message: 'A retired die cannot change state.' };
+	if ((to === 'retired') !== (retirementReason !== null)) {
+		return {
+			ok: false,
+			message:
+				to === 'retired'
+					? 'Say why the die is retired.'
+					: 'A retirement reason goes only with retiring the die.'
+		};
+	}
 	if (die.status === to) return { ok: false, message: 'The die is already in that state.' };
 	const at = nowIso();
 	await db.transaction().execute(async (trx) => {
 		await trx
 			.updateTable('dies')
-			.set({ status: to, updated_at: at, retired_at: to === 'retired' ? at : null })
+			.set({
+				status: to,
+				updated_at: at,
+				retired_at: to === 'retired' ? at : null,
+				retirement_reason: retirementReason
+			})
 			.where('id', '=', die.id)
 			.execute();
 		await writeAudit(
@@ -162,7 +178,9 @@ export async function changeDieStatus(
 				userId: actorId,
 				action: 'die.status',
 				dieId: die.id,
-				detail: { from: die.status, to, reason }
+				detail: retirementReason
+					? { from: die.status, to, reason, retirementReason }
+					: { from: die.status, to, reason }
 			},
 			at
 		);

@@ -11,7 +11,8 @@ import {
 	weibullSurvival
 } from '../../calc/weibull';
 import type { DB } from '../db/connect';
-import type { DieStatus } from '../db/schema';
+import type { DieStatus, RetirementReason } from '../db/schema';
+import { isWearFailure, RETIREMENT_REASONS } from '../../domain';
 import { fitFleetByFamily } from '../schedule/fleet-fit';
 
 export interface SurvivalPoint {
@@ -76,6 +77,7 @@ export interface FleetDie {
 	number: string;
 	partName: string;
 	status: DieStatus;
+	retirementReason: RetirementReason | null;
 	shots: number;
 	expectedLifeShots: number;
 }
@@ -92,6 +94,10 @@ export interface FleetFamily {
 	failures: FleetDie[];
 	/** Dies still in service (suspensions). */
 	running: RunningDie[];
+	/** Dies retired for other reasons than wear (suspensions at their shots). */
+	censored: FleetDie[];
+	/** Retired dies of the family by reason. */
+	retirements: Record<RetirementReason, number>;
 	fit: { shape: number; scale: number; b10: number; mean: number } | null;
 	/** Why there is no fit, in plain words; null with a fit. */
 	reason: string | null;
@@ -112,6 +118,7 @@ async function listFleetDies(db: DB) {
 			'dies.number',
 			'dies.part_name as partName',
 			'dies.status',
+			'dies.retirement_reason as retirementReason',
 			'dies.total_shots as shots',
 			'alloys.family',
 			sql<number>`coalesce(dies.expected_life_shots, alloys.expected_life_shots)`.as(
@@ -123,8 +130,8 @@ async function listFleetDies(db: DB) {
 }
 
 /**
- * Every alloy family's life statistics. Failures and suspensions follow fitFleetByFamily: a
- * retired die with shots is a failure at its total, every other die a suspension at its total.
+ * Every alloy family's life statistics. Failures and suspensions follow fitFleetByFamily: a die
+ * retired worn out or cracked is a failure at its total, every other die a suspension at its total.
  */
 export async function buildFleetLife(db: DB): Promise<FleetFamily[]> {
 	const [fits, dies] = await Promise.all([fitFleetByFamily(db), listFleetDies(db)]);
@@ -135,13 +142,22 @@ export async function buildFleetLife(db: DB): Promise<FleetFamily[]> {
 				number: d.number,
 				partName: d.partName,
 				status: d.status,
+				retirementReason: d.retirementReason,
 				shots: d.shots,
 				expectedLifeShots: d.expectedLifeShots
 			}));
-		const failures = mine
-			.filter((d) => d.status === 'retired' && d.shots > 0)
+		const retired = mine.filter((d) => d.status === 'retired');
+		const failures = retired
+			.filter((d) => isWearFailure(d.retirementReason) && d.shots > 0)
 			.sort((a, b) => a.shots - b.shots);
+		const censored = retired.filter((d) => !isWearFailure(d.retirementReason));
 		const running = mine.filter((d) => d.status !== 'retired');
+		const retirements = Object.fromEntries(
+			RETIREMENT_REASONS.map((r) => [
+				r,
+				retired.filter((d) => (d.retirementReason ?? 'worn_out') === r).length
+			])
+		) as Record<RetirementReason, number>;
 		const familyFit = fits.find((f) => f.family === family);
 		const fit = familyFit?.fit
 			? {
@@ -153,7 +169,7 @@ export async function buildFleetLife(db: DB): Promise<FleetFamily[]> {
 			: null;
 		const km = kaplanMeier(
 			failures.map((d) => d.shots),
-			running.map((d) => d.shots)
+			[...running, ...censored].map((d) => d.shots)
 		);
 		const dataMax = Math.max(0, ...mine.map((d) => d.shots));
 		// Show the fitted curve down to 1 % survival, but never stretch the axis past twice the data.
@@ -183,6 +199,8 @@ export async function buildFleetLife(db: DB): Promise<FleetFamily[]> {
 						: null
 				};
 			}),
+			censored,
+			retirements,
 			fit,
 			reason: fit ? null : (familyFit?.reason ?? 'No life statistics for this family.'),
 			kaplanMeier: km,

@@ -1,6 +1,6 @@
 import type { z } from 'zod';
 import { ApiError, type ApiIssue } from '../api/respond';
-import type { BookingCheck } from './booking-checks';
+import type { BookingCheck } from './verdict';
 import type { CreateBookingResult } from './bookings';
 
 /** Zod issues as the API's row-level `issues`. */

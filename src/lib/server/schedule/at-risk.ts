@@ -1,7 +1,7 @@
 import type { UnitSystem } from '../../calc/units';
 import type { DB } from '../db/connect';
 import { nowIso } from '../time';
-import { assessBooking, projectShotsBeforeStart, type BookingCheck } from './booking-checks';
+import { assessRun, projectShotsBeforeStart, type BookingCheck } from './verdict';
 import { listBookingsInWindow, type BookingRow } from './bookings';
 import { loadDieFactsByIds } from './die-facts';
 import { listOpenToolroomJobs } from './toolroom-hook';
@@ -47,7 +47,9 @@ export async function listBookingsAtRisk(
 		),
 		db.selectFrom('machines').selectAll().execute()
 	]);
-	const inToolroom = [...facts.values()].filter((d) => d.status === 'in_toolroom').map((d) => d.id);
+	const inToolroom = [...facts.values()]
+		.filter((d) => d.status === 'in_toolroom' || d.status === 'held')
+		.map((d) => d.id);
 	const jobs = groupBy(await listOpenToolroomJobs(db, inToolroom), (j) => j.dieId);
 	const byDie = groupBy(bookings, (b) => b.die_id);
 	const byPress = groupBy(bookings, (b) => b.machine_id);
@@ -59,7 +61,7 @@ export async function listBookingsAtRisk(
 		const press = pressById.get(booking.machine_id);
 		if (!die || !press) continue;
 		const mine = byDie.get(die.id) ?? [];
-		const assessed = assessBooking({
+		const assessed = assessRun({
 			draft: {
 				die: booking.dieNumber,
 				press: booking.pressName,
@@ -71,7 +73,7 @@ export async function listBookingsAtRisk(
 			},
 			die,
 			press,
-			jobNumbers: (jobs.get(die.id) ?? []).map((j) => j.number),
+			jobs: jobs.get(die.id) ?? [],
 			dieClashes: mine.filter((b) => overlaps(b, booking)),
 			pressClashes: (byPress.get(press.id) ?? []).filter((b) => overlaps(b, booking)),
 			shotsBeforeStart: projectShotsBeforeStart(

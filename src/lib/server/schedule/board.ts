@@ -9,7 +9,7 @@ import type { DieProcess, DieStatus } from '../db/schema';
 import type { DieScope } from '../dies/register';
 import { projectTaskDue, viewServiceTask } from '../dies/service-summary';
 import { nowIso } from '../time';
-import { chamberChecks, dieClampRequirement } from './booking-checks';
+import { chamberChecks, dieClampRequirement } from './verdict';
 import { bookingPhase, windowBounds } from './bookings';
 import { MAX_BOOKING_DAYS } from '../../schemas/schedule';
 import { trailingShotsPerDay, type DieFacts } from './die-facts';

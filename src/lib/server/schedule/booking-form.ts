@@ -1,9 +1,14 @@
 import type { UnitSystem } from '../../calc/units';
 import { plantDate } from '../../plant-time';
-import { toLocalInput, toUtcIso, type BookingForm } from '../../schemas/schedule';
+import {
+	DEFAULT_SCRAP_PCT,
+	toLocalInput,
+	toUtcIso,
+	type BookingForm
+} from '../../schemas/schedule';
 import type { DB } from '../db/connect';
 import { nowIso } from '../time';
-import type { BookingCheck } from './booking-checks';
+import type { BookingCheck } from './verdict';
 import { createBooking, type BookingActor } from './bookings';
 
 const HOUR_MS = 3_600_000;
@@ -34,7 +39,7 @@ export function bookingFormDefaults(params: URLSearchParams, now = nowIso()): Pa
 		press: (params.get('press') ?? '').slice(0, 20),
 		startsAt: toLocalInput(start),
 		endsAt: toLocalInput(end),
-		scrapPct: 2,
+		scrapPct: DEFAULT_SCRAP_PCT,
 		confirm: false,
 		confirmedWarnings: ''
 	};

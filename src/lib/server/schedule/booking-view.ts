@@ -2,7 +2,7 @@ import { error } from '@sveltejs/kit';
 import type { UnitSystem } from '../../calc/units';
 import type { DB } from '../db/connect';
 import { nowIso } from '../time';
-import { evaluateBooking } from './booking-checks';
+import { judgeRun } from './verdict';
 import { bookingPhase, getBooking } from './bookings';
 import { shotsNeededFor } from './die-facts';
 
@@ -24,7 +24,7 @@ export async function loadBookingPage(
 	const shotsPlanned = shotsNeededFor(booking.parts, booking.cavities, booking.scrap_pct);
 	let checks = null;
 	if (phase === 'planned' || phase === 'running') {
-		const ev = await evaluateBooking(
+		const ev = await judgeRun(
 			db,
 			{
 				die: booking.dieNumber,

@@ -5,7 +5,7 @@ import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
 import type { DieScope } from '../dies/register';
 import { nowIso } from '../time';
-import { evaluateBooking, type BookingCheck, type BookingDraft } from './booking-checks';
+import { judgeRun, type BookingCheck, type BookingDraft } from './verdict';
 import { shotsNeededFor } from './die-facts';
 
 const DAY_MS = 86_400_000;
@@ -18,6 +18,9 @@ export interface BookingActor {
 }
 
 export interface NewBookingInput extends BookingDraft {
+	press: string;
+	startsAt: string;
+	endsAt: string;
 	orderRef: string;
 	notes?: string | null;
 }
@@ -58,12 +61,14 @@ export async function createBooking(
 ): Promise<CreateBookingResult> {
 	const now = options.now ?? nowIso();
 	return db.transaction().execute(async (trx) => {
-		const ev = await evaluateBooking(trx, input, {
+		const ev = await judgeRun(trx, input, {
 			now,
 			scope: { customerId: actor.customerId },
 			unitSystem: options.unitSystem
 		});
 		if (!ev.ok) return { ok: false, kind: 'invalid', field: ev.field, message: ev.message };
+		if (!ev.press)
+			return { ok: false, kind: 'invalid', field: 'press', message: 'Choose a press.' };
 		if (ev.blocks.length > 0)
 			return { ok: false, kind: 'blocked', blocks: ev.blocks, warnings: ev.warnings };
 		if (!warningsAccepted(ev.warnings, options.confirm)) {

@@ -25,6 +25,8 @@ export interface DieFacts {
 	cavities: number;
 	projectedAreaCm2: number;
 	hasSlides: boolean;
+	/** The die's own metal (intensification) pressure, bar; null when not recorded. */
+	metalPressureBar: number | null;
 	status: DieStatus;
 	totalShots: number;
 	expectedLifeShots: number;
@@ -125,6 +127,7 @@ export async function loadDieFactsByIds(
 			'dies.cavities',
 			'dies.projected_area_cm2',
 			'dies.has_slides',
+			'dies.metal_pressure_bar',
 			'dies.status',
 			'dies.total_shots',
 			sql<number>`coalesce(dies.expected_life_shots, alloys.expected_life_shots)`.as('expectedLife')
@@ -184,6 +187,7 @@ export async function loadDieFactsByIds(
 			cavities: d.cavities,
 			projectedAreaCm2: d.projected_area_cm2,
 			hasSlides: d.has_slides === 1,
+			metalPressureBar: d.metal_pressure_bar,
 			status: d.status,
 			totalShots: d.total_shots,
 			expectedLifeShots: d.expectedLife,

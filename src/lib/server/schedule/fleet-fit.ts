@@ -1,16 +1,17 @@
 import { ALLOY_FAMILIES, type AlloyFamily } from '../../calc/life';
 import { fitWeibull, weibullB10, type WeibullFit } from '../../calc/weibull';
 import type { DB } from '../db/connect';
+import { isWearFailure } from '../../domain';
 
 /** Fewest retired dies a family needs before Castellan fits its life distribution. */
 export const MIN_FAILURES_FOR_FIT = 3;
 
 export interface FamilyFit {
 	family: AlloyFamily;
-	/** Retired dies (failures) and their shots at retirement. */
+	/** Dies retired worn out or cracked (failures) and their shots at retirement. */
 	failures: number;
 	failureShots: number[];
-	/** Dies still in service (right-censored suspensions) and their shots so far. */
+	/** Dies still in service, or retired for other reasons (right-censored), and their shots. */
 	suspensions: number;
 	suspensionShots: number[];
 	/** Maximum-likelihood Weibull fit with its B10 life (shots); null when it cannot be made. */
@@ -21,8 +22,9 @@ export interface FamilyFit {
 
 /**
  * Fleet life statistics per alloy family: a Weibull fit by maximum likelihood (calc/weibull,
- * NIST/SEMATECH §8.4.1.3) with retired dies as failures at their total shots and every other die
- * as a suspension at its shots so far. A family with fewer than `minFailures` retired dies gets no
+ * NIST/SEMATECH §8.4.1.3) with dies retired worn out or cracked as failures at their total shots
+ * and every other die — running, or retired by accident, obsolete part, transfer or recall — as a
+ * suspension at its shots (`isWearFailure`). A family with fewer than `minFailures` retired dies gets no
  * fit and a reason instead.
  */
 export async function fitFleetByFamily(
@@ -32,14 +34,17 @@ export async function fitFleetByFamily(
 	const rows = await db
 		.selectFrom('dies')
 		.innerJoin('alloys', 'alloys.id', 'dies.alloy_id')
-		.select(['alloys.family', 'dies.status', 'dies.total_shots'])
+		.select(['alloys.family', 'dies.status', 'dies.total_shots', 'dies.retirement_reason'])
 		.execute();
 	return ALLOY_FAMILIES.map((family) => {
 		const mine = rows.filter((r) => r.family === family);
+		const failed = (r: (typeof mine)[number]) =>
+			r.status === 'retired' && isWearFailure(r.retirement_reason);
 		const failureShots = mine
-			.filter((r) => r.status === 'retired' && r.total_shots > 0)
+			.filter((r) => failed(r) && r.total_shots > 0)
 			.map((r) => r.total_shots);
-		const suspensionShots = mine.filter((r) => r.status !== 'retired').map((r) => r.total_shots);
+		// Running dies and dies retired for other reasons than wear: right-censored at their shots.
+		const suspensionShots = mine.filter((r) => !failed(r)).map((r) => r.total_shots);
 		const base = {
 			family,
 			failures: failureShots.length,

@@ -1,73 +1,51 @@
 import { TYPICAL_SHOTS_PER_HOUR } from '../../calc/life';
-import { checkOrder, type OrderCheck } from '../../calc/order-check';
+import type { UnitSystem } from '../../calc/units';
 import { conditionalSurvival } from '../../calc/weibull';
 import { serviceKindLabel } from '../../labels';
 import type { DB } from '../db/connect';
 import type { DieScope } from '../dies/register';
 import { viewServiceTask } from '../dies/service-summary';
 import { nowIso } from '../time';
-import { chamberChecks, dieClampRequirement, type BookingCheck } from './booking-checks';
-import { defaultShotsPerHour, loadDieFacts, type DieFacts } from './die-facts';
 import { fitFleetByFamily } from './fleet-fit';
-import { findPressByName, type Press } from './presses';
+import { judgeRun, shotsLeftToEndOfLife, type Assessment, type RunRequest } from './verdict';
 
 const DAY_MS = 86_400_000;
 
-export interface OrderCheckRequest {
-	die: string;
-	parts: number;
-	scrapPct: number;
-	press?: string | null;
-	shotsPerHour?: number | null;
-}
+export type OrderCheckRequest = RunRequest;
 
-export interface OrderCheckAnswer {
-	die: DieFacts;
-	press: Press | null;
-	shotsPerHour: number;
-	rateIsDefault: boolean;
+export interface OrderCheckAnswer extends Assessment {
 	typicalRate: { min: number; max: number };
-	order: OrderCheck;
-	/** The shot-counted service task that falls due first, with the shots left to it. */
+	/** The shot-counted service task that falls due first, with the shots left to it now. */
 	nextService: { kind: string; label: string; shotsRemaining: number } | null;
 	/** The calendar-kept task that falls due first, with its date. */
 	nextServiceByDate: { kind: string; label: string; dueOn: string } | null;
 	shotsToEndOfLife: number;
-	clamp: {
-		requiredKn: number;
-		metalPressureBar: number;
-		availableKn: number | null;
-		fits: boolean | null;
-	};
-	pressFindings: BookingCheck[];
 	survival:
 		| { probability: number; shape: number; scale: number; failures: number; suspensions: number }
 		| { probability: null; reason: string };
 }
 
 /**
- * Can this die make the order: shots needed, press hours, the first limit that blocks (next
- * service or end of life, calc/order-check), clamping force against the press, and the chance the
- * die lasts the run from the fleet's Weibull fit for its alloy family.
+ * The order-check page's answer: the one verdict (`judgeRun`) plus the figures the page shows
+ * around it — the next service by shots and by date, the life left, and the chance the die lasts
+ * the run from the fleet's Weibull fit for its alloy family. Only `judgeRun` judges.
  */
 export async function runOrderCheck(
 	db: DB,
 	req: OrderCheckRequest,
 	scope: DieScope,
-	now = nowIso()
+	now = nowIso(),
+	unitSystem: UnitSystem = 'metric'
 ): Promise<
 	{ ok: true; answer: OrderCheckAnswer } | { ok: false; field: 'die' | 'press'; message: string }
 > {
-	const [die, press] = await Promise.all([
-		loadDieFacts(db, req.die, scope, now),
-		req.press ? findPressByName(db, req.press) : Promise.resolve(null)
+	const [judged, fits] = await Promise.all([
+		judgeRun(db, req, { now, scope, unitSystem }),
+		fitFleetByFamily(db)
 	]);
-	if (!die)
-		return { ok: false, field: 'die', message: `There is no die ${req.die.toUpperCase()}.` };
-	if (req.press && !press)
-		return { ok: false, field: 'press', message: `There is no press ${req.press}.` };
+	if (!judged.ok) return judged;
+	const die = judged.die;
 
-	const shotsPerHour = req.shotsPerHour ?? defaultShotsPerHour(die.family);
 	let nextService: OrderCheckAnswer['nextService'] = null;
 	let nextServiceByDate: OrderCheckAnswer['nextServiceByDate'] = null;
 	for (const task of die.tasks) {
@@ -91,24 +69,13 @@ export async function runOrderCheck(
 			}
 		}
 	}
-	const shotsToEndOfLife = die.expectedLifeShots - die.totalShots;
-	const order = checkOrder({
-		parts: req.parts,
-		cavities: die.cavities,
-		scrapPct: req.scrapPct,
-		shotsPerHour,
-		shotsToNextService: nextService?.shotsRemaining ?? null,
-		shotsToEndOfLife
-	});
-	const { requiredKn, metalPressureBar } = dieClampRequirement(die);
 
-	const fits = await fitFleetByFamily(db);
 	const family = fits.find((f) => f.family === die.family)!;
 	const survival: OrderCheckAnswer['survival'] = family.fit
 		? {
 				probability: conditionalSurvival(
 					die.totalShots,
-					order.shotsNeeded,
+					judged.shotsNeeded,
 					family.fit.shape,
 					family.fit.scale
 				),
@@ -122,23 +89,45 @@ export async function runOrderCheck(
 	return {
 		ok: true,
 		answer: {
-			die,
-			press: press ?? null,
-			shotsPerHour,
-			rateIsDefault: req.shotsPerHour == null,
+			...judged,
 			typicalRate: TYPICAL_SHOTS_PER_HOUR[die.family],
-			order,
 			nextService,
 			nextServiceByDate,
-			shotsToEndOfLife,
-			clamp: {
-				requiredKn,
-				metalPressureBar,
-				availableKn: press?.clamp_force_kn ?? null,
-				fits: press ? press.clamp_force_kn >= requiredKn : null
-			},
-			pressFindings: press ? chamberChecks(die, press) : [],
+			shotsToEndOfLife: shotsLeftToEndOfLife(die),
 			survival
+		}
+	};
+}
+
+/** What the order-check API answers: the verdict, its reasons and the figures behind them. */
+export function orderCheckApiView(a: OrderCheckAnswer) {
+	return {
+		die: a.die.number,
+		status: a.die.status,
+		verdict: a.verdict,
+		reasons: a.reasons.map((r) => ({
+			code: r.code,
+			level: r.level,
+			sentence: r.message,
+			number: r.number
+		})),
+		press: a.press?.name ?? null,
+		from: a.startsAt,
+		until: a.endsAt,
+		cavities: a.die.cavities,
+		totalShots: a.die.totalShots,
+		shotsNeeded: a.shotsNeeded,
+		shotsPerHour: a.shotsPerHour,
+		rateIsDefault: a.rateIsDefault,
+		pressHours: a.pressHours,
+		shotsToEndOfLife: a.shotsToEndOfLife,
+		shotsToNextService: a.nextService?.shotsRemaining ?? null,
+		nextServiceKind: a.nextService?.kind ?? null,
+		clamp: {
+			requiredKn: a.clamp.requiredKn,
+			metalPressureBar: a.clamp.metalPressureBar,
+			pressureIsDefault: a.clamp.pressureIsDefault,
+			availableKn: a.clamp.availableKn
 		}
 	};
 }

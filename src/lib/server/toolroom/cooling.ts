@@ -541,6 +541,8 @@ export interface HeatBalanceView {
 		code: string;
 		name: string;
 		specificHeat: number | null;
+		/** Liquid specific heat; null when not recorded (the solid's value is used). */
+		specificHeatLiquid: number | null;
 		latentHeat: number | null;
 		solidusC: number | null;
 		liquidusC: number | null;
@@ -574,6 +576,7 @@ export async function getHeatBalance(
 			'code',
 			'name',
 			'specific_heat_j_kgk',
+			'specific_heat_liquid_j_kgk',
 			'latent_heat_j_kg',
 			'solidus_c',
 			'liquidus_c',
@@ -599,6 +602,7 @@ export async function getHeatBalance(
 			code: alloy.code,
 			name: alloy.name,
 			specificHeat: alloy.specific_heat_j_kgk,
+			specificHeatLiquid: alloy.specific_heat_liquid_j_kgk,
 			latentHeat: alloy.latent_heat_j_kg,
 			solidusC: alloy.solidus_c,
 			liquidusC: alloy.liquidus_c,
@@ -631,7 +635,7 @@ export async function getHeatBalance(
 			liquidusC: alloy.liquidus_c!,
 			solidusC: alloy.solidus_c!,
 			ejectC: query.ejectC,
-			cpLiquid: alloy.specific_heat_j_kgk!,
+			cpLiquid: alloy.specific_heat_liquid_j_kgk ?? alloy.specific_heat_j_kgk!,
 			cpSolid: alloy.specific_heat_j_kgk!,
 			latentHeatJPerKg: latentHeat
 		});

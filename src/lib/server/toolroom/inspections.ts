@@ -3,7 +3,13 @@
  * trend per zone, the zone timeline and side-by-side comparison, and the dies whose surface is
  * getting worse.
  */
-import { crackTrend, DEFAULT_REPAIR_GRADE, type CrackTrend } from '../../calc/crack-trend';
+import {
+	DEFAULT_REPAIR_GRADE,
+	splitCrackSeries,
+	type CrackPoint,
+	type CrackSeries,
+	type CrackTrend
+} from '../../calc/crack-trend';
 import { MAX_PHOTOS_PER_UPLOAD, type InspectionForm } from '../../schemas/toolroom';
 import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
@@ -15,6 +21,7 @@ import {
 } from '../photos/store';
 import { nowIso } from '../time';
 import { canLeadToolroom, canWorkToolroom } from './access';
+import { findDieZone, listZoneRepairs } from './zones';
 import type { Actor } from './jobs';
 import { insertPhotoRows, listInspectionPhotos } from './photos';
 
@@ -75,6 +82,24 @@ export async function recordInspection(
 	if (tooMany) {
 		return { ok: false, status: 400, message: tooMany, problems: [], field: 'shotsAt' };
 	}
+	const zone = await findDieZone(db, input.dieId, form.half, form.zone);
+	if (!zone) {
+		return {
+			ok: false,
+			status: 400,
+			message: `“${form.zone.trim()}” is not on this die’s ${form.half} half zone list. Pick a listed zone; the toolroom lead adds new ones.`,
+			problems: []
+		};
+	}
+	// The physical half on the die when the inspection is made (by serial, for the crack series).
+	const half = await db
+		.selectFrom('die_halves')
+		.select('id')
+		.where('die_id', '=', input.dieId)
+		.where('side', '=', form.half)
+		.where('active', '=', 1)
+		.orderBy('installed_at', 'desc')
+		.executeTakeFirst();
 	let images: Parameters<typeof storePhotoFilesWith>[1] = [];
 	if (input.files.length > 0) {
 		const prepared = await preparePhotos(input.files, MAX_PHOTOS_PER_UPLOAD);
@@ -96,7 +121,9 @@ export async function recordInspection(
 					die_id: input.dieId,
 					job_id: input.jobId ?? null,
 					half: form.half,
-					zone: form.zone,
+					zone: zone.name,
+					zone_id: zone.id,
+					half_id: half?.id ?? null,
 					shots_at: form.shotsAt,
 					grade: form.grade,
 					longest_crack_mm: form.longestCrackMm,
@@ -145,10 +172,13 @@ async function inspectionRows(db: DB, dieId: number) {
 	return db
 		.selectFrom('surface_inspections as s')
 		.leftJoin('users as u', 'u.id', 's.inspected_by')
+		.leftJoin('die_halves as h', 'h.id', 's.half_id')
 		.select([
 			's.id',
 			's.half',
 			's.zone',
+			's.zone_id as zoneId',
+			'h.serial as halfSerial',
 			's.shots_at as shotsAt',
 			's.grade',
 			's.longest_crack_mm as longestCrackMm',
@@ -170,39 +200,67 @@ type InspectionRow = Awaited<ReturnType<typeof inspectionRows>>[number];
 
 export interface ZoneSummary {
 	key: string;
+	zoneId: number | null;
 	half: 'cover' | 'ejector';
 	zone: string;
 	count: number;
 	latest: InspectionRow;
+	/** Trend of the current series (since the last repair of the zone or the last new half). */
 	trend: CrackTrend;
+	/** Every series of the zone, oldest first; only the last is current. */
+	series: CrackSeries<SeriesPoint>[];
 	/** Shots from the die's current total until the trend reaches the repair grade. */
 	shotsToRepair: number | null;
 	rising: boolean;
 }
 
-function summariseZones(rows: InspectionRow[], dieTotal: number, repairGrade: number) {
+type SeriesPoint = CrackPoint & { id: number };
+type Repair = Awaited<ReturnType<typeof listZoneRepairs>>[number];
+
+/** A zone's key: its list entry, or half and text for rows that predate the list. */
+const rowKey = (r: InspectionRow) => (r.zoneId !== null ? `z${r.zoneId}` : zoneKey(r.half, r.zone));
+
+function summariseZones(
+	rows: InspectionRow[],
+	repairs: Repair[],
+	dieTotal: number,
+	repairGrade: number
+) {
 	const groups = new Map<string, InspectionRow[]>();
 	for (const r of rows) {
-		const key = zoneKey(r.half, r.zone);
+		const key = rowKey(r);
 		groups.set(key, [...(groups.get(key) ?? []), r]);
 	}
 	const zones: ZoneSummary[] = [];
 	for (const [key, list] of groups) {
 		// Rows come in shot order, later entries last: the last is the latest inspection.
 		const latest = list[list.length - 1];
-		const trend = crackTrend(
-			list.map((r) => ({ shots: r.shotsAt, grade: r.grade })),
+		const series = splitCrackSeries<SeriesPoint>(
+			list.map((r) => ({
+				id: r.id,
+				shots: r.shotsAt,
+				grade: r.grade,
+				longestCrackMm: r.longestCrackMm,
+				at: r.inspectedAt,
+				halfSerial: r.halfSerial
+			})),
+			repairs
+				.filter((p) => p.zoneId === latest.zoneId && p.closedAt !== null)
+				.map((p) => ({ at: p.closedAt!, kind: p.kind, shots: p.shots })),
 			repairGrade
 		);
+		const trend = series[series.length - 1].trend;
 		const rising =
 			(trend.slopePerShot !== null && trend.slopePerShot > 0) || latest.grade >= repairGrade;
 		zones.push({
 			key,
+			zoneId: latest.zoneId,
 			half: latest.half,
 			zone: latest.zone,
 			count: list.length,
 			latest,
 			trend,
+			series,
 			shotsToRepair:
 				trend.projectedShotsAtRepair === null
 					? null
@@ -225,12 +283,16 @@ export async function getSurfaceOverview(
 	options: { zone?: string | null; repairGrade?: number } = {}
 ) {
 	const repairGrade = options.repairGrade ?? DEFAULT_REPAIR_GRADE;
-	const rows = await inspectionRows(db, die.id);
+	const [allRows, repairs] = await Promise.all([
+		inspectionRows(db, die.id),
+		listZoneRepairs(db, die.id)
+	]);
 	// Voided inspections stay on the zone's timeline (struck through) but leave grade and trend.
-	const live = rows.filter((r) => r.voidedAt === null);
-	const zones = summariseZones(live, die.total_shots, repairGrade);
+	const rows = allRows;
+	const live = allRows.filter((r) => r.voidedAt === null);
+	const zones = summariseZones(live, repairs, die.total_shots, repairGrade);
 	const selected = zones.find((z) => z.key === options.zone) ?? zones[0] ?? null;
-	const timelineRows = selected ? rows.filter((r) => zoneKey(r.half, r.zone) === selected.key) : [];
+	const timelineRows = selected ? rows.filter((r) => rowKey(r) === selected.key) : [];
 	const photos = await listInspectionPhotos(
 		db,
 		timelineRows.map((r) => r.id)
@@ -268,52 +330,41 @@ export async function findComparePhotos(db: DB, dieId: number, ids: string[]) {
  * past the repair grade, worst first — for the toolroom home.
  */
 export async function listRisingSurfaces(db: DB, repairGrade = DEFAULT_REPAIR_GRADE) {
-	const rows = await db
-		.selectFrom('surface_inspections as s')
-		.innerJoin('dies', 'dies.id', 's.die_id')
-		.select([
-			's.id',
-			's.die_id as dieId',
-			'dies.number as dieNumber',
-			'dies.part_name as partName',
-			'dies.total_shots as dieTotal',
-			's.half',
-			's.zone',
-			's.shots_at as shotsAt',
-			's.grade'
-		])
-		.where('dies.status', '!=', 'retired')
-		.where('s.voided_at', 'is', null)
-		.orderBy('s.shots_at')
-		.orderBy('s.id')
+	const dies = await db
+		.selectFrom('dies')
+		.select(['id', 'number', 'part_name', 'total_shots'])
+		.where('status', '!=', 'retired')
+		.where((eb) =>
+			eb.exists(
+				eb
+					.selectFrom('surface_inspections as s')
+					.select('s.id')
+					.whereRef('s.die_id', '=', 'dies.id')
+					.where('s.voided_at', 'is', null)
+			)
+		)
 		.execute();
-	const byZone = new Map<string, typeof rows>();
-	for (const r of rows) {
-		const key = `${r.dieId}|${zoneKey(r.half, r.zone)}`;
-		byZone.set(key, [...(byZone.get(key) ?? []), r]);
-	}
 	const result = [];
-	for (const list of byZone.values()) {
-		const latest = list[list.length - 1];
-		const trend = crackTrend(
-			list.map((r) => ({ shots: r.shotsAt, grade: r.grade })),
-			repairGrade
-		);
-		const rising = trend.slopePerShot !== null && trend.slopePerShot > 0;
-		if (!rising && latest.grade < repairGrade) continue;
-		result.push({
-			dieNumber: latest.dieNumber,
-			partName: latest.partName,
-			half: latest.half,
-			zone: latest.zone,
-			grade: latest.grade,
-			shotsAt: latest.shotsAt,
-			slopePer10k: trend.slopePerShot === null ? null : trend.slopePerShot * 10_000,
-			shotsToRepair:
-				trend.projectedShotsAtRepair === null
-					? null
-					: Math.max(0, trend.projectedShotsAtRepair - latest.dieTotal)
-		});
+	for (const die of dies) {
+		// The same zones, series and trends as the die's surface tab (summariseZones).
+		const [rows, repairs] = await Promise.all([
+			inspectionRows(db, die.id),
+			listZoneRepairs(db, die.id)
+		]);
+		const live = rows.filter((r) => r.voidedAt === null);
+		for (const z of summariseZones(live, repairs, die.total_shots, repairGrade)) {
+			if (!z.rising) continue;
+			result.push({
+				dieNumber: die.number,
+				partName: die.part_name,
+				half: z.half,
+				zone: z.zone,
+				grade: z.latest.grade,
+				shotsAt: z.latest.shotsAt,
+				slopePer10k: z.trend.slopePerShot === null ? null : z.trend.slopePerShot * 10_000,
+				shotsToRepair: z.shotsToRepair
+			});
+		}
 	}
 	return result.sort(
 		(a, b) =>

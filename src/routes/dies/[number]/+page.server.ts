@@ -36,7 +36,13 @@ export const load: PageServerLoad = async (event) => {
 		getDieStory(db, die, asOf),
 		listServicePlan(db, die, life.shotsPerDay, asOf),
 		// Start on "Choose…", not on the schema's first state.
-		superValidate({ status: '' as DieStatus, reason: '' }, zod4(dieStatusSchema), { errors: false })
+		superValidate(
+			{ status: '' as DieStatus, reason: '', retirementReason: '' as const },
+			zod4(dieStatusSchema),
+			{
+				errors: false
+			}
+		)
 	]);
 	const needsService = plan.tasks.filter((t) => t.state !== 'on_track').length;
 	// The soonest projected date, which need not be the worst task now (a short calendar interval
@@ -69,7 +75,14 @@ export const actions: Actions = {
 		if (!allowedTargets(user.role, die.status).includes(to)) {
 			return message(form, 'Your role may not move this die to that state.', { status: 403 });
 		}
-		const result = await changeDieStatus(getDb(), die, to, form.data.reason, user.id);
+		const result = await changeDieStatus(
+			getDb(),
+			die,
+			to,
+			form.data.reason,
+			user.id,
+			form.data.retirementReason || null
+		);
 		if (!result.ok) return message(form, result.message, { status: 409 });
 		return message(form, 'State changed.');
 	}

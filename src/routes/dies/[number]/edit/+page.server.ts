@@ -1,6 +1,7 @@
 import { fail, redirect } from '@sveltejs/kit';
 import { setError, superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
+import { barToPsi } from '$lib/calc/units';
 import { dieFormSchema } from '$lib/schemas/die';
 import { requireRole } from '$lib/server/auth/guard';
 import { getDb } from '$lib/server/db';
@@ -11,8 +12,9 @@ import { DIE_EDITORS } from '$lib/roles';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
-	requireRole(event, ...DIE_EDITORS);
+	const user = requireRole(event, ...DIE_EDITORS);
 	const die = await loadPlantDie(event.params.number);
+	const us = user.unitSystem === 'us';
 	const [form, choices] = await Promise.all([
 		superValidate(
 			{
@@ -25,6 +27,13 @@ export const load: PageServerLoad = async (event) => {
 				cavities: die.cavities,
 				projectedAreaCm2: die.projected_area_cm2,
 				hasSlides: die.has_slides === 1,
+				metalPressure:
+					die.metal_pressure_bar === null
+						? undefined
+						: us
+							? Math.round(barToPsi(die.metal_pressure_bar))
+							: die.metal_pressure_bar,
+				metalPressureUnit: us ? 'psi' : 'bar',
 				location: die.location ?? undefined,
 				notes: die.notes ?? undefined,
 				expectedLifeShots: die.expected_life_shots ?? undefined

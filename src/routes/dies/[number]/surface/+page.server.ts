@@ -5,7 +5,8 @@ import {
 	correctInspectionSchema,
 	inspectionSchema,
 	MAX_PHOTOS_PER_UPLOAD,
-	voidRecordSchema
+	voidRecordSchema,
+	zoneSchema
 } from '$lib/schemas/toolroom';
 import { requireRole } from '$lib/server/auth/guard';
 import { getDb } from '$lib/server/db';
@@ -13,6 +14,7 @@ import { loadPlantDie } from '$lib/server/dies/load-die';
 import { MAX_PHOTO_BYTES, MAX_PHOTO_PIXELS } from '$lib/server/photos/process-image';
 import { selectedFiles } from '$lib/server/photos/store';
 import { getUploadDir } from '$lib/server/photos/upload-dir';
+import { addDieZone, listDieZones } from '$lib/server/toolroom/zones';
 import {
 	canLeadToolroom,
 	canWorkToolroom,
@@ -34,14 +36,16 @@ export const load: PageServerLoad = async (event) => {
 	const die = await loadPlantDie(event.params.number);
 	const db = getDb();
 	const params = event.url.searchParams;
-	const [overview, compare, form, voidForm, correctForm] = await Promise.all([
+	const [overview, compare, form, voidForm, correctForm, zoneList, zoneForm] = await Promise.all([
 		getSurfaceOverview(db, die, { zone: params.get('zone') }),
 		findComparePhotos(db, die.id, [params.get('a') ?? '', params.get('b') ?? '']),
 		superValidate({ shotsAt: die.total_shots, half: 'cover' }, zod4(inspectionSchema), {
 			errors: false
 		}),
 		superValidate(zod4(voidRecordSchema), { id: 'voidInspection' }),
-		superValidate(zod4(correctInspectionSchema), { id: 'correctInspection' })
+		superValidate(zod4(correctInspectionSchema), { id: 'correctInspection' }),
+		listDieZones(db, die.id),
+		superValidate(zod4(zoneSchema), { id: 'zone' })
 	]);
 	return {
 		...overview,
@@ -52,6 +56,9 @@ export const load: PageServerLoad = async (event) => {
 		correctForm,
 		canWork: canWorkToolroom(user.role),
 		canLead: canLeadToolroom(user.role),
+		zoneList,
+		zoneForm,
+		canKeepZones: TOOLROOM_LEADS.includes(user.role),
 		limits: {
 			maxFiles: MAX_PHOTOS_PER_UPLOAD,
 			maxMb: Math.round(MAX_PHOTO_BYTES / 1024 / 1024),
@@ -61,6 +68,18 @@ export const load: PageServerLoad = async (event) => {
 };
 
 export const actions: Actions = {
+	zone: async (event) => {
+		const user = requireRole(event, ...TOOLROOM_LEADS);
+		const die = await loadPlantDie(event.params.number);
+		const form = await superValidate(event.request, zod4(zoneSchema), { id: 'zone' });
+		if (!form.valid) return fail(400, { zoneForm: form });
+		const result = await addDieZone(getDb(), die.id, form.data, {
+			userId: user.id,
+			role: user.role
+		});
+		if (!result.ok) return setError(form, 'name', result.message);
+		return message(form, `Zone “${form.data.name}” added to the ${form.data.half} half.`);
+	},
 	inspect: async (event) => {
 		const user = requireRole(event, ...TOOLROOM_WORKERS);
 		const die = await loadPlantDie(event.params.number);

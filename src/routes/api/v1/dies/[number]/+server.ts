@@ -2,7 +2,7 @@ import { json } from '@sveltejs/kit';
 import { ApiError, apiRoute } from '$lib/server/api/respond';
 import { authorizeApi } from '$lib/server/auth/principal';
 import { getDb } from '$lib/server/db';
-import { dieApiView } from '$lib/server/dies/api-view';
+import { dieApiView, dieMetalPressureView } from '$lib/server/dies/api-view';
 import { findDie } from '$lib/server/dies/die-detail';
 import { listHalfLives, loadDieLife } from '$lib/server/dies/life';
 import { countToReview } from '$lib/server/shots/review';
@@ -38,6 +38,7 @@ export const GET = apiRoute(async (event) => {
 			nextService: die.status === 'retired' ? null : (tasks.get(die.id) ?? null)
 		}),
 		shotsRemaining: life.shotsRemaining,
+		...dieMetalPressureView(die),
 		shotsPerDay: life.shotsPerDay,
 		projectedEndOfLife: life.projectedEndOfLife,
 		// Life follows the steel: the figures above are those of the most-worn active half.
