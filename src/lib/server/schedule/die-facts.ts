@@ -1,3 +1,4 @@
+import { loadDieLives } from '../dies/life';
 import { sql } from 'kysely';
 import { addDaysToDate } from '../../calc/dates';
 import { plantDate, plantNoon } from '../../plant-time';
@@ -30,6 +31,8 @@ export interface DieFacts {
 	status: DieStatus;
 	totalShots: number;
 	expectedLifeShots: number;
+	/** Shots left before the most-worn active half reaches its expected life (dies/life.ts). */
+	shotsToEndOfLife: number;
 	/** Trailing 28-day shot rate, shots per day (calc/life). */
 	shotsPerDay: number;
 	/** The reason given with the die's latest change of state, if any. */
@@ -137,7 +140,12 @@ export async function loadDieFactsByIds(
 	const stopped = dies
 		.filter((d) => d.status === 'held' || d.status === 'in_toolroom')
 		.map((d) => d.id);
-	const [tasks, rates, reasons] = await Promise.all([
+	const [lives, tasks, rates, reasons] = await Promise.all([
+		loadDieLives(
+			db,
+			dies.map((d) => d.id),
+			asOf
+		),
 		db
 			.selectFrom('service_tasks')
 			.select([
@@ -191,6 +199,10 @@ export async function loadDieFactsByIds(
 			status: d.status,
 			totalShots: d.total_shots,
 			expectedLifeShots: d.expectedLife,
+			shotsToEndOfLife: (() => {
+				const life = lives.get(d.id);
+				return life ? life.lifeExpectedShots - life.lifeShots : d.expectedLife - d.total_shots;
+			})(),
 			shotsPerDay: rates.get(d.id) ?? 0,
 			statusReason: reasonFrom(reasonByDie.get(d.id) ?? undefined, d.status),
 			tasks: []

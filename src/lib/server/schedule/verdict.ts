@@ -4,6 +4,8 @@ import {
 	requiredClampForceKn
 } from '../../calc/clamp';
 import { TYPICAL_SHOTS_PER_HOUR } from '../../calc/life';
+import { dayIntervalDueMs } from '../../calc/service';
+import { plantZone } from '../../plant-time';
 import { checkOrder } from '../../calc/order-check';
 import { formatArea, formatForce, formatPressure, type UnitSystem } from '../../calc/units';
 import { formatDate, formatDateTime, formatShots } from '../../format';
@@ -137,8 +139,8 @@ export function dieClampRequirement(
  * Shots left to the end of the die's expected life. The one place the verdict reads the life
  * figure: swap in the per-half life (life of the most-worn active half) here.
  */
-export function shotsLeftToEndOfLife(die: Pick<DieFacts, 'expectedLifeShots' | 'totalShots'>) {
-	return die.expectedLifeShots - die.totalShots;
+export function shotsLeftToEndOfLife(die: Pick<DieFacts, 'shotsToEndOfLife'>) {
+	return die.shotsToEndOfLife;
 }
 
 /** The clamping formula with the die's numbers filled in, for the page and the reason sentence. */
@@ -389,7 +391,7 @@ function serviceChecks(
 			}
 		}
 		if (task.interval_days !== null && dueBeforeStart === null) {
-			const dueMs = Date.parse(task.last_done_at) + task.interval_days * DAY_MS;
+			const dueMs = dayIntervalDueMs(task.last_done_at, task.interval_days, plantZone());
 			// Whole days from the start of the run to the due instant; negative when overdue.
 			const daysLeft = Math.floor((dueMs - startMs) / DAY_MS);
 			if (dueMs <= startMs) {
