@@ -53,7 +53,10 @@ export const dieStatusSchema = z.object({
 	status: z.enum(['ready', 'running', 'in_toolroom', 'held', 'retired'], {
 		error: 'Choose a status.'
 	}),
-	reason: z.string().trim().min(3, 'Give a reason of at least 3 characters.').max(500)
+	reason: z.string().trim().min(3, 'Give a reason of at least 3 characters.').max(500),
+	// How many press bookings the page said the move would block; -1 when the page did not say
+	// (a caller without the page). A different count now stops the move until it is seen.
+	seenBlocked: z.coerce.number().int().min(-1).max(100_000).default(-1)
 });
 
 export const dieListQuerySchema = z.object({

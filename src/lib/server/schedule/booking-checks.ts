@@ -225,6 +225,15 @@ function statusChecks(die: DieFacts, jobNumbers: string[]): BookingCheck[] {
 }
 
 /**
+ * Whether a die in this state cannot be booked: the state-change panel asks this before a move,
+ * so what it announces is what the booking checks above will do.
+ */
+export function stateBlocksBooking(die: Pick<DieFacts, 'number' | 'status'>): boolean {
+	const probe = { ...die, statusReason: null } as DieFacts;
+	return statusChecks(probe, []).some((c) => c.level === 'block');
+}
+
+/**
  * Chamber rules (die-casting practice): aluminium and copper alloys are cast on cold-chamber
  * presses only — molten aluminium attacks the iron pot and gooseneck of a hot-chamber machine and
  * copper alloys melt too hot for them — so either on a hot-chamber press is blocked. Zinc belongs
