@@ -106,6 +106,8 @@ export interface DiesTable {
 	created_at: Generated<string>;
 	updated_at: Generated<string>;
 	retired_at: string | null;
+	/** 1 when the toolroom lead has locked the die's cooling circuit list against edits. */
+	cooling_locked: Generated<Flag>;
 }
 
 export interface DieHalvesTable {
