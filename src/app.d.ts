@@ -8,6 +8,8 @@ declare global {
 		interface Locals {
 			user: (User & { id: string }) | null;
 			session: Session | null;
+			/** The request came with a session cookie whose session has ended (expired, signed out). */
+			sessionEnded?: boolean;
 		}
 	}
 }

@@ -20,6 +20,7 @@ export const init: ServerInit = async () => {
 const authenticate: Handle = async ({ event, resolve }) => {
 	const lucia = getLucia();
 	const sessionId = event.cookies.get(lucia.sessionCookieName);
+	event.locals.sessionEnded = false;
 	if (!sessionId) {
 		event.locals.user = null;
 		event.locals.session = null;
@@ -33,6 +34,8 @@ const authenticate: Handle = async ({ event, resolve }) => {
 	if (!session) {
 		const cookie = lucia.createBlankSessionCookie();
 		event.cookies.set(cookie.name, cookie.value, { path: '/', ...cookie.attributes });
+		// The browser still held a session that has expired or was ended: say so at sign-in.
+		event.locals.sessionEnded = true;
 	}
 	// A disabled account loses access at once, even with a live session.
 	const active = user && user.active;

@@ -484,6 +484,51 @@ export async function seedToolroomDemo(
 		}
 	}
 
+	// Most other dies get their two standard circuits (cover and ejector, water), each checked
+	// once at a healthy flow; every seventh die and retired dies stay without, so the empty state
+	// shows too. Invented figures.
+	const specified = new Set(circuits.map((c) => c.die));
+	for (const d of [...dies.values()].sort((a, b) => a.number.localeCompare(b.number))) {
+		const n = Number(d.number.replace(/\D/g, ''));
+		if (specified.has(d.number) || d.status === 'retired' || n % 7 === 0) continue;
+		for (const [half, label, diameter, nominal] of [
+			['cover', 'C1 cavity', 10, 16],
+			['ejector', 'E1 core', 8, 12]
+		] as const) {
+			const added = await addCircuit(db, {
+				dieId: d.id,
+				form: {
+					half,
+					label,
+					coolant: 'water',
+					channelDiameterMm: diameter,
+					nominalFlowLpm: nominal
+				},
+				actor: maker,
+				at: daysAgo(210)
+			});
+			if (!added.ok) throw new Error(`Demo circuit on ${d.number}: ${added.message}`);
+			summary.circuits++;
+			const flow = Math.round(nominal * (0.86 + ((n * 7) % 12) / 100) * 10) / 10;
+			const checked = await recordCheck(db, {
+				dieId: d.id,
+				form: coolingCheckSchema.parse({
+					circuitId: added.id,
+					measuredFlowLpm: flow,
+					inletC: 30,
+					outletC: 36,
+					supplyPressureBar: 5.5,
+					leakTest: 'pass',
+					notes: ''
+				}),
+				actor: maker,
+				at: daysAgo(40 + (n % 30), 11)
+			});
+			if (!checked.ok) throw new Error(`Demo check on ${d.number}: ${checked.message}`);
+			summary.checks++;
+		}
+	}
+
 	// Jobs. Historic ones are opened without moving the die and without service tasks, so the
 	// scenario's die states and due tasks stay as they are.
 	const closeForm = (

@@ -119,6 +119,8 @@ export const ACTIONS: Record<string, Cells> = {
 	'/dies/[number]/cooling?/circuit': roles(...LEADS),
 	'/dies/[number]/cooling?/correctCheck': roles(...LEADS),
 	'/dies/[number]/cooling?/voidCheck': roles(...LEADS),
+	'/dies/[number]/cooling?/circuit': roles(...WORKERS),
+	'/dies/[number]/cooling?/lock': roles(...LEADS),
 	'/dies/[number]/edit?/default': roles(...LEADS),
 	'/dies/[number]/jobs?/open': roles(...WORKERS),
 	'/dies/[number]/plan?/add': roles(...LEADS),

@@ -166,7 +166,11 @@ test('photos and summaries the plant shares reach the owner, and nobody else', a
 	const photoItems = lead.locator('[data-testid^="share-photo-"]');
 	const sharedItem = photoItems.filter({ hasText: 'e2e shared photo' });
 	const privateItem = photoItems.filter({ hasText: 'e2e private photo' });
-	await sharedItem.getByRole('button', { name: 'Share with owner' }).click();
+	// Sharing asks first and says what the owner will see.
+	await sharedItem.getByText('Share with owner…').click();
+	await expect(sharedItem).toContainText('will see this photo in full on their owner portal');
+	await expect(sharedItem).toContainText('the caption “e2e shared photo”');
+	await sharedItem.getByRole('button', { name: 'Yes, share it' }).click();
 	await expect(sharedItem).toContainText('Shared with the owner');
 	const idOf = async (item: typeof sharedItem) =>
 		(await item.getAttribute('data-testid'))!.replace('share-photo-', '');

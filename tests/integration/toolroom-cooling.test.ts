@@ -8,7 +8,9 @@ import {
 import { circuitSchema, coolingCheckSchema } from '../../src/lib/schemas/toolroom';
 import {
 	addCircuit,
+	editCircuit,
 	getHeatBalance,
+	setCoolingLock,
 	listCircuits,
 	listWeakCircuits,
 	recordCheck
@@ -58,26 +60,107 @@ function check(values: Record<string, unknown>, at?: string) {
 }
 
 describe('cooling circuits', () => {
-	it('are defined by the lead, with one label per die', async () => {
-		const form = circuitSchema.parse({
+	const form = (label: string, nominalFlowLpm = 10) =>
+		circuitSchema.parse({
 			half: 'cover',
-			label: 'C1',
+			label,
 			coolant: 'water',
 			channelDiameterMm: 8,
-			nominalFlowLpm: 10
+			nominalFlowLpm
 		});
+
+	// Issue 13, item 7: toolmakers add and edit circuits; the lead can lock a die's list.
+	it('are added and changed by toolmakers, with one label per die', async () => {
+		const added = await addCircuit(plant.db, {
+			dieId: plant.dieId,
+			form: form('C2 core'),
+			actor: plant.toolmaker
+		});
+		expect(added).toMatchObject({ ok: true });
 		expect(
-			await addCircuit(plant.db, { dieId: plant.dieId, form, actor: plant.toolmaker })
-		).toMatchObject({
-			ok: false,
-			status: 403
+			await addCircuit(plant.db, { dieId: plant.dieId, form: form('C1'), actor: plant.lead })
+		).toMatchObject({ ok: false, field: 'label' });
+		if (!added.ok) throw new Error(added.message);
+		const changed = await editCircuit(plant.db, {
+			dieId: plant.dieId,
+			circuitId: added.id,
+			form: form('C2 core', 14),
+			actor: plant.toolmaker
 		});
+		expect(changed).toEqual({ ok: true, id: added.id });
+		// Renaming onto another circuit's label is refused like adding it.
 		expect(
-			await addCircuit(plant.db, { dieId: plant.dieId, form, actor: plant.lead })
-		).toMatchObject({
-			ok: false,
-			field: 'label'
+			await editCircuit(plant.db, {
+				dieId: plant.dieId,
+				circuitId: added.id,
+				form: form('C1'),
+				actor: plant.toolmaker
+			})
+		).toMatchObject({ ok: false, field: 'label' });
+		const { circuits } = await listCircuits(plant.db, plant.dieId);
+		expect(circuits.find((c) => c.id === added.id)?.nominal_flow_lpm).toBe(14);
+		const audit = await plant.db
+			.selectFrom('audit_log')
+			.select('action')
+			.where('action', 'like', 'cooling.circuit%')
+			.execute();
+		expect(audit.map((a) => a.action)).toContain('cooling.circuit.edit');
+	});
+
+	it('are closed to toolmakers once the lead locks the list, and open again when unlocked', async () => {
+		expect(
+			await addCircuit(plant.db, { dieId: plant.dieId, form: form('P1'), actor: plant.scheduler })
+		).toMatchObject({ ok: false, status: 403 });
+		expect(
+			await setCoolingLock(plant.db, { dieId: plant.dieId, locked: true, actor: plant.toolmaker })
+		).toMatchObject({ ok: false, status: 403 });
+		expect(
+			await setCoolingLock(plant.db, { dieId: plant.dieId, locked: true, actor: plant.lead })
+		).toEqual({ ok: true });
+		const refused = await addCircuit(plant.db, {
+			dieId: plant.dieId,
+			form: form('C3'),
+			actor: plant.toolmaker
 		});
+		expect(refused).toMatchObject({ ok: false, status: 403 });
+		expect(
+			await editCircuit(plant.db, {
+				dieId: plant.dieId,
+				circuitId: water,
+				form: form('C1', 99),
+				actor: plant.toolmaker
+			})
+		).toMatchObject({ ok: false, status: 403 });
+		// Nothing changed.
+		const { circuits } = await listCircuits(plant.db, plant.dieId);
+		expect(circuits.map((c) => c.label).sort()).toEqual(['C1', 'E1 oil']);
+		expect(circuits.find((c) => c.id === water)?.nominal_flow_lpm).toBe(20);
+		// The lead still may.
+		expect(
+			await addCircuit(plant.db, { dieId: plant.dieId, form: form('C3'), actor: plant.lead })
+		).toMatchObject({ ok: true });
+		await setCoolingLock(plant.db, { dieId: plant.dieId, locked: false, actor: plant.lead });
+		expect(
+			await addCircuit(plant.db, { dieId: plant.dieId, form: form('C4'), actor: plant.toolmaker })
+		).toMatchObject({ ok: true });
+	});
+
+	it('cannot be changed through another die', async () => {
+		const other = await plant.db
+			.selectFrom('dies')
+			.select('id')
+			.where('id', '!=', plant.dieId)
+			.executeTakeFirst();
+		expect(other).toBeDefined();
+		if (!other) return;
+		expect(
+			await editCircuit(plant.db, {
+				dieId: other.id,
+				circuitId: water,
+				form: form('C1', 99),
+				actor: plant.lead
+			})
+		).toMatchObject({ ok: false, status: 404 });
 	});
 });
 

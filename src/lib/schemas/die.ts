@@ -91,7 +91,13 @@ export const dieStatusSchema = z
 		}),
 		reason: z.string().trim().min(3, 'Give a reason of at least 3 characters.').max(500),
 		/** Asked when retiring: only worn out and cracked count as wear failures in the fleet fit. */
-		retirementReason: z.enum([...RETIREMENT_REASONS, '']).default('')
+		retirementReason: z.enum([...RETIREMENT_REASONS, '']).default(''),
+		// How many press bookings the page said the move would block; -1 when the page did not say
+		// (a caller without the page). A different count now stops the move until it is seen.
+		seenBlocked: optionalWholeNumber({
+			min: [-1, 'Reload the page.'],
+			max: [100_000, 'Reload the page.']
+		}).transform((v) => v ?? -1)
 	})
 	.superRefine((form, ctx) => {
 		if (form.status === 'retired' && form.retirementReason === '') {

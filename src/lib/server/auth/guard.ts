@@ -11,7 +11,8 @@ export function requireRole(event: RequestEvent, ...roles: RoleName[]): SignedIn
 	const user = event.locals.user;
 	if (!user) {
 		const back = event.url.pathname + event.url.search;
-		redirect(303, `/sign-in?redirectTo=${encodeURIComponent(back)}`);
+		const ended = event.locals.sessionEnded ? '&ended=1' : '';
+		redirect(303, `/sign-in?redirectTo=${encodeURIComponent(back)}${ended}`);
 	}
 	if (roles.length > 0 && !roles.includes(user.role)) {
 		error(403, {

@@ -8,13 +8,15 @@
 import type { Generated, Selectable } from 'kysely';
 
 /** What a notice is about. */
-export type NoticeKind = 'service' | 'life' | 'job_completed';
+export type NoticeKind = 'service' | 'life' | 'job_completed' | 'die_state';
 
 /**
  * How bad it is, the digest's grouping, worst first: service task states, die life thresholds,
- * and "ready again" after a toolroom job was closed.
+ * "ready again" after a toolroom job was closed (or a die moved back by hand), and "not
+ * bookable" when a die was moved to a state that blocks its press bookings.
  */
-export type NoticeLevel = 'overdue' | 'due' | 'coming_up' | 'life_100' | 'life_90' | 'ready_again';
+export type NoticeLevel =
+	'overdue' | 'due' | 'coming_up' | 'life_100' | 'life_90' | 'ready_again' | 'not_bookable';
 
 /** Delivery state of one item to one recipient. */
 export type DeliveryState = 'pending' | 'sent' | 'failed';

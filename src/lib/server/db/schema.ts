@@ -121,6 +121,8 @@ export interface DiesTable {
 	metal_pressure_bar: number | null;
 	/** Set when retired: why (only worn_out and cracked are wear failures). */
 	retirement_reason: RetirementReason | null;
+	/** 1 when the toolroom lead has locked the die's cooling circuit list against edits. */
+	cooling_locked: Generated<Flag>;
 }
 
 export interface DieHalvesTable {

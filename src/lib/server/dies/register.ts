@@ -4,6 +4,7 @@ import type { DieListQuery } from '../../schemas/die';
 import { sortWorstFirst, viewServiceTask, type ServiceTaskView } from './service-summary';
 import { nowIso } from '../time';
 import { lifeExpectedSql, lifeShotsSql, lifeUsedPctOf, lifeUsedRatioSql } from './life';
+import { compactCode, normaliseDieNumber } from '../../calc/die-number';
 
 /** Limits what a caller may see: a customer-bound caller sees only its own dies. */
 export interface DieScope {
@@ -27,6 +28,9 @@ export interface DieListRow {
 
 const expectedLife = sql<number>`coalesce(dies.expected_life_shots, alloys.expected_life_shots)`;
 
+/** The part number as compactCode() writes it: upper case, no dashes, spaces, dots, slashes or underscores. */
+export const COMPACT_PART_NUMBER = sql<string>`replace(replace(replace(replace(replace(upper(dies.part_number), '-', ''), ' ', ''), '_', ''), '.', ''), '/', '')`;
+
 function baseQuery(db: DB, query: Partial<DieListQuery>, scope: DieScope) {
 	let q = db
 		.selectFrom('dies')
@@ -35,8 +39,14 @@ function baseQuery(db: DB, query: Partial<DieListQuery>, scope: DieScope) {
 	if (scope.customerId !== null) q = q.where('dies.customer_id', '=', scope.customerId);
 	if (query.q) {
 		const like = `%${query.q.replace(/[\\%_]/g, (c) => '\\' + c)}%`;
+		// What people type for a die number (`d 138`, `D0138`) and part numbers without their
+		// dashes and spaces find the die too.
+		const number = normaliseDieNumber(query.q);
+		const compact = compactCode(query.q);
 		q = q.where((eb) =>
 			eb.or([
+				...(number ? [eb('dies.number', '=', number)] : []),
+				...(compact ? [eb(COMPACT_PART_NUMBER, 'like', `%${compact}%`)] : []),
 				eb(sql`dies.number`, 'like', sql`${like} escape '\\'`),
 				eb(sql`dies.part_name`, 'like', sql`${like} escape '\\'`),
 				eb(sql`dies.part_number`, 'like', sql`${like} escape '\\'`),

@@ -96,6 +96,8 @@ export function describeEntry(payload: NoticePayload): string {
 			);
 		case 'job_completed':
 			return `${payload.jobNumber} closed${payload.summary ? `: ${payload.summary}` : ''}`;
+		case 'die_state':
+			return `Moved to ${payload.to}: ${payload.reason}. ${payload.consequence}`;
 	}
 }
 

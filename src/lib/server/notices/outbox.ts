@@ -147,3 +147,55 @@ export async function queueJobCompletedMail(
 	const { deliveries } = await writeOutbox(db, [item], recipients, closedAt);
 	return { queued: deliveries };
 }
+
+export interface DieStateInput {
+	dieNumber: string;
+	/** State words as the app shows them, e.g. "Ready", "Held". */
+	from: string;
+	to: string;
+	reason: string;
+	/** True when the new state blocks press bookings. */
+	blocks: boolean;
+	/** What the move does to the die's bookings, as stated on the die page before the move. */
+	consequence: string;
+}
+
+/**
+ * Queues the "die moved" mail to the production planners after a hand move that changes whether
+ * the die can be booked (level not_bookable, or ready_again when it frees the die). The key is
+ * the die and the instant of the move, so one move queues once.
+ */
+export async function queueDieStateMail(
+	db: DB,
+	input: DieStateInput,
+	now: string = nowIso()
+): Promise<{ queued: number }> {
+	const die = await db
+		.selectFrom('dies')
+		.innerJoin('customers', 'customers.id', 'dies.customer_id')
+		.select(['dies.id', 'dies.number', 'dies.part_name', 'customers.name as customer_name'])
+		.where('dies.number', '=', input.dieNumber)
+		.executeTakeFirst();
+	if (!die) throw new Error(`No die ${input.dieNumber}: the state-change mail was not queued.`);
+	const at = toStoredInstant(now);
+	const item: NoticeItem = {
+		key: `state:${die.id}:${at}`,
+		kind: 'die_state',
+		level: input.blocks ? 'not_bookable' : 'ready_again',
+		dieId: die.id,
+		subject: `${die.number} moved to ${input.to}${input.blocks ? ' · cannot be booked' : ' · can be booked again'}`,
+		payload: {
+			kind: 'die_state',
+			dieNumber: die.number,
+			partName: die.part_name,
+			customerName: die.customer_name,
+			from: input.from,
+			to: input.to,
+			reason: input.reason.trim(),
+			consequence: input.consequence
+		}
+	};
+	const recipients = await listSchedulerRecipients(db);
+	const { deliveries } = await writeOutbox(db, [item], recipients, at);
+	return { queued: deliveries };
+}

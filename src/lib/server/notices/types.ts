@@ -38,7 +38,17 @@ export interface JobCompletedPayload extends DieFacts {
 	summary: string;
 }
 
-export type NoticePayload = ServicePayload | LifePayload | JobCompletedPayload;
+/** A die moved by hand to another state, told to the planners with its press bookings. */
+export interface DieStatePayload extends DieFacts {
+	kind: 'die_state';
+	from: string;
+	to: string;
+	reason: string;
+	/** What the move does to the die's coming press bookings, in words (from describeStateChange). */
+	consequence: string;
+}
+
+export type NoticePayload = ServicePayload | LifePayload | JobCompletedPayload | DieStatePayload;
 
 /** One thing to tell someone, before it is written to the outbox. */
 export interface NoticeItem {
@@ -59,6 +69,7 @@ export interface NoticeRecipient {
 
 /** Digest groups, worst first. */
 export const NOTICE_LEVELS: readonly NoticeLevel[] = [
+	'not_bookable',
 	'overdue',
 	'due',
 	'coming_up',
@@ -73,7 +84,8 @@ export const NOTICE_LEVEL_LABELS: Record<NoticeLevel, string> = {
 	coming_up: 'Service coming up',
 	life_100: 'Expected life reached',
 	life_90: 'Past 90 % of expected life',
-	ready_again: 'Ready again after the toolroom'
+	ready_again: 'Ready again after the toolroom',
+	not_bookable: 'Cannot be booked now'
 };
 
 /** Short counts for a digest subject, e.g. "2 overdue". */
@@ -83,5 +95,6 @@ export const NOTICE_LEVEL_COUNT_WORDS: Record<NoticeLevel, string> = {
 	coming_up: 'coming up',
 	life_100: 'at end of life',
 	life_90: 'past 90 % life',
-	ready_again: 'ready again'
+	ready_again: 'ready again',
+	not_bookable: 'not bookable'
 };

@@ -275,6 +275,15 @@ function releaseNote(jobs: JobNote[]): { text: string; at: string | null } {
 	};
 }
 
+/**
+ * Whether a die in this state cannot be booked: the state-change panel asks this before a move,
+ * so what it announces is what the verdict will do.
+ */
+export function stateBlocksBooking(die: Pick<DieFacts, 'number' | 'status'>): boolean {
+	const probe = { ...die, statusReason: null } as DieFacts;
+	return statusChecks(probe, [], nowIso()).some((c) => c.level === 'block');
+}
+
 function statusChecks(die: DieFacts, jobs: JobNote[], now: string): BookingCheck[] {
 	const why = die.statusReason;
 	if (die.status === 'retired') {

@@ -102,3 +102,46 @@ export async function summariseOpenJobs(db: DB, asOf = nowIso()) {
 	});
 	return { byStatus, oldest: [...jobs].sort((a, b) => b.ageDays - a.ageDays).slice(0, 8) };
 }
+
+/** The toolmaker's own active jobs (assigned to them), oldest first. */
+export async function listMyOpenJobs(db: DB, userId: string, asOf = nowIso()) {
+	return listOpenJobs(db, { status: '', toolmaker: userId, die: '' }, asOf);
+}
+
+/** Dies standing in the toolroom, longest there first, with their open job when they have one. */
+export async function listDiesInToolroom(db: DB) {
+	const rows = await db
+		.selectFrom('dies')
+		.leftJoin('toolroom_jobs as j', (join) =>
+			join.onRef('j.die_id', '=', 'dies.id').on('j.status', 'in', ACTIVE)
+		)
+		.select((eb) => [
+			'dies.id',
+			'dies.number',
+			'dies.part_name as partName',
+			'j.number as jobNumber',
+			'j.opened_at as jobOpenedAt',
+			eb
+				.selectFrom('audit_log')
+				.select((a) => a.fn.max('audit_log.at').as('at'))
+				.whereRef('audit_log.die_id', '=', 'dies.id')
+				.where('audit_log.action', '=', 'die.status')
+				.as('since')
+		])
+		.where('dies.status', '=', 'in_toolroom')
+		.orderBy('since', 'asc')
+		.orderBy('dies.number', 'asc')
+		.orderBy('j.opened_at', 'asc')
+		.execute();
+	// A die with two open jobs appears once, with its oldest job number.
+	const seen = new Map<number, (typeof rows)[number]>();
+	for (const r of rows) if (!seen.has(r.id)) seen.set(r.id, r);
+	return [...seen.values()].map((r) => ({
+		id: r.id,
+		number: r.number,
+		partName: r.partName,
+		jobNumber: r.jobNumber,
+		since: (r.since as string | null) ?? r.jobOpenedAt
+	}));
+}
+export type DieInToolroom = Awaited<ReturnType<typeof listDiesInToolroom>>[number];

@@ -33,26 +33,76 @@ export type CoolingRefusal = {
 	message: string;
 };
 
-/** Adds a cooling circuit to a die (toolroom lead or admin). */
+/**
+ * Who may change a die's circuit list: toolmakers, the lead and admins, unless the lead has
+ * locked the list, which then only the lead (or an admin) changes. Null when allowed.
+ */
+async function circuitListRefusal(
+	db: DB,
+	dieId: number,
+	actor: Actor
+): Promise<CoolingRefusal | null> {
+	if (!canWorkToolroom(actor.role)) {
+		return { ok: false, status: 403, message: 'Your role may not change cooling circuits.' };
+	}
+	const die = await db
+		.selectFrom('dies')
+		.select(['cooling_locked'])
+		.where('id', '=', dieId)
+		.executeTakeFirst();
+	if (!die) return { ok: false, status: 404, message: 'There is no such die.' };
+	if (die.cooling_locked === 1 && !canLeadToolroom(actor.role)) {
+		return {
+			ok: false,
+			status: 403,
+			message: 'The toolroom lead has locked this die’s circuit list. Ask the lead to change it.'
+		};
+	}
+	return null;
+}
+
+/** Adds a cooling circuit to a die (toolmaker, lead or admin; the lead alone when locked). */
 export async function addCircuit(
 	db: DB,
 	input: { dieId: number; form: CircuitForm; actor: Actor; at?: string }
 ): Promise<{ ok: true; id: number } | CoolingRefusal> {
-	const { form, actor } = input;
+	return saveCircuit(db, { ...input, circuitId: null });
+}
+
+/** Changes a circuit's half, label, coolant, diameter or nominal flow; checks keep their figures. */
+export async function editCircuit(
+	db: DB,
+	input: { dieId: number; circuitId: number; form: CircuitForm; actor: Actor; at?: string }
+): Promise<{ ok: true; id: number } | CoolingRefusal> {
+	return saveCircuit(db, input);
+}
+
+async function saveCircuit(
+	db: DB,
+	input: { dieId: number; circuitId: number | null; form: CircuitForm; actor: Actor; at?: string }
+): Promise<{ ok: true; id: number } | CoolingRefusal> {
+	const { form, actor, circuitId } = input;
 	const at = input.at ?? nowIso();
-	if (!canLeadToolroom(actor.role)) {
-		return {
-			ok: false,
-			status: 403,
-			message: 'Only the toolroom lead may define cooling circuits.'
-		};
-	}
+	const refusal = await circuitListRefusal(db, input.dieId, actor);
+	if (refusal) return refusal;
 	return db.transaction().execute(async (trx) => {
+		const before = circuitId
+			? await trx
+					.selectFrom('cooling_circuits')
+					.selectAll()
+					.where('id', '=', circuitId)
+					.where('die_id', '=', input.dieId)
+					.executeTakeFirst()
+			: null;
+		if (circuitId && !before) {
+			return { ok: false, status: 404, message: 'This die has no such circuit.' } as const;
+		}
 		const clash = await trx
 			.selectFrom('cooling_circuits')
 			.select('id')
 			.where('die_id', '=', input.dieId)
 			.where('label', '=', form.label)
+			.$if(!!circuitId, (q) => q.where('id', '!=', circuitId!))
 			.executeTakeFirst();
 		if (clash) {
 			return {
@@ -62,32 +112,84 @@ export async function addCircuit(
 				message: `This die already has a circuit labelled “${form.label}”.`
 			} as const;
 		}
-		const row = await trx
-			.insertInto('cooling_circuits')
-			.values({
-				die_id: input.dieId,
-				half: form.half,
-				label: form.label,
-				coolant: form.coolant,
-				channel_diameter_mm: form.channelDiameterMm,
-				nominal_flow_lpm: form.nominalFlowLpm,
-				created_by: actor.userId,
-				created_at: at
-			})
-			.returning('id')
-			.executeTakeFirstOrThrow();
+		const values = {
+			half: form.half,
+			label: form.label,
+			coolant: form.coolant,
+			channel_diameter_mm: form.channelDiameterMm,
+			nominal_flow_lpm: form.nominalFlowLpm
+		};
+		let id: number;
+		if (before) {
+			await trx.updateTable('cooling_circuits').set(values).where('id', '=', before.id).execute();
+			id = before.id;
+		} else {
+			const row = await trx
+				.insertInto('cooling_circuits')
+				.values({ ...values, die_id: input.dieId, created_by: actor.userId, created_at: at })
+				.returning('id')
+				.executeTakeFirstOrThrow();
+			id = row.id;
+		}
 		await writeAudit(
 			trx,
 			{
 				userId: actor.userId,
-				action: 'cooling.circuit',
+				action: before ? 'cooling.circuit.edit' : 'cooling.circuit',
 				dieId: input.dieId,
-				detail: { label: form.label, coolant: form.coolant, nominalLpm: form.nominalFlowLpm }
+				detail: before
+					? {
+							label: form.label,
+							from: {
+								label: before.label,
+								half: before.half,
+								coolant: before.coolant,
+								diameterMm: before.channel_diameter_mm,
+								nominalLpm: before.nominal_flow_lpm
+							},
+							to: {
+								label: form.label,
+								half: form.half,
+								coolant: form.coolant,
+								diameterMm: form.channelDiameterMm,
+								nominalLpm: form.nominalFlowLpm
+							}
+						}
+					: { label: form.label, coolant: form.coolant, nominalLpm: form.nominalFlowLpm }
 			},
 			at
 		);
-		return { ok: true, id: row.id } as const;
+		return { ok: true, id } as const;
 	});
+}
+
+/** Locks or unlocks a die's circuit list (toolroom lead or admin). */
+export async function setCoolingLock(
+	db: DB,
+	input: { dieId: number; locked: boolean; actor: Actor; at?: string }
+): Promise<{ ok: true } | CoolingRefusal> {
+	if (!canLeadToolroom(input.actor.role)) {
+		return { ok: false, status: 403, message: 'Only the toolroom lead may lock the circuit list.' };
+	}
+	const at = input.at ?? nowIso();
+	await db.transaction().execute(async (trx) => {
+		await trx
+			.updateTable('dies')
+			.set({ cooling_locked: input.locked ? 1 : 0 })
+			.where('id', '=', input.dieId)
+			.execute();
+		await writeAudit(
+			trx,
+			{
+				userId: input.actor.userId,
+				action: input.locked ? 'cooling.lock' : 'cooling.unlock',
+				dieId: input.dieId,
+				detail: {}
+			},
+			at
+		);
+	});
+	return { ok: true };
 }
 
 export interface CheckFigures {

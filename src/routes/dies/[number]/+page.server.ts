@@ -6,7 +6,7 @@ import { requireRole } from '$lib/server/auth/guard';
 import { getDb } from '$lib/server/db';
 import { getDieStory } from '$lib/server/dies/die-detail';
 import { loadPlantDie } from '$lib/server/dies/load-die';
-import { changeDieStatus } from '$lib/server/dies/die-write';
+import { describeStateChanges, moveDieState } from '$lib/server/dies/state-change';
 import { listServicePlan } from '$lib/server/dies/service-plan';
 import { nowIso } from '$lib/server/time';
 import { DIE_EDITORS, PLANT_ROLES } from '$lib/roles';
@@ -32,17 +32,17 @@ export const load: PageServerLoad = async (event) => {
 	const { die, life } = await event.parent();
 	const db = getDb();
 	const asOf = nowIso();
-	const [story, plan, statusForm] = await Promise.all([
+	const statusTargets = allowedTargets(user.role, die.status);
+	const [story, plan, statusForm, stateChoices] = await Promise.all([
 		getDieStory(db, die, asOf),
 		listServicePlan(db, die, life.shotsPerDay, asOf),
 		// Start on "Choose…", not on the schema's first state.
 		superValidate(
-			{ status: '' as DieStatus, reason: '', retirementReason: '' as const },
+			{ status: '' as DieStatus, reason: '', retirementReason: '' as const, seenBlocked: -1 },
 			zod4(dieStatusSchema),
-			{
-				errors: false
-			}
-		)
+			{ errors: false }
+		),
+		describeStateChanges(db, die, statusTargets, asOf)
 	]);
 	const needsService = plan.tasks.filter((t) => t.state !== 'on_track').length;
 	// The soonest projected date, which need not be the worst task now (a short calendar interval
@@ -60,7 +60,8 @@ export const load: PageServerLoad = async (event) => {
 		entries: story.entries.slice(0, OVERVIEW_ENTRIES),
 		history: story.history,
 		statusForm,
-		statusTargets: allowedTargets(user.role, die.status),
+		statusTargets,
+		stateChoices,
 		canEdit: DIE_EDITORS.includes(user.role)
 	};
 };
@@ -75,15 +76,22 @@ export const actions: Actions = {
 		if (!allowedTargets(user.role, die.status).includes(to)) {
 			return message(form, 'Your role may not move this die to that state.', { status: 403 });
 		}
-		const result = await changeDieStatus(
+		const seen = form.data.seenBlocked >= 0 ? form.data.seenBlocked : null;
+		const result = await moveDieState(
 			getDb(),
 			die,
 			to,
 			form.data.reason,
 			user.id,
+			seen,
 			form.data.retirementReason || null
 		);
 		if (!result.ok) return message(form, result.message, { status: 409 });
-		return message(form, 'State changed.');
+		const told = result.consequence.changesBooking
+			? result.queued
+				? ' The production planners are told by e-mail.'
+				: ' No production planner has notices switched on, so nobody was told by e-mail.'
+			: '';
+		return message(form, `State changed.${told}`);
 	}
 };

@@ -22,7 +22,9 @@ import {
 import {
 	addCircuit,
 	correctCoolingCheck,
+	editCircuit,
 	getHeatBalance,
+	setCoolingLock,
 	lastOilProperties,
 	listCircuits,
 	recordCheck,
@@ -51,9 +53,27 @@ export const load: PageServerLoad = async (event) => {
 	const wanted = Number(event.url.searchParams.get('check'));
 	const checkCircuit = circuits.find((c) => c.id === wanted) ?? circuits[0];
 	const heatInput = readHeatBalanceQuery(event.url.searchParams);
+	const locked = die.cooling_locked === 1;
+	const canEditCircuits = canWorkToolroom(user.role) && (!locked || canLeadToolroom(user.role));
+	// ?edit=<id> puts that circuit into the circuit form for a change.
+	const editing = canEditCircuits
+		? (circuits.find((c) => c.id === Number(event.url.searchParams.get('edit'))) ?? null)
+		: null;
 	const [heatBalance, circuitForm, checkForm, voidForm, correctForm] = await Promise.all([
 		getHeatBalance(db, die, circuits, heatInput.query),
-		superValidate(zod4(circuitSchema), { id: 'circuit' }),
+		editing
+			? superValidate(
+					{
+						half: editing.half,
+						label: editing.label,
+						coolant: editing.coolant,
+						channelDiameterMm: editing.channel_diameter_mm,
+						nominalFlowLpm: editing.nominal_flow_lpm
+					},
+					zod4(circuitSchema),
+					{ id: 'circuit', errors: false }
+				)
+			: superValidate(zod4(circuitSchema), { id: 'circuit' }),
 		superValidate(
 			checkCircuit ? { circuitId: checkCircuit.id, ...lastOilProperties(checkCircuit) } : {},
 			zod4(coolingCheckSchema),
@@ -74,28 +94,52 @@ export const load: PageServerLoad = async (event) => {
 		weakThreshold: WEAK_FLOW_THRESHOLD_PCT,
 		unitSystem: user.unitSystem,
 		canWork: canWorkToolroom(user.role),
-		canLead: canLeadToolroom(user.role)
+		canLead: canLeadToolroom(user.role),
+		locked,
+		canEditCircuits,
+		editing: editing ? { id: editing.id, label: editing.label } : null
 	};
 };
 
 export const actions: Actions = {
 	circuit: async (event) => {
-		const user = requireRole(event, ...TOOLROOM_LEADS);
+		const user = requireRole(event, ...TOOLROOM_WORKERS);
 		const die = await loadPlantDie(event.params.number);
-		const form = await superValidate(event.request, zod4(circuitSchema), { id: 'circuit' });
+		const body = await event.request.formData();
+		const form = await superValidate(body, zod4(circuitSchema), { id: 'circuit' });
 		if (!form.valid) return fail(400, { circuitForm: form });
-		const result = await addCircuit(getDb(), {
-			dieId: die.id,
-			form: form.data,
-			actor: { userId: user.id, role: user.role }
-		});
+		// A circuit id in the form means "change this circuit"; none means "add one".
+		const circuitId = Number(body.get('circuitId'));
+		const input = { dieId: die.id, form: form.data, actor: { userId: user.id, role: user.role } };
+		const result =
+			Number.isInteger(circuitId) && circuitId > 0
+				? await editCircuit(getDb(), { ...input, circuitId })
+				: await addCircuit(getDb(), input);
 		if (!result.ok) {
 			if (result.field) {
 				return setError(form, result.field as 'label', result.message, { status: result.status });
 			}
 			return message(form, result.message, { status: result.status });
 		}
-		return message(form, `Circuit ${form.data.label} added.`);
+		return message(
+			form,
+			body.get('circuitId')
+				? `Circuit ${form.data.label} changed.`
+				: `Circuit ${form.data.label} added.`
+		);
+	},
+
+	lock: async (event) => {
+		const user = requireRole(event, ...TOOLROOM_LEADS);
+		const die = await loadPlantDie(event.params.number);
+		const locked = (await event.request.formData()).get('locked') === '1';
+		const result = await setCoolingLock(getDb(), {
+			dieId: die.id,
+			locked,
+			actor: { userId: user.id, role: user.role }
+		});
+		if (!result.ok) return fail(result.status, { lockMessage: result.message });
+		return { lockMessage: locked ? 'Circuit list locked.' : 'Circuit list unlocked.' };
 	},
 
 	check: async (event) => {

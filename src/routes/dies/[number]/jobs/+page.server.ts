@@ -17,6 +17,7 @@ import {
 	listJobsForDie,
 	openJob
 } from '$lib/server/toolroom/jobs';
+import { findJobOpenedMeanwhile, parseKnownOpenJobs } from '$lib/server/toolroom/resubmit';
 import type { Actions, PageServerLoad } from './$types';
 
 const positiveInt = (value: string | null) => {
@@ -65,8 +66,16 @@ export const actions: Actions = {
 	open: async (event) => {
 		const user = requireRole(event, ...TOOLROOM_WORKERS);
 		const die = await loadPlantDie(event.params.number);
-		const form = await superValidate(event.request, zod4(openJobSchema));
+		const body = await event.request.formData();
+		const form = await superValidate(body, zod4(openJobSchema));
 		if (!form.valid) return fail(400, { form });
+		// Back and submit again: go to the job the first press opened instead of opening a twin.
+		const twin = await findJobOpenedMeanwhile(
+			getDb(),
+			die.id,
+			parseKnownOpenJobs(body.get('knownOpenJobs'))
+		);
+		if (twin) redirect(303, `/jobs/${twin}?already=1`);
 		const result = await openJob(getDb(), {
 			dieId: die.id,
 			form: form.data,

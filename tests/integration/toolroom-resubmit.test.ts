@@ -1,0 +1,34 @@
+import { beforeEach, describe, expect, it } from 'vitest';
+import { openJob } from '../../src/lib/server/toolroom/jobs';
+import { findJobOpenedMeanwhile, parseKnownOpenJobs } from '../../src/lib/server/toolroom/resubmit';
+import { jobForm, setUpPlant, type ToolroomPlant } from '../fixtures/toolroom';
+
+// Issue 13, item 6: Back, then "Open job" again, goes to the job the first press opened.
+let plant: ToolroomPlant;
+beforeEach(async () => {
+	plant = await setUpPlant();
+});
+
+describe('findJobOpenedMeanwhile', () => {
+	it('finds the job opened after the form was shown, and nothing the form already listed', async () => {
+		// The form was shown with no open job on the die.
+		const shownWith = parseKnownOpenJobs('');
+		const first = await openJob(plant.db, {
+			dieId: plant.dieId,
+			form: jobForm(),
+			actor: plant.toolmaker
+		});
+		expect(first).toEqual({ ok: true, number: 'TJ-00001' });
+		expect(await findJobOpenedMeanwhile(plant.db, plant.dieId, shownWith)).toBe('TJ-00001');
+		// A fresh form lists TJ-00001: a deliberate second job is not caught.
+		expect(
+			await findJobOpenedMeanwhile(plant.db, plant.dieId, parseKnownOpenJobs('TJ-00001'))
+		).toBeNull();
+		// Another die's job is not this die's.
+		expect(await findJobOpenedMeanwhile(plant.db, plant.otherDieId, shownWith)).toBeNull();
+		// A caller that does not say what it showed is never redirected.
+		expect(
+			await findJobOpenedMeanwhile(plant.db, plant.dieId, parseKnownOpenJobs(null))
+		).toBeNull();
+	});
+});
