@@ -81,3 +81,10 @@ export const HEAT_BALANCE_LABELS = {
 	balanced: 'Balanced',
 	ample: 'Cooling to spare'
 } as const;
+
+/** What a job photo shows; the shape goes with the word wherever a stage is shown. */
+export const PHOTO_STAGE_LABELS = {
+	before: { word: 'Before', shape: '◁' },
+	during: { word: 'During', shape: '◇' },
+	after: { word: 'After', shape: '▷' }
+} as const;

@@ -255,6 +255,13 @@ export const jobBoardQuerySchema = z.object({
 });
 export type JobBoardQuery = z.infer<typeof jobBoardQuerySchema>;
 
+/** Stage tag of a job photo; an empty choice means "not said". */
+export const PHOTO_STAGES = ['before', 'during', 'after'] as const;
+export const photoStageSchema = z.preprocess(
+	(v) => (v === '' || v === null || v === undefined ? null : v),
+	z.enum(PHOTO_STAGES, { error: 'Choose before, during or after.' }).nullable()
+);
+
 export const photoShareSchema = z.object({
 	photo: z
 		.string()

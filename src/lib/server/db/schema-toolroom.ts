@@ -10,6 +10,8 @@ export type JobHalf = 'cover' | 'ejector' | 'both';
 export type JobSource = 'die' | 'service_task' | 'notice';
 export type Coolant = 'water' | 'oil';
 export type LeakTest = 'pass' | 'fail';
+/** What a job photo shows: the die before, during or after the work. */
+export type PhotoStage = 'before' | 'during' | 'after';
 
 export interface ToolroomJobsTable {
 	id: Generated<number>;
@@ -79,6 +81,8 @@ export interface PhotosTable {
 	uploaded_at: string;
 	caption: string | null;
 	shared_with_owner: Generated<number>;
+	/** Job photos: the die before, during or after the work; null when not said. */
+	stage: PhotoStage | null;
 }
 
 export interface SurfaceInspectionsTable {
@@ -117,6 +121,8 @@ export interface CoolingChecksTable {
 	id: Generated<number>;
 	circuit_id: number;
 	die_id: number;
+	/** The job the check was made under, if any. */
+	job_id: number | null;
 	checked_at: string;
 	checked_by: string | null;
 	measured_flow_lpm: number;

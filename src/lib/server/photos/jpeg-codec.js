@@ -19,7 +19,7 @@
  */
 
 /**
- * @param {typeof import('sharp')} sharp
+ * @param {typeof import('sharp').default} sharp
  */
 export function createSharpJpeg(sharp) {
 	// libvips keeps a cache of recent operations, which a server decoding each photo once only
@@ -71,6 +71,11 @@ export function createSharpJpeg(sharp) {
 	}
 
 	/** The jimp format plugin (createJimp({ formats: [jpegFormat] })). */
-	const jpegFormat = () => ({ mime: /** @type {const} */ ('image/jpeg'), hasAlpha: false, encode, decode });
+	const jpegFormat = () => ({
+		mime: /** @type {const} */ ('image/jpeg'),
+		hasAlpha: false,
+		encode,
+		decode
+	});
 	return { jpegFormat, decode, encode };
 }

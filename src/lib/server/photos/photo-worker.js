@@ -13,8 +13,8 @@
  * @property {string} codec jpeg-codec.js
  * @property {string} sharp
  * @property {string} jimpCore
- * @property {string} png @jimp/js-png
- * @property {string} resize @jimp/plugin-resize
+ * @property {string} png the jimp PNG format
+ * @property {string} resize the jimp resize plugin
  */
 
 /**
@@ -33,7 +33,7 @@ const urls = JSON.parse('__PHOTO_MODULE_URLS__');
 const [core, codec, sharp, jimpCore, png, resize] = await Promise.all([
 	/** @type {Promise<typeof import('./image-core.js')>} */ (import(urls.core)),
 	/** @type {Promise<typeof import('./jpeg-codec.js')>} */ (import(urls.codec)),
-	/** @type {Promise<{ default: typeof import('sharp') }>} */ (import(urls.sharp)),
+	/** @type {Promise<{ default: typeof import('sharp').default }>} */ (import(urls.sharp)),
 	/** @type {Promise<typeof import('@jimp/core')>} */ (import(urls.jimpCore)),
 	/** @type {Promise<typeof import('@jimp/js-png')>} */ (import(urls.png)),
 	/** @type {Promise<typeof import('@jimp/plugin-resize')>} */ (import(urls.resize))

@@ -46,11 +46,14 @@ function toDataUrl(source: string): string {
 function readWorkerSources(): Record<SourceName, string> {
 	let inlined: Record<string, string> = {};
 	try {
-		inlined = import.meta.glob<string>(['./photo-worker.js', './image-core.js', './jpeg-codec.js'], {
-			query: '?raw',
-			import: 'default',
-			eager: true
-		});
+		inlined = import.meta.glob<string>(
+			['./photo-worker.js', './image-core.js', './jpeg-codec.js'],
+			{
+				query: '?raw',
+				import: 'default',
+				eager: true
+			}
+		);
 	} catch {
 		// Not under Vite (tsx): import.meta.glob does not exist; read the files below.
 	}

@@ -6,7 +6,8 @@ import {
 	cancelJobSchema,
 	closeJobSchema,
 	jobStatusSchema,
-	photoShareSchema
+	photoShareSchema,
+	photoStageSchema
 } from '$lib/schemas/toolroom';
 import { requireRole } from '$lib/server/auth/guard';
 import { getDb } from '$lib/server/db';
@@ -106,10 +107,16 @@ export const actions: Actions = {
 			};
 			return fail(413, { upload });
 		}
+		const stage = photoStageSchema.safeParse(data.get('stage') ?? '');
+		if (!stage.success) {
+			const upload = { ok: false, message: 'Choose before, during or after.', problems: [] };
+			return fail(400, { upload });
+		}
 		const result = await uploadPhotos(getDb(), {
 			target: { jobId: job.id },
 			files: selectedFiles(data.getAll('photos')),
 			caption: String(data.get('caption') ?? ''),
+			stage: stage.data,
 			actor: { userId: user.id, role: user.role },
 			uploadDir: getUploadDir()
 		});
@@ -118,7 +125,7 @@ export const actions: Actions = {
 				upload: { ok: false, message: result.message, problems: result.problems }
 			});
 		}
-		return { upload: { ok: true, message: result.message, problems: [] } };
+		return { upload: { ok: true, message: result.message, problems: result.problems } };
 	},
 
 	share: async (event) => {
