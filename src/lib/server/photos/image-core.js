@@ -390,8 +390,7 @@ export function createImageProcessor(deps) {
 		const image = new Jimp(bitmap);
 		const size = fitWithin(image.width, image.height, longSide);
 		if (size) image.resize(size);
-		// JPEG has no alpha; transparent PNG areas become white, not the default black.
-		image.background = 0xffffffff;
+		// JPEG has no alpha: the codec flattens transparent PNG areas onto white.
 		const bytes = await image.getBuffer('image/jpeg', { quality: JPEG_QUALITY });
 		return { bytes, width: image.width, height: image.height };
 	}

@@ -62,18 +62,22 @@ export function createSharpJpeg(sharp) {
 	 */
 	function encode(bitmap, { quality = 85 } = {}) {
 		// No metadata is copied: sharp writes EXIF/ICC only when asked (withMetadata).
-		return sharp(bitmap.data, {
-			raw: { width: bitmap.width, height: bitmap.height, channels: 4 }
-		})
-			.removeAlpha()
-			.jpeg({ quality, mozjpeg: false, chromaSubsampling: '4:2:0' })
-			.toBuffer();
+		return (
+			sharp(bitmap.data, {
+				raw: { width: bitmap.width, height: bitmap.height, channels: 4 }
+			})
+				// Transparent areas (PNG) become white, not black. Done here rather than by jimp, which
+				// would otherwise composite every pixel in JavaScript onto its background first.
+				.flatten({ background: '#ffffff' })
+				.jpeg({ quality, mozjpeg: false, chromaSubsampling: '4:2:0' })
+				.toBuffer()
+		);
 	}
 
 	/** The jimp format plugin (createJimp({ formats: [jpegFormat] })). */
 	const jpegFormat = () => ({
 		mime: /** @type {const} */ ('image/jpeg'),
-		hasAlpha: false,
+		hasAlpha: true,
 		encode,
 		decode
 	});
