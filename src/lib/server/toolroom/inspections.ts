@@ -7,6 +7,7 @@ import { crackTrend, DEFAULT_REPAIR_GRADE, type CrackTrend } from '../../calc/cr
 import { MAX_PHOTOS_PER_UPLOAD, type InspectionForm } from '../../schemas/toolroom';
 import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
+import { findTaskToComplete, type TaskOffer } from '../dies/service-plan';
 import {
 	preparePhotos,
 	storePhotoFilesWith,
@@ -19,7 +20,8 @@ import type { Actor } from './jobs';
 import { insertPhotoRows, listInspectionPhotos } from './photos';
 
 export type RecordInspectionResult =
-	| { ok: true; id: number; photos: number }
+	/** `offer`: the plan's surface-inspection task, ready to be marked done in one tap. */
+	| { ok: true; id: number; photos: number; offer: TaskOffer | null }
 	| { ok: false; status: 400 | 403 | 404; message: string; problems: PhotoProblem[] };
 
 /**
@@ -54,6 +56,21 @@ export async function recordInspection(
 		.where('id', '=', input.dieId)
 		.executeTakeFirst();
 	if (!die) return { ok: false, status: 404, message: 'There is no such die.', problems: [] };
+	if (input.jobId != null) {
+		const job = await db
+			.selectFrom('toolroom_jobs')
+			.select(['die_id', 'status', 'number'])
+			.where('id', '=', input.jobId)
+			.executeTakeFirst();
+		if (!job || job.die_id !== input.dieId || job.status === 'done' || job.status === 'cancelled') {
+			return {
+				ok: false,
+				status: 400,
+				message: 'That job is not an open job of this die; the inspection was not saved.',
+				problems: []
+			};
+		}
+	}
 	let images: Parameters<typeof storePhotoFilesWith>[1] = [];
 	if (input.files.length > 0) {
 		const prepared = await preparePhotos(input.files, MAX_PHOTOS_PER_UPLOAD);
@@ -113,7 +130,13 @@ export async function recordInspection(
 			return row.id;
 		})
 	);
-	return { ok: true, id, photos: images.length };
+	const offer = await findTaskToComplete(db, {
+		dieId: input.dieId,
+		record: 'inspection',
+		at,
+		shots: form.shotsAt
+	});
+	return { ok: true, id, photos: images.length, offer };
 }
 
 /** Half and zone as one key; zones are free text, so compared trimmed and case-blind. */
