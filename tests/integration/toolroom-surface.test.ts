@@ -202,7 +202,7 @@ describe('an inspection completes the plan’s surface-inspection task', () => {
 		// The one tap: the plan's own done action with the offered values.
 		const done = await markTaskDone(
 			plant.db,
-			{ id: plant.dieId, number: 'T-0001' } as Parameters<typeof markTaskDone>[1],
+			{ id: plant.dieId, status: 'ready', total_shots: 12_000 },
 			{ taskId: result.offer!.taskId, doneOn: result.offer!.doneOn, shots: result.offer!.shots },
 			plant.toolmaker.userId,
 			'2026-02-03T10:00:00.000Z'
