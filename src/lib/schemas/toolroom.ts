@@ -164,6 +164,8 @@ export const circuitSchema = z.object({
 export type CircuitForm = z.infer<typeof circuitSchema>;
 
 export const coolingCheckSchema = z.object({
+	/** The line was flushed with this check. */
+	flushed: z.boolean().default(false),
 	circuitId: z.coerce
 		.number({ error: 'Choose the circuit.' })
 		.int()

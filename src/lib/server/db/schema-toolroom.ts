@@ -123,6 +123,8 @@ export interface CoolingChecksTable {
 	die_id: number;
 	/** The job the check was made under, if any. */
 	job_id: number | null;
+	/** 1 when the line was flushed with this check (offers the plan's cooling-flush task). */
+	flushed: Generated<number>;
 	checked_at: string;
 	checked_by: string | null;
 	measured_flow_lpm: number;

@@ -18,6 +18,7 @@ import { dieHeatBalance, heatPerShotKj, type HeatBalance } from '../../calc/heat
 import type { CircuitForm, CoolingCheckForm, HeatBalanceQuery } from '../../schemas/toolroom';
 import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
+import { findTaskToComplete, type TaskOffer } from '../dies/service-plan';
 import type { Coolant } from '../db/schema-toolroom';
 import { nowIso } from '../time';
 import { canLeadToolroom, canWorkToolroom } from './access';
@@ -163,8 +164,10 @@ export function evaluateCheck(circuit: CircuitValues, check: CheckValues): Check
 /** Records a check of one circuit of this die; oil circuits need the oil's properties. */
 export async function recordCheck(
 	db: DB,
-	input: { dieId: number; form: CoolingCheckForm; actor: Actor; at?: string }
-): Promise<{ ok: true; id: number; figures: CheckFigures } | CoolingRefusal> {
+	input: { dieId: number; form: CoolingCheckForm; actor: Actor; jobId?: number | null; at?: string }
+): Promise<
+	{ ok: true; id: number; figures: CheckFigures; offer: TaskOffer | null } | CoolingRefusal
+> {
 	const { form, actor } = input;
 	const at = input.at ?? nowIso();
 	if (!canWorkToolroom(actor.role)) {
@@ -221,6 +224,20 @@ export async function recordCheck(
 		oil_viscosity_mpa_s: isOil ? form.oilViscosityMpaS : null,
 		oil_specific_heat_j_kgk: isOil ? form.oilSpecificHeatJKgK : null
 	};
+	if (input.jobId != null) {
+		const job = await db
+			.selectFrom('toolroom_jobs')
+			.select(['die_id', 'status'])
+			.where('id', '=', input.jobId)
+			.executeTakeFirst();
+		if (!job || job.die_id !== input.dieId || job.status === 'done' || job.status === 'cancelled') {
+			return {
+				ok: false,
+				status: 400,
+				message: 'That job is not an open job of this die; the check was not saved.'
+			};
+		}
+	}
 	const figures = evaluateCheck(circuit, values);
 	const id = await db.transaction().execute(async (trx) => {
 		const row = await trx
@@ -233,6 +250,8 @@ export async function recordCheck(
 				supply_pressure_bar: form.supplyPressureBar,
 				leak_test: form.leakTest,
 				notes: form.notes,
+				job_id: input.jobId ?? null,
+				flushed: form.flushed ? 1 : 0,
 				...values
 			})
 			.returning('id')
@@ -248,14 +267,29 @@ export async function recordCheck(
 					flowLpm: form.measuredFlowLpm,
 					pctOfNominal: Math.round(figures.pctOfNominal),
 					weak: figures.weak,
-					leak: form.leakTest
+					leak: form.leakTest,
+					flushed: form.flushed
 				}
 			},
 			at
 		);
 		return row.id;
 	});
-	return { ok: true, id, figures };
+	let offer: TaskOffer | null = null;
+	if (form.flushed) {
+		const die = await db
+			.selectFrom('dies')
+			.select('total_shots')
+			.where('id', '=', input.dieId)
+			.executeTakeFirstOrThrow();
+		offer = await findTaskToComplete(db, {
+			dieId: input.dieId,
+			record: 'cooling_flush',
+			at,
+			shots: die.total_shots
+		});
+	}
+	return { ok: true, id, figures, offer };
 }
 
 const CHECK_COLUMNS = [
