@@ -22,7 +22,7 @@ import { findTaskToComplete, type TaskOffer } from '../dies/service-plan';
 import type { Coolant } from '../db/schema-toolroom';
 import { nowIso } from '../time';
 import { canLeadToolroom, canWorkToolroom } from './access';
-import type { Actor } from './jobs';
+import { isOpenJobOfDie, type Actor } from './jobs';
 
 /** Water temperatures the IAPWS properties are used for here, °C (pressurised above 100 °C). */
 export const WATER_CHECK_RANGE_C = { min: 1, max: 180 } as const;
@@ -224,19 +224,12 @@ export async function recordCheck(
 		oil_viscosity_mpa_s: isOil ? form.oilViscosityMpaS : null,
 		oil_specific_heat_j_kgk: isOil ? form.oilSpecificHeatJKgK : null
 	};
-	if (input.jobId != null) {
-		const job = await db
-			.selectFrom('toolroom_jobs')
-			.select(['die_id', 'status'])
-			.where('id', '=', input.jobId)
-			.executeTakeFirst();
-		if (!job || job.die_id !== input.dieId || job.status === 'done' || job.status === 'cancelled') {
-			return {
-				ok: false,
-				status: 400,
-				message: 'That job is not an open job of this die; the check was not saved.'
-			};
-		}
+	if (input.jobId != null && !(await isOpenJobOfDie(db, input.jobId, input.dieId))) {
+		return {
+			ok: false,
+			status: 400,
+			message: 'That job is not an open job of this die; the check was not saved.'
+		};
 	}
 	const figures = evaluateCheck(circuit, values);
 	const id = await db.transaction().execute(async (trx) => {

@@ -16,7 +16,7 @@ import {
 } from '../photos/store';
 import { nowIso } from '../time';
 import { canWorkToolroom } from './access';
-import type { Actor } from './jobs';
+import { isOpenJobOfDie, type Actor } from './jobs';
 import { insertPhotoRows, listInspectionPhotos } from './photos';
 
 export type RecordInspectionResult =
@@ -56,20 +56,13 @@ export async function recordInspection(
 		.where('id', '=', input.dieId)
 		.executeTakeFirst();
 	if (!die) return { ok: false, status: 404, message: 'There is no such die.', problems: [] };
-	if (input.jobId != null) {
-		const job = await db
-			.selectFrom('toolroom_jobs')
-			.select(['die_id', 'status', 'number'])
-			.where('id', '=', input.jobId)
-			.executeTakeFirst();
-		if (!job || job.die_id !== input.dieId || job.status === 'done' || job.status === 'cancelled') {
-			return {
-				ok: false,
-				status: 400,
-				message: 'That job is not an open job of this die; the inspection was not saved.',
-				problems: []
-			};
-		}
+	if (input.jobId != null && !(await isOpenJobOfDie(db, input.jobId, input.dieId))) {
+		return {
+			ok: false,
+			status: 400,
+			message: 'That job is not an open job of this die; the inspection was not saved.',
+			problems: []
+		};
 	}
 	let images: Parameters<typeof storePhotoFilesWith>[1] = [];
 	if (input.files.length > 0) {
