@@ -12,6 +12,7 @@ import * as createPlantSettings from './2026_12_03_1201_create_plant_settings';
 import * as addVerdictFacts from './2026_12_03_1301_add_verdict_facts';
 import * as widenNoticeKinds from './2026_12_03_1401_widen_notice_kinds';
 import * as addCoolingLock from './2026_12_03_1402_add_cooling_lock';
+import * as linkRecordsToJobs from './2026_12_03_1501_link_records_to_jobs';
 
 // Every migration is listed here by name so the same list works in the built app, in Vitest and
 // in tsx scripts (none of which share a way to glob the folder). Add new ones at the end.
@@ -28,5 +29,6 @@ export const migrations: Record<string, Migration> = {
 	'2026_12_03_1201_create_plant_settings': createPlantSettings,
 	'2026_12_03_1301_add_verdict_facts': addVerdictFacts,
 	'2026_12_03_1401_widen_notice_kinds': widenNoticeKinds,
-	'2026_12_03_1402_add_cooling_lock': addCoolingLock
+	'2026_12_03_1402_add_cooling_lock': addCoolingLock,
+	'2026_12_03_1501_link_records_to_jobs': linkRecordsToJobs
 };

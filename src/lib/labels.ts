@@ -147,3 +147,9 @@ export const REPAIR_KIND_LABELS = {
 /** Shown wherever a clamping figure is: figures plan, the press maker's rating decides. */
 export const CLAMP_CAUTION =
 	'Caution: an under-sized clamp lets the die open and molten metal spray from the parting line. The press maker’s rating and the plant’s procedures decide; this figure is a planning aid.';
+/** What a job photo shows; the shape goes with the word wherever a stage is shown. */
+export const PHOTO_STAGE_LABELS = {
+	before: { word: 'Before', shape: '◁' },
+	during: { word: 'During', shape: '◇' },
+	after: { word: 'After', shape: '▷' }
+} as const;

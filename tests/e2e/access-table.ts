@@ -169,6 +169,7 @@ export const ENDPOINTS: Record<string, Cells> = {
 	'POST /api/v1/shots': api(RECORDERS),
 	'GET /dies/export.csv': roles(...PLANT),
 	'GET /jobs/export.csv': roles(...PLANT),
+	'GET /jobs/[job]/report.pdf': roles(...PLANT),
 	'GET /owner/dies/[number]/ledger.csv': ownTooling(),
 	'GET /owner/export.csv': roles('customer'),
 	'GET /owner/statement.pdf': roles('customer'),

@@ -67,16 +67,14 @@ test('a toolmaker opens a job, adds photos, inspects, checks cooling and closes 
 	const jobUrl = page.url();
 	await expect(page.getByText('In toolroom')).toBeVisible();
 
-	// Two photos at once, with the upload progress shown.
+	// Two photos at once, each sent on its own.
 	await page.getByLabel('Choose photos').setInputFiles([
 		{ name: 'gate-1.jpg', mimeType: 'image/jpeg', buffer: await surfacePhoto(1) },
 		{ name: 'gate-2.jpg', mimeType: 'image/jpeg', buffer: await surfacePhoto(2) }
 	]);
 	await page.getByRole('button', { name: 'Upload photos' }).click();
-	const progress = page.getByRole('progressbar', { name: 'Photo upload' });
-	await expect(progress).toBeVisible();
-	await expect(progress).toHaveAttribute('aria-valuenow', '100');
 	await expect(page.getByText('2 photos added.')).toBeVisible();
+	await expect(page.locator('[data-photo-item]').getByText('✓ Added')).toHaveCount(2);
 	await expect(page.getByRole('heading', { name: 'Photos (2)' })).toBeVisible();
 	await expect(page.locator('img[src^="/photos/"][src$="/thumb"]')).toHaveCount(2);
 	const thumb = await page.locator('img[src$="/thumb"]').first().getAttribute('src');
@@ -133,6 +131,67 @@ test('a toolmaker opens a job, adds photos, inspects, checks cooling and closes 
 		page.getByRole('listitem').filter({ hasText: 'Surface inspection' }).getByText('On track')
 	).toBeVisible();
 	await page.screenshot({ path: info.outputPath('die-jobs-after.png'), fullPage: true });
+});
+
+test('photos on a phone: three chosen, one removed, one bad; the two good ones land, portrait shown whole', async ({
+	browser
+}, info) => {
+	test.setTimeout(120_000);
+	const context = await browser.newContext({ viewport: { width: 390, height: 844 } });
+	const page = await context.newPage();
+	await signIn(page, 'toolmaker');
+	await page.goto('/dies/D-0104/jobs');
+	await page.getByLabel('What is wrong or what to do').fill('Photo journey on a phone, e2e run');
+	await page.getByRole('button', { name: 'Open job' }).click();
+	await expect(page).toHaveURL(/\/jobs\/TJ-\d{5}$/);
+
+	const portrait = await new Jimp({ width: 240, height: 320, color: 0x8899aaff }).getBuffer(
+		'image/jpeg',
+		{ quality: 85 }
+	);
+	const choose = page.getByLabel('Choose photos');
+	await choose.setInputFiles([
+		{ name: 'gate-before.jpg', mimeType: 'image/jpeg', buffer: await surfacePhoto(3) },
+		{ name: 'notes.jpg', mimeType: 'image/jpeg', buffer: Buffer.from('not a photo at all') },
+		{ name: 'core-portrait.jpg', mimeType: 'image/jpeg', buffer: portrait }
+	]);
+	await choose.setInputFiles([
+		{ name: 'wrong-one.jpg', mimeType: 'image/jpeg', buffer: await surfacePhoto(4) }
+	]);
+	const items = page.locator('[data-photo-item]');
+	await expect(items).toHaveCount(4);
+	await page.getByRole('button', { name: 'Remove wrong-one.jpg' }).click();
+	await expect(items).toHaveCount(3);
+	await page.getByLabel('The photos show the die').selectOption('before');
+	await page.getByRole('button', { name: 'Upload photos' }).click();
+
+	await expect(page.getByTestId('upload-summary')).toHaveText(
+		'2 of 3 photos added; 1 not: notes.jpg.'
+	);
+	const bad = items.filter({ hasText: 'notes.jpg' });
+	await expect(bad).toContainText('Only JPEG and PNG photos are accepted');
+	await expect(bad.getByRole('button', { name: 'Remove notes.jpg' })).toBeVisible();
+	await expect(page.getByRole('heading', { name: 'Photos (2)' })).toBeVisible();
+	const thumbs = page.locator('img[src^="/photos/"][src$="/thumb"]');
+	await expect(thumbs).toHaveCount(2);
+	await expect(page.getByTestId('photo-stage').filter({ hasText: 'Before the work' })).toHaveCount(
+		2
+	);
+	// Portraits are shown whole: the thumbnail is fitted into its box, not cropped.
+	for (const fit of await thumbs.evaluateAll((imgs) =>
+		imgs.map((i) => getComputedStyle(i).objectFit)
+	)) {
+		expect(fit).toBe('contain');
+	}
+	const sizes = await page.getByText(/\d+ × \d+ px/).allTextContents();
+	expect(sizes.some((s) => s.includes('240 × 320 px'))).toBe(true);
+	const scroll = await page.evaluate(() => ({
+		width: document.documentElement.scrollWidth,
+		inner: window.innerWidth
+	}));
+	expect(scroll.width).toBeLessThanOrEqual(scroll.inner);
+	await page.screenshot({ path: info.outputPath('phone-photos.png'), fullPage: true });
+	await context.close();
 });
 
 test('a planner reads jobs but has no toolroom forms; a customer cannot fetch an unshared photo', async ({

@@ -43,11 +43,12 @@ describe('composeDigest', () => {
 			asOf: '2026-03-02T06:00:00Z'
 		});
 		expect(mail.subject).toBe('Castellan service notice: 150 overdue, 150 due');
+		// One block per die; 300 dies, the first MAX_LISTED_ITEMS listed.
 		const listed = mail.text.match(/^- D-\d{4} /gm) ?? [];
 		expect(listed).toHaveLength(MAX_LISTED_ITEMS);
-		// Every overdue item is listed before any due one.
+		// Every overdue die is listed before any due one.
 		expect(mail.text).toContain('- D-0650 ');
-		expect(mail.text).toContain(`… and ${300 - MAX_LISTED_ITEMS} more in this group.`);
+		expect(mail.text).toContain(`… and ${300 - MAX_LISTED_ITEMS} more dies.`);
 		expect(mail.text).toContain('https://c.test/toolroom');
 		expect(mail.html).toContain('href="https://c.test/dies/D-0501"');
 	});

@@ -133,7 +133,8 @@ describe('runNotices', () => {
 		await run(at(NOW, days(2)));
 		let digest = mailFor(mail.messages(), 'lead@plant.test');
 		expect(digest.map(diesIn)).toEqual([['D-9002']]);
-		expect(digest[0].text).toContain('SERVICE OVERDUE');
+		// The state is said on the item's line inside the die's block.
+		expect(digest[0].text).toContain('  * Service overdue: Surface inspection');
 
 		// The inspection is done; thirty days later it comes round again and is news again.
 		await db
@@ -147,7 +148,7 @@ describe('runNotices', () => {
 		await run(at(NOW, days(3 + 28)));
 		digest = mailFor(mail.messages(), 'lead@plant.test');
 		expect(digest.map(diesIn)).toEqual([['D-9002']]);
-		expect(digest[0].text).toContain('SERVICE COMING UP');
+		expect(digest[0].text).toContain('  * Service coming up: Surface inspection');
 	});
 
 	it('writes nothing while nobody has notices switched on, then tells the first who does', async () => {

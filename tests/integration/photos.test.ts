@@ -320,9 +320,9 @@ describe('processImageInPool', () => {
 		expect(pooled.thumb.equals(direct.thumb)).toBe(true);
 		expect(Buffer.isBuffer(pooled.full)).toBe(true);
 		expect({ ...pooled, full: null, thumb: null }).toEqual({ ...direct, full: null, thumb: null });
-		// Decoding 6 MP takes this thread-blocking code over a second; on the main thread the
-		// timer could not fire at all until it finished.
-		expect(ticks).toBeGreaterThan(20);
+		// The work runs on a worker thread, so this thread's timer keeps firing meanwhile. (With the
+		// native codec a 6 MP photo takes well under a second, so only "it fired" is asserted.)
+		expect(ticks).toBeGreaterThan(0);
 	});
 
 	it('rethrows the worker’s PhotoError with its code and message', async () => {

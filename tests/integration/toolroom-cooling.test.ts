@@ -339,3 +339,57 @@ describe('die heat balance', () => {
 		expect(tooHot.error).toEqual({ field: 'ejectC', message: expect.stringMatching(/solidus/) });
 	});
 });
+
+describe('a cooling check under a job', () => {
+	it('joins the job, shows on it, and a flushed line offers the plan’s cooling-flush task', async () => {
+		const { openJob } = await import('../../src/lib/server/toolroom/jobs');
+		const { listJobRecords } = await import('../../src/lib/server/toolroom/job-page');
+		const { jobForm } = await import('../fixtures/toolroom');
+		const opened = await openJob(plant.db, {
+			dieId: plant.dieId,
+			form: jobForm(),
+			actor: plant.lead
+		});
+		if (!opened.ok) throw new Error(opened.message);
+		const job = await plant.db
+			.selectFrom('toolroom_jobs')
+			.select('id')
+			.where('number', '=', opened.number)
+			.executeTakeFirstOrThrow();
+		const result = await recordCheck(plant.db, {
+			dieId: plant.dieId,
+			jobId: job.id,
+			form: coolingCheckSchema.parse({
+				leakTest: 'pass',
+				circuitId: water,
+				measuredFlowLpm: 20,
+				inletC: 25,
+				outletC: 31,
+				flushed: true
+			}),
+			actor: plant.toolmaker,
+			at: '2026-02-04T10:00:00.000Z'
+		});
+		if (!result.ok) throw new Error(result.message);
+		const flush = await plant.db
+			.selectFrom('service_tasks')
+			.select('id')
+			.where('die_id', '=', plant.dieId)
+			.where('kind', '=', 'cooling_flush')
+			.executeTakeFirstOrThrow();
+		// The fixture die stands at 12 000 shots (tests/fixtures/toolroom.ts).
+		expect(result.offer).toEqual({
+			taskId: flush.id,
+			kind: 'cooling_flush',
+			label: 'Cooling-line flush',
+			doneOn: '2026-02-04',
+			shots: 12_000
+		});
+		const records = await listJobRecords(plant.db, job.id);
+		expect(records.coolingChecks.map((k) => [k.measuredFlowLpm, k.flushed])).toEqual([[20, 1]]);
+
+		// A check without a flush offers nothing.
+		const plain = await check({ circuitId: water, measuredFlowLpm: 20, inletC: 25, outletC: 31 });
+		expect(plain.ok && plain.offer).toBeNull();
+	});
+});

@@ -98,7 +98,7 @@ describe('uploading photos to a job', () => {
 			asFile(good, 'gate side.jpg'),
 			asFile(second, 'ejector pins.jpg')
 		]);
-		expect(result).toEqual({ ok: true, count: 2, message: '2 photos added.' });
+		expect(result).toEqual({ ok: true, count: 2, message: '2 photos added.', problems: [] });
 
 		const rows = await photoRows();
 		expect(rows).toHaveLength(2);
@@ -189,24 +189,57 @@ describe('uploading photos to a job', () => {
 			await expectNothingStored();
 		});
 
-		it('a good photo sent with a bad one: neither is kept', async () => {
-			const result = await upload([
-				asFile(good, 'good.jpg'),
-				asFile(Buffer.from('nope'), 'bad.jpg')
-			]);
-			expect(result).toMatchObject({
-				ok: false,
-				message: expect.stringMatching(/1 of 2 photos cannot be used, so none were saved/)
-			});
-			if (result.ok) return;
-			expect(result.problems.map((p) => p.file)).toEqual(['bad.jpg']);
-			await expectNothingStored();
-		});
-
 		it('no file at all', async () => {
 			expect(await upload([])).toMatchObject({ ok: false, message: 'Choose at least one photo.' });
 			await expectNothingStored();
 		});
+	});
+
+	it('two good photos and a bad one: the two are kept, tagged, and the bad one is named', async () => {
+		const second = await makeJpeg(90, 200);
+		const result = await uploadPhotos(plant.db, {
+			target: { jobId },
+			files: [
+				asFile(good, 'before 1.jpg'),
+				asFile(Buffer.from('nope'), 'notes.jpg'),
+				asFile(second, 'before 2.jpg')
+			],
+			actor: plant.toolmaker,
+			uploadDir: uploads.dir,
+			stage: 'before'
+		});
+		expect(result).toEqual({
+			ok: true,
+			count: 2,
+			message: '2 photos added; 1 could not be used: notes.jpg.',
+			problems: [
+				{
+					file: 'notes.jpg',
+					message: 'Only JPEG and PNG photos are accepted; this file is not an image.'
+				}
+			]
+		});
+		const rows = await photoRows();
+		expect(rows.map((r) => [r.width, r.height, r.stage])).toEqual([
+			[160, 120, 'before'],
+			[90, 200, 'before']
+		]);
+		expect(await uploads.files()).toHaveLength(4);
+	});
+
+	it('only bad photos: nothing is kept and each is named', async () => {
+		const result = await upload([
+			asFile(Buffer.from('nope'), 'a.jpg'),
+			asFile(Buffer.alloc(0), 'b.jpg')
+		]);
+		expect(result).toMatchObject({
+			ok: false,
+			status: 400,
+			message: 'None of the photos could be saved.'
+		});
+		if (result.ok) return;
+		expect(result.problems.map((p) => p.file)).toEqual(['a.jpg', 'b.jpg']);
+		await expectNothingStored();
 	});
 
 	it('removes the written files when the database write fails', async () => {

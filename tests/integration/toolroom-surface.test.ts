@@ -182,6 +182,88 @@ describe('zones from the die’s list, and series since the last repair', () => 
 			grade: 1,
 			longestCrackMm: ''
 		});
+describe('an inspection completes the plan’s surface-inspection task', () => {
+	it('offers the task with the inspection’s date and shots, and the offer marks it done', async () => {
+		const { findTaskToComplete, markTaskDone } =
+			await import('../../src/lib/server/dies/service-plan');
+		const task = await plant.db
+			.selectFrom('service_tasks')
+			.select(['id', 'last_done_shots'])
+			.where('die_id', '=', plant.dieId)
+			.where('kind', '=', 'surface_inspection')
+			.where('active', '=', 1)
+			.executeTakeFirst();
+		// The A380 template gives every new die a surface-inspection task (created at 0 shots).
+		expect(task).toBeDefined();
+		expect(task!.last_done_shots).toBe(0);
+
+		const form = inspectionSchema.parse({
+			half: 'cover',
+			zone: 'Gate side',
+			shotsAt: 11_500,
+			grade: 2,
+			longestCrackMm: ''
+		});
+		const result = await recordInspection(plant.db, {
+			dieId: plant.dieId,
+			form,
+			files: [],
+			actor: plant.toolmaker,
+			uploadDir: uploads.dir,
+			at: '2026-02-03T09:30:00.000Z'
+		});
+		if (!result.ok) throw new Error(result.message);
+		expect(result.offer).toEqual({
+			taskId: task!.id,
+			kind: 'surface_inspection',
+			label: 'Surface inspection',
+			doneOn: '2026-02-03',
+			shots: 11_500
+		});
+
+		// The one tap: the plan's own done action with the offered values.
+		const done = await markTaskDone(
+			plant.db,
+			{ id: plant.dieId, status: 'ready', total_shots: 12_000 },
+			{ taskId: result.offer!.taskId, doneOn: result.offer!.doneOn, shots: result.offer!.shots },
+			plant.toolmaker.userId,
+			'2026-02-03T10:00:00.000Z'
+		);
+		expect(done.ok).toBe(true);
+		const after = await plant.db
+			.selectFrom('service_tasks')
+			.select(['last_done_at', 'last_done_shots'])
+			.where('id', '=', task!.id)
+			.executeTakeFirstOrThrow();
+		// Same day as "now" in markTaskDone's terms → stamped with that moment.
+		expect(after).toEqual({ last_done_at: '2026-02-03T10:00:00.000Z', last_done_shots: 11_500 });
+
+		// Once done at those shots, the same inspection offers nothing more.
+		expect(
+			await findTaskToComplete(plant.db, {
+				dieId: plant.dieId,
+				record: 'inspection',
+				at: '2026-02-03T09:30:00.000Z',
+				shots: 11_500
+			})
+		).toBeNull();
+	});
+
+	it('joins an open job of the die, and refuses a job of another die', async () => {
+		const { openJob } = await import('../../src/lib/server/toolroom/jobs');
+		const { jobForm } = await import('../fixtures/toolroom');
+		const opened = await openJob(plant.db, {
+			dieId: plant.otherDieId,
+			form: jobForm(),
+			actor: plant.lead
+		});
+		if (!opened.ok) throw new Error(opened.message);
+		const other = await plant.db
+			.selectFrom('toolroom_jobs')
+			.select('id')
+			.where('die_id', '=', plant.otherDieId)
+			.executeTakeFirstOrThrow();
+		const form = inspectionSchema.parse({ half: 'cover', zone: 'Core', shotsAt: 100, grade: 1 });
 		const refused = await recordInspection(plant.db, {
 			dieId: plant.dieId,
 			form,
@@ -242,5 +324,10 @@ describe('zones from the die’s list, and series since the last repair', () => 
 			projectedShotsAtRepair: null
 		});
 		expect(zone.rising).toBe(false);
+			uploadDir: uploads.dir,
+			jobId: other.id
+		});
+		expect(refused).toMatchObject({ ok: false, status: 400 });
+		expect(await plant.db.selectFrom('surface_inspections').select('id').execute()).toHaveLength(0);
 	});
 });

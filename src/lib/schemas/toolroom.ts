@@ -146,6 +146,8 @@ export const circuitSchema = z.object({
 export type CircuitForm = z.infer<typeof circuitSchema>;
 
 export const coolingCheckSchema = z.object({
+	/** The line was flushed with this check. */
+	flushed: z.boolean().default(false),
 	circuitId: wholeNumber({ required: 'Choose the circuit.', min: [1, 'Choose the circuit.'] }),
 	measuredFlowLpm: decimalNumber({
 		required: 'Enter the measured flow in L/min.',
@@ -223,6 +225,13 @@ export const jobBoardQuerySchema = z.object({
 	page: z.coerce.number().int().min(1).max(100_000).catch(1)
 });
 export type JobBoardQuery = z.infer<typeof jobBoardQuerySchema>;
+
+/** Stage tag of a job photo; an empty choice means "not said". */
+export const PHOTO_STAGES = ['before', 'during', 'after'] as const;
+export const photoStageSchema = z.preprocess(
+	(v) => (v === '' || v === null || v === undefined ? null : v),
+	z.enum(PHOTO_STAGES, { error: 'Choose before, during or after.' }).nullable()
+);
 
 export const photoShareSchema = z.object({
 	photo: z

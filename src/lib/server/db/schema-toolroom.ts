@@ -10,6 +10,8 @@ export type JobHalf = 'cover' | 'ejector' | 'both';
 export type JobSource = 'die' | 'service_task' | 'notice';
 export type Coolant = 'water' | 'oil';
 export type LeakTest = 'pass' | 'fail';
+/** What a job photo shows: the die before, during or after the work. */
+export type PhotoStage = 'before' | 'during' | 'after';
 
 export interface ToolroomJobsTable {
 	id: Generated<number>;
@@ -85,6 +87,8 @@ export interface PhotosTable {
 	uploaded_at: string;
 	caption: string | null;
 	shared_with_owner: Generated<number>;
+	/** Job photos: the die before, during or after the work; null when not said. */
+	stage: PhotoStage | null;
 }
 
 export interface SurfaceInspectionsTable {
@@ -149,6 +153,10 @@ export interface CoolingChecksTable {
 	id: Generated<number>;
 	circuit_id: number;
 	die_id: number;
+	/** The job the check was made under, if any. */
+	job_id: number | null;
+	/** 1 when the line was flushed with this check (offers the plan's cooling-flush task). */
+	flushed: Generated<number>;
 	checked_at: string;
 	checked_by: string | null;
 	measured_flow_lpm: number;

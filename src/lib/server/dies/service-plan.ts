@@ -345,3 +345,51 @@ export async function markTaskDone(
 		return { ok: true, message: `${serviceKindLabel(task.kind)} marked done.` };
 	});
 }
+
+/** Which plan task a bench record carries out: the one place that pairs them. */
+export const TASK_KIND_FOR_RECORD = {
+	inspection: 'surface_inspection',
+	cooling_flush: 'cooling_flush',
+	stress_relief: 'stress_relief'
+} as const;
+export type RecordKind = keyof typeof TASK_KIND_FOR_RECORD;
+
+/** A one-tap offer to mark a plan task done with the record's date and shots. */
+export interface TaskOffer {
+	taskId: number;
+	kind: string;
+	label: string;
+	/** UTC date of the record, YYYY-MM-DD. */
+	doneOn: string;
+	shots: number;
+}
+
+/**
+ * The die's active plan task that a just-recorded inspection, cooling-line flush or stress
+ * relief carries out, offered for completion at the record's date and shot count — or null
+ * when the die has no such task, or the task was already recorded done at or after the record.
+ * The offer is only a prefilled form: markTaskDone still checks date and shots when it is used.
+ */
+export async function findTaskToComplete(
+	db: DB,
+	input: { dieId: number; record: RecordKind; at: string; shots: number }
+): Promise<TaskOffer | null> {
+	const kind = TASK_KIND_FOR_RECORD[input.record];
+	const task = await db
+		.selectFrom('service_tasks')
+		.select(['id', 'kind', 'last_done_at', 'last_done_shots'])
+		.where('die_id', '=', input.dieId)
+		.where('kind', '=', kind)
+		.where('active', '=', 1)
+		.orderBy('id')
+		.executeTakeFirst();
+	if (!task) return null;
+	if (task.last_done_at >= input.at && task.last_done_shots >= input.shots) return null;
+	return {
+		taskId: task.id,
+		kind: task.kind,
+		label: serviceKindLabel(task.kind),
+		doneOn: input.at.slice(0, 10),
+		shots: input.shots
+	};
+}

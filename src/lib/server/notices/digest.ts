@@ -1,7 +1,8 @@
 import { formatDate, formatShots } from '../../format';
 import { plantDate, plantTimeNote } from '../../plant-time';
-import { serviceKindLabel } from '../../labels';
+import { HALF_LABELS, serviceKindLabel } from '../../labels';
 import { escapeHtml, layoutEmail } from '../mail/html';
+import type { DieConcerns } from './concerns';
 import {
 	NOTICE_LEVEL_COUNT_WORDS,
 	NOTICE_LEVEL_LABELS,
@@ -24,6 +25,8 @@ export interface DigestOptions {
 	origin: string;
 	/** When the digest is made; shown as its date. */
 	asOf: string;
+	/** Grade-3+ cracks and weak circuits per die number, shown in that die's block. */
+	concerns?: ReadonlyMap<string, DieConcerns>;
 }
 
 export interface ComposedMail {
@@ -38,19 +41,45 @@ const SAFETY =
 	"The plant's procedures and local codes come first.";
 
 /**
- * Items listed one by one in a digest, worst first; the rest are counted. A first run in a plant
+ * Dies listed one by one in a digest, worst first; the rest are counted. A first run in a plant
  * with years of backlog should give a readable mail, not thousands of lines.
  */
 export const MAX_LISTED_ITEMS = 200;
 
 const FOOTER =
 	'You receive this because e-mail notices are switched on for your Castellan account. ' +
-	'Switch them off under Account in Castellan.';
+	'Switch them off under Account in Castellan (link above).';
 
 /** Link to a die page; the number is encoded, the origin is the configured one. */
 export function dieLink(origin: string, dieNumber: string): string {
 	return `${origin.replace(/\/+$/, '')}/dies/${encodeURIComponent(dieNumber)}`;
 }
+
+const base = (origin: string) => origin.replace(/\/+$/, '');
+
+/** Links to the exact place an item is dealt with; the first is the item's own page. */
+export function entryLinks(
+	origin: string,
+	payload: NoticePayload
+): { label: string; url: string }[] {
+	const die = dieLink(origin, payload.dieNumber);
+	switch (payload.kind) {
+		case 'service':
+			return [
+				{ label: 'Plan task', url: `${die}/plan#task-${payload.taskId}` },
+				{ label: 'Open a job for this', url: `${die}/jobs?task=${payload.taskId}#open-job` }
+			];
+		case 'life':
+			return [{ label: 'Die', url: die }];
+		case 'job_completed':
+			return [
+				{ label: 'Job', url: `${base(origin)}/jobs/${encodeURIComponent(payload.jobNumber)}` }
+			];
+	}
+}
+
+/** Where a recipient switches the notices off (the account page's notice setting). */
+export const settingsLink = (origin: string) => `${base(origin)}/account#notices`;
 
 function pct(fraction: number): string {
 	return `${Math.floor(fraction * 100)} %`;
@@ -121,8 +150,10 @@ function subjectOf(groups: [NoticeLevel, DigestEntry[]][], count: number, single
 }
 
 /**
- * One digest e-mail for one recipient: every item grouped by level, worst first, each with a
- * link to its die. Plain text and HTML carry the same content; every value is escaped in the
+ * One digest e-mail for one recipient: one block per die (dies ordered by their worst item),
+ * holding its notices, its grade-3+ cracks and weak cooling circuits (options.concerns), each
+ * with links to the exact place (plan task, inspection, cooling, "open a job for this"), and a
+ * link to the notification settings. Plain text and HTML carry the same content; every value is escaped in the
  * HTML. Nothing but die facts goes in: no tokens, no account data.
  */
 export function composeDigest(
@@ -142,46 +173,69 @@ export function composeDigest(
 	const text: string[] = [title, '', intro, ''];
 	const html: string[] = [`<p style="margin:0 0 16px;">${escapeHtml(intro)}</p>`];
 
-	let budget = MAX_LISTED_ITEMS;
-	let omitted = 0;
-	for (const [level, list] of groups) {
-		const heading = `${NOTICE_LEVEL_LABELS[level]} (${list.length})`;
-		text.push(heading.toUpperCase());
-		html.push(
-			`<h2 style="margin:20px 0 8px;font-size:16px;color:#2b3139;border-bottom:1px solid #d1d5db;padding-bottom:4px;">${escapeHtml(heading)}</h2>`,
-			'<table role="presentation" width="100%" cellpadding="0" cellspacing="0" style="border-collapse:collapse;font-size:14px;">'
-		);
-		const listed = list.slice(0, budget);
-		budget -= listed.length;
-		for (const entry of listed) {
+	// One block per die, dies ordered by their worst item, then by number.
+	const rank = (level: NoticeLevel) => NOTICE_LEVELS.indexOf(level);
+	const dies = new Map<string, DigestEntry[]>();
+	for (const [, list] of groups) {
+		for (const entry of list)
+			dies.set(entry.dieNumber, [...(dies.get(entry.dieNumber) ?? []), entry]);
+	}
+	const blocks = [...dies.values()].sort(
+		(a, b) =>
+			rank(a[0].level) - rank(b[0].level) ||
+			(a[0].dieNumber < b[0].dieNumber ? -1 : a[0].dieNumber > b[0].dieNumber ? 1 : 0)
+	);
+	const link = (url: string, label: string) =>
+		`<a href="${escapeHtml(url)}" style="color:#b4530f;">${escapeHtml(label)}</a>`;
+
+	const listed = blocks.slice(0, MAX_LISTED_ITEMS);
+	for (const block of listed) {
+		const first = block[0].payload;
+		const die = dieLink(options.origin, first.dieNumber);
+		const concerns = options.concerns?.get(first.dieNumber);
+		text.push(`- ${first.dieNumber} ${first.partName} (${first.customerName})`, `  ${die}`);
+		const items: string[] = [];
+		for (const entry of block) {
 			const p = entry.payload;
-			const link = dieLink(options.origin, p.dieNumber);
-			const detail = describeEntry(p);
-			text.push(`- ${p.dieNumber} ${p.partName} (${p.customerName})`, `  ${detail}`, `  ${link}`);
-			html.push(
-				'<tr>',
-				`<td style="padding:6px 8px 6px 0;vertical-align:top;white-space:nowrap;font-family:monospace;"><a href="${escapeHtml(link)}" style="color:#b4530f;">${escapeHtml(p.dieNumber)}</a></td>`,
-				`<td style="padding:6px 0;vertical-align:top;"><strong>${escapeHtml(p.partName)}</strong> <span style="color:#6b7280;">· ${escapeHtml(p.customerName)}</span><br>${escapeHtml(detail)}</td>`,
-				'</tr>'
+			const links = entryLinks(options.origin, p);
+			const detail = `${NOTICE_LEVEL_LABELS[entry.level]}: ${describeEntry(p)}`;
+			text.push(`  * ${detail}`, ...links.map((l) => `    ${l.label}: ${l.url}`));
+			items.push(
+				`<li style="margin:2px 0;">${escapeHtml(detail)}<br>${links.map((l) => link(l.url, l.label)).join(' · ')}</li>`
 			);
 		}
-		html.push('</table>');
-		const more = list.length - listed.length;
-		if (more > 0) {
-			omitted += more;
-			const line = `… and ${formatShots(more)} more in this group.`;
-			text.push(line);
-			html.push(`<p style="margin:6px 0 0;color:#6b7280;">${escapeHtml(line)}</p>`);
+		for (const c of concerns?.cracks ?? []) {
+			const url = `${die}/surface?zone=${encodeURIComponent(c.zone)}`;
+			const detail = `Surface grade ${c.grade}: ${HALF_LABELS[c.half]}, ${c.zone}, at ${shotsWord(c.shotsAt)}`;
+			const job = `${die}/jobs#open-job`;
+			text.push(`  * ${detail}`, `    Inspection: ${url}`, `    Open a job for this: ${job}`);
+			items.push(
+				`<li style="margin:2px 0;">${escapeHtml(detail)}<br>${link(url, 'Inspection')} · ${link(job, 'Open a job for this')}</li>`
+			);
+		}
+		for (const k of concerns?.weakCircuits ?? []) {
+			const url = `${die}/cooling`;
+			const detail = `Weak cooling circuit ${k.label}: ${Math.round(k.pctOfNominal)} % of nominal flow${k.leakFailed ? ', leak test failed' : ''}`;
+			const job = `${die}/jobs#open-job`;
+			text.push(`  * ${detail}`, `    Cooling: ${url}`, `    Open a job for this: ${job}`);
+			items.push(
+				`<li style="margin:2px 0;">${escapeHtml(detail)}<br>${link(url, 'Cooling')} · ${link(job, 'Open a job for this')}</li>`
+			);
 		}
 		text.push('');
-	}
-	if (omitted > 0) {
-		const home = `${options.origin.replace(/\/+$/, '')}${hasToolroomWork ? '/toolroom' : '/planner'}`;
-		const line = `Only the first ${MAX_LISTED_ITEMS} items are listed; Castellan shows them all:`;
-		text.push(`${line} ${home}`, '');
 		html.push(
-			`<p style="margin:16px 0 0;">${escapeHtml(line)} <a href="${escapeHtml(home)}" style="color:#b4530f;">${escapeHtml(home)}</a></p>`
+			`<div style="margin:0 0 14px;padding:8px 10px;border:1px solid #d1d5db;">`,
+			`<p style="margin:0 0 4px;"><a href="${escapeHtml(die)}" style="color:#b4530f;font-family:monospace;">${escapeHtml(first.dieNumber)}</a> <strong>${escapeHtml(first.partName)}</strong> <span style="color:#6b7280;">· ${escapeHtml(first.customerName)}</span></p>`,
+			`<ul style="margin:0;padding-left:18px;font-size:14px;">${items.join('')}</ul>`,
+			'</div>'
 		);
+	}
+	const more = blocks.length - listed.length;
+	if (more > 0) {
+		const home = `${base(options.origin)}${hasToolroomWork ? '/toolroom' : '/planner'}`;
+		const line = `… and ${formatShots(more)} more dies. Only the first ${MAX_LISTED_ITEMS} are listed; Castellan shows them all:`;
+		text.push(`${line} ${home}`, '');
+		html.push(`<p style="margin:16px 0 0;">${escapeHtml(line)} ${link(home, home)}</p>`);
 	}
 
 	if (hasToolroomWork) {
@@ -193,7 +247,11 @@ export function composeDigest(
 	const zoneNote = plantTimeNote();
 	text.push(zoneNote, '');
 	html.push(`<p style="margin:16px 0 0;color:#6b7280;font-size:13px;">${escapeHtml(zoneNote)}</p>`);
-	text.push('--', FOOTER);
+	const settings = settingsLink(options.origin);
+	text.push(`Notification settings: ${settings}`, '', '--', FOOTER);
+	html.push(
+		`<p style="margin:16px 0 0;font-size:13px;">${link(settings, 'Notification settings')}</p>`
+	);
 
 	return {
 		subject,

@@ -1,6 +1,7 @@
 import { randomUUID } from 'node:crypto';
 import { rawHandle, type DB } from '../db/connect';
 import type { Mailer } from '../mail/transport';
+import { findDieConcerns } from './concerns';
 import { composeDigest, type ComposedMail, type DigestEntry } from './digest';
 import { toStoredInstant } from './outbox';
 import type { NoticeLevel, NoticePayload } from './types';
@@ -191,7 +192,8 @@ export async function sendPending(
 		let messageId: string;
 		try {
 			const entries = claim.rows.map(toDigestEntry);
-			mail = composeDigest(entries, { origin: options.origin, asOf: at });
+			const concerns = await findDieConcerns(db, [...new Set(entries.map((e) => e.dieNumber))]);
+			mail = composeDigest(entries, { origin: options.origin, asOf: at, concerns });
 			({ messageId } = await mailer.send({ to: claim.recipient, ...mail }));
 		} catch (error) {
 			const message = error instanceof Error ? error.message : String(error);

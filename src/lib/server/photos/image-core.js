@@ -21,9 +21,6 @@ export const FULL_LONG_SIDE = 2560;
 export const THUMB_LONG_SIDE = 400;
 
 const JPEG_QUALITY = 85;
-// jpeg-js accounts roughly 13 bytes per pixel while decoding a 4:4:4 JPEG; a 40 MP photo needs
-// about 530 MB, just above its 512 MB default. The pixel cap above is what really bounds this.
-const JPEG_DECODE_MEMORY_MB = 1024;
 
 /**
  * @typedef {'empty' | 'not_image' | 'too_large' | 'too_many_pixels' | 'corrupt'} PhotoErrorCode
@@ -66,7 +63,7 @@ export class PhotoError extends Error {
 /**
  * @typedef {object} ImageDeps
  * @property {typeof import('@jimp/core').createJimp} createJimp
- * @property {typeof import('@jimp/js-jpeg').default} jpeg
+ * @property {ReturnType<typeof import('./jpeg-codec.js').createSharpJpeg>} jpeg the fast codec
  * @property {typeof import('@jimp/js-png').default} png
  * @property {typeof import('@jimp/plugin-resize').methods} resizeMethods
  */
@@ -166,7 +163,7 @@ function isStartOfFrame(marker) {
 /**
  * Walks the marker segments up to the first scan (SOS): the frame header (SOFn) gives the size,
  * APP1 "Exif" gives the orientation. Entropy-coded data after SOS is not parsed, except to make
- * sure an end-of-image marker follows: jpeg-js happily decodes a progressive JPEG cut off
+ * sure an end-of-image marker follows: a lenient decoder happily decodes a progressive JPEG cut off
  * between scans, and the result would be a blurred or grey photo rather than an error.
  * @param {Buffer} buf starts with FF D8 FF
  * @returns {ImageHeader}
@@ -322,79 +319,111 @@ function fitWithin(width, height, longSide) {
  */
 export function createImageProcessor(deps) {
 	const Jimp = deps.createJimp({
-		formats: [deps.jpeg, deps.png],
+		formats: [deps.jpeg.jpegFormat, deps.png],
 		plugins: [deps.resizeMethods]
 	});
-	const jpegCodec = deps.jpeg();
 	const pngCodec = deps.png();
 
 	/**
-	 * Decodes with the format codecs directly rather than Jimp.fromBuffer: fromBuffer sniffs the
-	 * type again, and it applies EXIF orientation itself (via exif-parser) — we apply our own
-	 * parse exactly once below, and need decode limits fromBuffer does not pass through.
+	 * @param {string} type
+	 * @param {unknown} error
+	 */
+	function damaged(type, error) {
+		const reason = error instanceof Error ? error.message.split('\n')[0] : String(error);
+		return new PhotoError(
+			'corrupt',
+			`The ${type.toUpperCase()} file is damaged and cannot be read (${reason}).`
+		);
+	}
+
+	/**
+	 * A JPEG is decoded straight to the size wanted (long side ≤ `longSide`): libjpeg scales
+	 * while decoding (DCT scaling, as `djpeg -scale` does) and libvips finishes the reduction,
+	 * so a 12 MP photo is never held at full size. The stored orientation is applied after.
+	 * @param {Buffer} buf
+	 * @param {ImageHeader} header
+	 * @param {number} longSide
+	 * @returns {Promise<Bitmap>}
+	 */
+	async function decodeJpeg(buf, header, longSide) {
+		const size = fitWithin(header.width, header.height, longSide);
+		let decoded;
+		try {
+			decoded = await deps.jpeg.decode(buf, {
+				size: size ?? undefined,
+				maxPixels: MAX_PHOTO_PIXELS
+			});
+		} catch (error) {
+			throw damaged('jpeg', error);
+		}
+		const want = size ?? { w: header.width, h: header.height };
+		if (decoded.width !== want.w || decoded.height !== want.h) {
+			throw new PhotoError('corrupt', 'The image data does not match its header.');
+		}
+		return applyOrientation(decoded, header.orientation);
+	}
+
+	/**
 	 * @param {Buffer} buf
 	 * @param {ImageHeader} header
 	 * @returns {Bitmap}
 	 */
-	function decode(buf, header) {
+	function decodePng(buf, header) {
 		let decoded;
 		try {
-			decoded =
-				header.type === 'jpeg'
-					? jpegCodec.decode(buf, {
-							maxResolutionInMP: MAX_PHOTO_PIXELS / 1e6,
-							maxMemoryUsageInMB: JPEG_DECODE_MEMORY_MB
-						})
-					: pngCodec.decode(buf, { checkCRC: true });
+			decoded = pngCodec.decode(buf, { checkCRC: true });
 		} catch (error) {
-			const reason = error instanceof Error ? error.message : String(error);
-			throw new PhotoError(
-				'corrupt',
-				`The ${header.type.toUpperCase()} file is damaged and cannot be read (${reason}).`
-			);
+			throw damaged('png', error);
 		}
 		if (decoded.width !== header.width || decoded.height !== header.height) {
 			throw new PhotoError('corrupt', 'The image data does not match its header.');
 		}
-		// Only data/width/height: jpeg-js also returns exifBuffer and comments, and its encoder
-		// writes them back out if they ride along on the bitmap — old orientation included.
 		return { data: decoded.data, width: decoded.width, height: decoded.height };
 	}
 
 	/**
-	 * @param {InstanceType<typeof Jimp>} image
-	 * @returns {Promise<Buffer>}
+	 * @param {Bitmap} bitmap
+	 * @param {number} longSide
+	 * @returns {Promise<{ bytes: Buffer, width: number, height: number }>}
 	 */
-	function encodeJpeg(image) {
-		// JPEG has no alpha; transparent PNG areas become white, not the default black.
-		image.background = 0xffffffff;
-		return image.getBuffer('image/jpeg', { quality: JPEG_QUALITY });
+	async function encodeWithin(bitmap, longSide) {
+		const image = new Jimp(bitmap);
+		const size = fitWithin(image.width, image.height, longSide);
+		if (size) image.resize(size);
+		// JPEG has no alpha: the codec flattens transparent PNG areas onto white.
+		const bytes = await image.getBuffer('image/jpeg', { quality: JPEG_QUALITY });
+		return { bytes, width: image.width, height: image.height };
 	}
 
 	return async function processImage(input) {
 		const buf = asBuffer(input);
 		const header = inspectImage(buf);
-		const upright = applyOrientation(decode(buf, header), header.orientation);
-
-		const image = new Jimp(upright);
-		const fullSize = fitWithin(image.width, image.height, FULL_LONG_SIDE);
-		if (fullSize) image.resize(fullSize);
-		const full = await encodeJpeg(image);
-
-		const thumbImage = image.clone();
-		const thumbSize = fitWithin(thumbImage.width, thumbImage.height, THUMB_LONG_SIDE);
-		if (thumbSize) thumbImage.resize(thumbSize);
-		const thumb = await encodeJpeg(thumbImage);
-
+		let full;
+		let thumb;
+		if (header.type === 'jpeg') {
+			// Two decodes at two sizes cost less than resizing the full image down again.
+			const [fullBitmap, thumbBitmap] = await Promise.all([
+				decodeJpeg(buf, header, FULL_LONG_SIDE),
+				decodeJpeg(buf, header, THUMB_LONG_SIDE)
+			]);
+			[full, thumb] = await Promise.all([
+				encodeWithin(fullBitmap, FULL_LONG_SIDE),
+				encodeWithin(thumbBitmap, THUMB_LONG_SIDE)
+			]);
+		} else {
+			const bitmap = decodePng(buf, header);
+			full = await encodeWithin(bitmap, FULL_LONG_SIDE);
+			thumb = await encodeWithin(bitmap, THUMB_LONG_SIDE);
+		}
 		return {
-			full,
-			thumb,
-			width: image.width,
-			height: image.height,
+			full: full.bytes,
+			thumb: thumb.bytes,
+			width: full.width,
+			height: full.height,
 			originalWidth: header.width,
 			originalHeight: header.height,
 			sourceType: header.type,
-			sha256: createHash('sha256').update(full).digest('hex')
+			sha256: createHash('sha256').update(full.bytes).digest('hex')
 		};
 	};
 }

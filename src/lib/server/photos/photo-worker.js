@@ -1,19 +1,21 @@
 // @ts-check
 /**
- * Entry module of a photo worker thread. Never imported: worker-pool.ts starts each worker from
- * a data: URL holding this file's text, so it may import Node built-ins only. image-core.js
- * arrives the same way, and the jimp packages as absolute file: URLs resolved by the pool.
+ * Task module of a photo worker thread (tinypool calls the default export once per photo).
+ * Never imported by the app: worker-pool.ts hands tinypool this file's text as a data: URL,
+ * with the line marked below replaced by the absolute URLs of image-core.js (another data:
+ * URL), jpeg-codec.js, sharp and the jimp packages — a data: module cannot resolve bare package
+ * names or relative paths itself. See worker-pool.ts for why.
  */
-import { parentPort, workerData } from 'node:worker_threads';
 
 /**
- * @typedef {object} PhotoWorkerData
- * @property {string} coreUrl data: URL with the source of image-core.js
- * @property {{ jimpCore: string, jpeg: string, png: string, resize: string }} moduleUrls
- *   absolute URLs of @jimp/core, @jimp/js-jpeg, @jimp/js-png and @jimp/plugin-resize
+ * @typedef {object} PhotoModuleUrls
+ * @property {string} core image-core.js
+ * @property {string} codec jpeg-codec.js
+ * @property {string} sharp
+ * @property {string} jimpCore
+ * @property {string} png the jimp PNG format
+ * @property {string} resize the jimp resize plugin
  */
-
-/** @typedef {{ id: number, bytes: Uint8Array }} PhotoJob */
 
 /**
  * @typedef {Omit<import('./image-core.js').ProcessedImage, 'full' | 'thumb'>
@@ -21,46 +23,44 @@ import { parentPort, workerData } from 'node:worker_threads';
  */
 
 /**
- * @typedef {{ id: number, ok: true, result: PhotoJobResult }
- *   | { id: number, ok: false, error: { message: string, code?: string } }} PhotoJobReply
+ * @typedef {{ ok: true, result: PhotoJobResult }
+ *   | { ok: false, error: { message: string, code?: string } }} PhotoJobReply
  */
 
-const port = parentPort;
-if (!port) throw new Error('photo-worker.js runs only inside a worker thread.');
-const { coreUrl, moduleUrls } = /** @type {PhotoWorkerData} */ (workerData);
+/** @type {PhotoModuleUrls} */
+const urls = JSON.parse('__PHOTO_MODULE_URLS__');
 
-const [core, jimpCore, jpeg, png, resize] = await Promise.all([
-	/** @type {Promise<typeof import('./image-core.js')>} */ (import(coreUrl)),
-	/** @type {Promise<typeof import('@jimp/core')>} */ (import(moduleUrls.jimpCore)),
-	/** @type {Promise<typeof import('@jimp/js-jpeg')>} */ (import(moduleUrls.jpeg)),
-	/** @type {Promise<typeof import('@jimp/js-png')>} */ (import(moduleUrls.png)),
-	/** @type {Promise<typeof import('@jimp/plugin-resize')>} */ (import(moduleUrls.resize))
+const [core, codec, sharp, jimpCore, png, resize] = await Promise.all([
+	/** @type {Promise<typeof import('./image-core.js')>} */ (import(urls.core)),
+	/** @type {Promise<typeof import('./jpeg-codec.js')>} */ (import(urls.codec)),
+	/** @type {Promise<{ default: typeof import('sharp').default }>} */ (import(urls.sharp)),
+	/** @type {Promise<typeof import('@jimp/core')>} */ (import(urls.jimpCore)),
+	/** @type {Promise<typeof import('@jimp/js-png')>} */ (import(urls.png)),
+	/** @type {Promise<typeof import('@jimp/plugin-resize')>} */ (import(urls.resize))
 ]);
 
 const processImage = core.createImageProcessor({
 	createJimp: jimpCore.createJimp,
-	jpeg: jpeg.default,
+	jpeg: codec.createSharpJpeg(sharp.default),
 	png: png.default,
 	resizeMethods: resize.methods
 });
 
-port.on('message', async (/** @type {PhotoJob} */ job) => {
-	/** @type {PhotoJobReply} */
-	let reply;
-	/** @type {ArrayBuffer[]} */
-	let transfer = [];
+/**
+ * @param {Uint8Array} bytes
+ * @returns {Promise<PhotoJobReply>}
+ */
+export default async function processPhoto(bytes) {
 	try {
-		const result = await processImage(job.bytes);
-		// Own copies, so transferring cannot detach a pooled Buffer slab still in use here.
-		const full = new Uint8Array(result.full);
-		const thumb = new Uint8Array(result.thumb);
-		reply = { id: job.id, ok: true, result: { ...result, full, thumb } };
-		transfer = [full.buffer, thumb.buffer];
+		const result = await processImage(bytes);
+		return {
+			ok: true,
+			result: { ...result, full: new Uint8Array(result.full), thumb: new Uint8Array(result.thumb) }
+		};
 	} catch (error) {
 		const message = error instanceof Error ? error.message : String(error);
-		// The class does not survive postMessage; its code does, and the pool rebuilds it.
+		// The class does not survive the thread boundary; its code does, and the pool rebuilds it.
 		const code = error instanceof core.PhotoError ? error.code : undefined;
-		reply = { id: job.id, ok: false, error: { message, code } };
+		return { ok: false, error: { message, code } };
 	}
-	port.postMessage(reply, transfer);
-});
+}

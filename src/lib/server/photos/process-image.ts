@@ -1,7 +1,10 @@
 import { createJimp } from '@jimp/core';
-import jpeg from '@jimp/js-jpeg';
 import png from '@jimp/js-png';
 import { methods as resizeMethods } from '@jimp/plugin-resize';
+// Loaded here, on the main thread, before any photo worker loads it: a native addon first
+// loaded by a worker thread can be unloaded when that worker exits, under the others' feet.
+import sharp from 'sharp';
+import { createSharpJpeg } from './jpeg-codec.js';
 import { createImageProcessor } from './image-core.js';
 import type { ProcessedImage } from './image-core.js';
 
@@ -15,7 +18,12 @@ export {
 } from './image-core.js';
 export type { ImageHeader, PhotoErrorCode, ProcessedImage } from './image-core.js';
 
-const processInThisThread = createImageProcessor({ createJimp, jpeg, png, resizeMethods });
+const processInThisThread = createImageProcessor({
+	createJimp,
+	jpeg: createSharpJpeg(sharp),
+	png,
+	resizeMethods
+});
 
 /**
  * Checks an uploaded photo by content (JPEG or PNG, ≤ 20 MiB, ≤ 40 MP declared in the header,
@@ -23,8 +31,8 @@ const processInThisThread = createImageProcessor({ createJimp, jpeg, png, resize
  * ≤ 2560 px) and a thumbnail (≤ 400 px), both without metadata. Throws PhotoError for a file
  * the uploader has to fix.
  *
- * Runs on the calling thread and blocks it for up to seconds on a large photo: request
- * handlers use processImageInPool from worker-pool.ts instead.
+ * Runs on the calling thread, where the pixel work in JavaScript (orientation, PNG) blocks it:
+ * request handlers use processImageInPool from worker-pool.ts instead.
  */
 export function processImage(buffer: Buffer | Uint8Array): Promise<ProcessedImage> {
 	return processInThisThread(buffer);

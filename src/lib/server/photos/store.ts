@@ -50,15 +50,16 @@ export function selectedFiles(values: unknown[]): UploadedFile[] {
 	);
 }
 
+export type CheckedPhotos =
+	| { ok: true; images: { file: string; image: ProcessedImage }[]; problems: PhotoProblem[] }
+	| { ok: false; message: string; problems: PhotoProblem[] };
+
 /**
- * Checks and processes every file of one upload on the photo worker pool. All must pass: one bad
- * file refuses the whole upload (each bad file named with its reason), so nothing is kept half way
- * and the uploader can fix the batch and send it again.
+ * Checks and processes every file of one upload on the photo worker pool, each on its own: the
+ * good ones come back processed, each bad one as a problem with the uploader's file name.
+ * Refuses the batch as such only when it is empty or has too many files.
  */
-export async function preparePhotos(
-	files: UploadedFile[],
-	maxFiles: number
-): Promise<PreparedPhotos> {
+export async function checkPhotos(files: UploadedFile[], maxFiles: number): Promise<CheckedPhotos> {
 	if (files.length === 0) {
 		return { ok: false, message: 'Choose at least one photo.', problems: [] };
 	}
@@ -82,11 +83,11 @@ export async function preparePhotos(
 		})
 	);
 	const problems: PhotoProblem[] = [];
-	const images: ProcessedImage[] = [];
+	const images: { file: string; image: ProcessedImage }[] = [];
 	results.forEach((result, i) => {
 		const file = files[i].name || `Photo ${i + 1}`;
 		if (result.status === 'fulfilled') {
-			images.push(result.value);
+			images.push({ file, image: result.value });
 		} else if (result.reason instanceof PhotoError) {
 			problems.push({ file, message: result.reason.message });
 		} else {
@@ -96,6 +97,21 @@ export async function preparePhotos(
 			problems.push({ file, message: 'This photo could not be processed. Try it again.' });
 		}
 	});
+	return { ok: true, images, problems };
+}
+
+/**
+ * All-or-nothing variant for a record that is saved with its photos (a surface inspection):
+ * one bad file refuses the whole upload (each bad file named with its reason), so the record
+ * is not saved half way and the uploader can fix the batch and send it again.
+ */
+export async function preparePhotos(
+	files: UploadedFile[],
+	maxFiles: number
+): Promise<PreparedPhotos> {
+	const checked = await checkPhotos(files, maxFiles);
+	if (!checked.ok) return checked;
+	const { problems } = checked;
 	if (problems.length > 0) {
 		const n = problems.length;
 		return {
@@ -107,7 +123,7 @@ export async function preparePhotos(
 			problems
 		};
 	}
-	return { ok: true, images };
+	return { ok: true, images: checked.images.map((i) => i.image) };
 }
 
 /** Absolute path of a stored file, refusing anything that would leave the upload directory. */

@@ -1,28 +1,28 @@
 /**
- * Runs photo decoding and resizing on worker threads, so a 40 MP upload (seconds of pure
- * JavaScript in jpeg-js) never stalls other requests.
+ * Runs photo checks and re-encoding on worker threads (a tinypool pool), so the pixel work in
+ * JavaScript — orientation, PNG decoding, jimp's bitmap handling — never stalls other requests.
  *
- * How the worker is loaded, and why: the obvious `new Worker(new URL('./photo-worker.ts',
- * import.meta.url))` breaks in production. Vite rewrites that pattern for client code only; in
+ * How the worker is loaded, and why: the obvious `new URL('./photo-worker.js',
+ * import.meta.url)` breaks in production. Vite rewrites that pattern for client code only; in
  * the SSR build the URL is left as is, resolves next to the bundled chunk in
  * build/server/chunks/, and no such file is emitted. Pointing the worker at a server chunk
  * instead is not safe either, as a chunk may carry unrelated modules (database, env) that
  * would run inside the worker. So the worker code travels as text:
- *  - photo-worker.js and image-core.js are plain JS that import only Node built-ins;
+ *  - photo-worker.js, image-core.js and jpeg-codec.js are plain JS that import nothing;
  *  - under Vite (dev server, vitest, `vite build`) `import.meta.glob(…, { query: '?raw' })`
- *    inlines both files as strings; under tsx, which has no import.meta.glob, they are read
+ *    inlines the files as strings; under tsx, which has no import.meta.glob, they are read
  *    from disk next to this file (where the sources are, as tsx only runs from the source tree);
- *  - the worker starts from a data: URL of photo-worker.js, which imports image-core.js from a
- *    data: URL too, and the jimp packages from absolute URLs resolved here with
- *    import.meta.resolve (data: modules cannot resolve bare package names themselves).
+ *  - tinypool starts photo-worker.js from a data: URL, with the URLs of image-core.js and
+ *    jpeg-codec.js (data: URLs too) and of sharp and the jimp packages (absolute, resolved here
+ *    with import.meta.resolve) written into its text.
  * The main thread runs the same image-core.js via process-image.ts, so both paths agree.
  */
 import { readFileSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
-import { Worker } from 'node:worker_threads';
+import Tinypool from 'tinypool';
 import { PhotoError, inspectImage } from './process-image';
 import type { PhotoErrorCode, ProcessedImage } from './process-image';
-import type { PhotoJob, PhotoJobReply, PhotoJobResult, PhotoWorkerData } from './photo-worker.js';
+import type { PhotoJobReply, PhotoModuleUrls } from './photo-worker.js';
 
 /** Worker threads in the shared pool: one core stays with the request loop; at most two. */
 export const PHOTO_POOL_SIZE = Math.max(1, Math.min(2, availableParallelism() - 1));
@@ -34,156 +34,100 @@ export interface PhotoPool {
 	close(): Promise<void>;
 }
 
-interface Job {
-	id: number;
-	bytes: Uint8Array;
-	resolve: (image: ProcessedImage) => void;
-	reject: (error: Error) => void;
-}
+const SOURCES = ['./photo-worker.js', './image-core.js', './jpeg-codec.js'] as const;
+type SourceName = (typeof SOURCES)[number];
 
-interface Slot {
-	worker: Worker;
-	job: Job | null;
-}
-
-interface WorkerStart {
-	entry: URL;
-	workerData: PhotoWorkerData;
-}
-
-let workerStart: WorkerStart | undefined;
+let workerUrl: string | undefined;
 
 function toDataUrl(source: string): string {
 	return `data:text/javascript;base64,${Buffer.from(source).toString('base64')}`;
 }
 
-function readWorkerSources(): { worker: string; core: string } {
+function readWorkerSources(): Record<SourceName, string> {
 	let inlined: Record<string, string> = {};
 	try {
-		inlined = import.meta.glob<string>(['./photo-worker.js', './image-core.js'], {
-			query: '?raw',
-			import: 'default',
-			eager: true
-		});
+		inlined = import.meta.glob<string>(
+			['./photo-worker.js', './image-core.js', './jpeg-codec.js'],
+			{
+				query: '?raw',
+				import: 'default',
+				eager: true
+			}
+		);
 	} catch {
 		// Not under Vite (tsx): import.meta.glob does not exist; read the files below.
 	}
-	const read = (name: string) =>
+	const read = (name: SourceName) =>
 		inlined[name] ?? readFileSync(new URL(name, import.meta.url), 'utf8');
-	return { worker: read('./photo-worker.js'), core: read('./image-core.js') };
+	return Object.fromEntries(SOURCES.map((name) => [name, read(name)])) as Record<
+		SourceName,
+		string
+	>;
 }
 
-function getWorkerStart(): WorkerStart {
-	if (!workerStart) {
+function getWorkerUrl(): string {
+	if (!workerUrl) {
 		const sources = readWorkerSources();
-		workerStart = {
-			entry: new URL(toDataUrl(sources.worker)),
-			workerData: {
-				coreUrl: toDataUrl(sources.core),
-				moduleUrls: {
-					jimpCore: import.meta.resolve('@jimp/core'),
-					jpeg: import.meta.resolve('@jimp/js-jpeg'),
-					png: import.meta.resolve('@jimp/js-png'),
-					resize: import.meta.resolve('@jimp/plugin-resize')
-				}
-			}
+		const urls: PhotoModuleUrls = {
+			core: toDataUrl(sources['./image-core.js']),
+			codec: toDataUrl(sources['./jpeg-codec.js']),
+			sharp: import.meta.resolve('sharp'),
+			jimpCore: import.meta.resolve('@jimp/core'),
+			png: import.meta.resolve('@jimp/js-png'),
+			resize: import.meta.resolve('@jimp/plugin-resize')
 		};
+		// JSON inside a single-quoted JS string: escape what would end or bend that string.
+		const literal = JSON.stringify(urls).replace(/\\/g, '\\\\').replace(/'/g, "\\'");
+		workerUrl = toDataUrl(sources['./photo-worker.js'].replace('__PHOTO_MODULE_URLS__', literal));
 	}
-	return workerStart;
+	return workerUrl;
 }
 
 function toBuffer(bytes: Uint8Array): Buffer {
 	return Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength);
 }
 
-function fromResult(result: PhotoJobResult): ProcessedImage {
-	return { ...result, full: toBuffer(result.full), thumb: toBuffer(result.thumb) };
-}
-
 export function createPhotoPool(size: number = PHOTO_POOL_SIZE): PhotoPool {
-	const queue: Job[] = [];
-	const slots = new Set<Slot>();
-	let nextId = 1;
 	let closed = false;
-
-	function spawn(): Slot {
-		const { entry, workerData } = getWorkerStart();
-		const worker = new Worker(entry, { workerData, name: 'castellan-photo' });
-		const slot: Slot = { worker, job: null };
-		slots.add(slot);
-		worker.on('message', (reply: PhotoJobReply) => {
-			const job = slot.job;
-			if (!job || job.id !== reply.id) return;
-			if (reply.ok) {
-				job.resolve(fromResult(reply.result));
-			} else if (reply.error.code) {
-				job.reject(new PhotoError(reply.error.code as PhotoErrorCode, reply.error.message));
-			} else {
-				job.reject(new Error(`Photo processing failed: ${reply.error.message}`));
-			}
-			slot.job = null;
-			// An idle worker must not keep a script or test process alive.
-			worker.unref();
-			pump();
-		});
-		// 'error' (uncaught in the worker, including running out of memory) is followed by
-		// 'exit'; whichever comes first retires the slot and fails only the job it was running.
-		worker.on('error', (error) => retire(slot, error));
-		worker.on('exit', (code) => retire(slot, new Error(`worker exited with code ${code}`)));
-		return slot;
-	}
-
-	function retire(slot: Slot, error: Error) {
-		if (!slots.delete(slot)) return;
-		slot.job?.reject(new Error(`Photo worker failed: ${error.message}`, { cause: error }));
-		slot.job = null;
-		pump();
-	}
-
-	function pump() {
-		while (!closed && queue.length > 0) {
-			let slot = [...slots].find((candidate) => candidate.job === null);
-			const job = queue[0];
-			if (!slot) {
-				if (slots.size >= size) return;
-				try {
-					slot = spawn();
-				} catch (error) {
-					queue.shift();
-					job.reject(new Error('Photo worker could not start', { cause: error }));
-					continue;
-				}
-			}
-			queue.shift();
-			slot.job = job;
-			slot.worker.ref();
-			const message: PhotoJob = { id: job.id, bytes: job.bytes };
-			slot.worker.postMessage(message, [job.bytes.buffer as ArrayBuffer]);
-		}
-	}
+	let pool: Tinypool | undefined;
+	const closedError = () => new Error('The photo pool was closed.');
 
 	return {
 		async process(buffer) {
-			if (closed) throw new Error('The photo pool is closed.');
+			if (closed) throw closedError();
 			// Type, size and declared dimensions are cheap to check here, so a wrong file is
 			// refused at once instead of waiting in the queue behind real photos.
 			inspectImage(buffer);
+			pool ??= new Tinypool({
+				filename: getWorkerUrl(),
+				minThreads: 0,
+				maxThreads: size,
+				// Workers stay warm between uploads and are not kept for an idle server.
+				idleTimeout: 60_000
+			});
 			// A compact copy we own: transferring it is free, and the caller's buffer stays intact.
 			const bytes = new Uint8Array(buffer);
-			return new Promise<ProcessedImage>((resolve, reject) => {
-				queue.push({ id: nextId++, bytes, resolve, reject });
-				pump();
-			});
+			let reply: PhotoJobReply;
+			try {
+				reply = await pool.run(bytes, { transferList: [bytes.buffer as ArrayBuffer] });
+			} catch (error) {
+				// A worker failure (out of memory, crash) is ours; tinypool replaces the worker.
+				if (closed) throw closedError();
+				throw new Error(`Photo worker failed: ${(error as Error).message}`, { cause: error });
+			}
+			if (reply.ok) {
+				const { result } = reply;
+				return { ...result, full: toBuffer(result.full), thumb: toBuffer(result.thumb) };
+			}
+			if (reply.error.code) {
+				throw new PhotoError(reply.error.code as PhotoErrorCode, reply.error.message);
+			}
+			throw new Error(`Photo processing failed: ${reply.error.message}`);
 		},
 
 		async close() {
 			closed = true;
-			const stopped = new Error('The photo pool was closed.');
-			for (const job of queue.splice(0)) job.reject(stopped);
-			const running = [...slots];
-			slots.clear();
-			for (const slot of running) slot.job?.reject(stopped);
-			await Promise.all(running.map((slot) => slot.worker.terminate()));
+			await pool?.destroy();
 		}
 	};
 }

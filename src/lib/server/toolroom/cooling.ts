@@ -18,10 +18,11 @@ import { dieHeatBalance, heatPerShotKj, type HeatBalance } from '../../calc/heat
 import type { CircuitForm, CoolingCheckForm, HeatBalanceQuery } from '../../schemas/toolroom';
 import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
+import { findTaskToComplete, type TaskOffer } from '../dies/service-plan';
 import type { Coolant } from '../db/schema-toolroom';
 import { nowIso } from '../time';
 import { canLeadToolroom, canWorkToolroom } from './access';
-import type { Actor } from './jobs';
+import { isOpenJobOfDie, type Actor } from './jobs';
 
 /** Water temperatures the IAPWS properties are used for here, °C (pressurised above 100 °C). */
 export const WATER_CHECK_RANGE_C = { min: 1, max: 180 } as const;
@@ -364,8 +365,10 @@ function readCheck(
 /** Records a check of one circuit of this die; oil circuits need the oil's properties. */
 export async function recordCheck(
 	db: DB,
-	input: { dieId: number; form: CoolingCheckForm; actor: Actor; at?: string }
-): Promise<{ ok: true; id: number; figures: CheckFigures } | CoolingRefusal> {
+	input: { dieId: number; form: CoolingCheckForm; actor: Actor; jobId?: number | null; at?: string }
+): Promise<
+	{ ok: true; id: number; figures: CheckFigures; offer: TaskOffer | null } | CoolingRefusal
+> {
 	const { form, actor } = input;
 	const at = input.at ?? nowIso();
 	if (!canWorkToolroom(actor.role)) {
@@ -378,6 +381,13 @@ export async function recordCheck(
 	const read = readCheck(circuit, form);
 	if (!read.ok) return read;
 	const values = read.values;
+	if (input.jobId != null && !(await isOpenJobOfDie(db, input.jobId, input.dieId))) {
+		return {
+			ok: false,
+			status: 400,
+			message: 'That job is not an open job of this die; the check was not saved.'
+		};
+	}
 	const figures = evaluateCheck(circuit, values);
 	const id = await db.transaction().execute(async (trx) => {
 		const row = await trx
@@ -390,6 +400,8 @@ export async function recordCheck(
 				supply_pressure_bar: form.supplyPressureBar,
 				leak_test: form.leakTest,
 				notes: form.notes,
+				job_id: input.jobId ?? null,
+				flushed: form.flushed ? 1 : 0,
 				...values
 			})
 			.returning('id')
@@ -407,6 +419,7 @@ export async function recordCheck(
 					pctOfNominal: Math.round(figures.pctOfNominal),
 					weak: figures.weak,
 					leak: form.leakTest,
+					flushed: form.flushed,
 					...(values.unusual_reason ? { unusualReason: values.unusual_reason } : {})
 				}
 			},
@@ -414,7 +427,21 @@ export async function recordCheck(
 		);
 		return row.id;
 	});
-	return { ok: true, id, figures };
+	let offer: TaskOffer | null = null;
+	if (form.flushed) {
+		const die = await db
+			.selectFrom('dies')
+			.select('total_shots')
+			.where('id', '=', input.dieId)
+			.executeTakeFirstOrThrow();
+		offer = await findTaskToComplete(db, {
+			dieId: input.dieId,
+			record: 'cooling_flush',
+			at,
+			shots: die.total_shots
+		});
+	}
+	return { ok: true, id, figures, offer };
 }
 
 export type VoidResult = { ok: true; id: number } | CoolingRefusal;
@@ -565,7 +592,21 @@ export async function correctCoolingCheck(
 		);
 		return row.id;
 	});
-	return { ok: true, id, figures };
+	let offer: TaskOffer | null = null;
+	if (form.flushed) {
+		const die = await db
+			.selectFrom('dies')
+			.select('total_shots')
+			.where('id', '=', input.dieId)
+			.executeTakeFirstOrThrow();
+		offer = await findTaskToComplete(db, {
+			dieId: input.dieId,
+			record: 'cooling_flush',
+			at,
+			shots: die.total_shots
+		});
+	}
+	return { ok: true, id, figures, offer };
 }
 
 const CHECK_COLUMNS = [

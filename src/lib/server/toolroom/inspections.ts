@@ -13,6 +13,7 @@ import {
 import { MAX_PHOTOS_PER_UPLOAD, type InspectionForm } from '../../schemas/toolroom';
 import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
+import { findTaskToComplete, type TaskOffer } from '../dies/service-plan';
 import {
 	preparePhotos,
 	storePhotoFilesWith,
@@ -22,11 +23,12 @@ import {
 import { nowIso } from '../time';
 import { canLeadToolroom, canWorkToolroom } from './access';
 import { findDieZone, listZoneRepairs } from './zones';
-import type { Actor } from './jobs';
+import { isOpenJobOfDie, type Actor } from './jobs';
 import { insertPhotoRows, listInspectionPhotos } from './photos';
 
 export type RecordInspectionResult =
-	| { ok: true; id: number; photos: number }
+	/** `offer`: the plan's surface-inspection task, ready to be marked done in one tap. */
+	| { ok: true; id: number; photos: number; offer: TaskOffer | null }
 	| {
 			ok: false;
 			status: 400 | 403 | 404;
@@ -100,6 +102,14 @@ export async function recordInspection(
 		.where('active', '=', 1)
 		.orderBy('installed_at', 'desc')
 		.executeTakeFirst();
+	if (input.jobId != null && !(await isOpenJobOfDie(db, input.jobId, input.dieId))) {
+		return {
+			ok: false,
+			status: 400,
+			message: 'That job is not an open job of this die; the inspection was not saved.',
+			problems: []
+		};
+	}
 	let images: Parameters<typeof storePhotoFilesWith>[1] = [];
 	if (input.files.length > 0) {
 		const prepared = await preparePhotos(input.files, MAX_PHOTOS_PER_UPLOAD);
@@ -162,7 +172,13 @@ export async function recordInspection(
 			return row.id;
 		})
 	);
-	return { ok: true, id, photos: images.length };
+	const offer = await findTaskToComplete(db, {
+		dieId: input.dieId,
+		record: 'inspection',
+		at,
+		shots: form.shotsAt
+	});
+	return { ok: true, id, photos: images.length, offer };
 }
 
 /** Half and zone as one key; zones are free text, so compared trimmed and case-blind. */

@@ -16,9 +16,56 @@ export const PHOTO_LIMITS = {
 	maxMegapixels: MAX_PHOTO_PIXELS / 1e6
 };
 
+/** Inspections and cooling checks made under a job, oldest first: the bench record of the job. */
+export async function listJobRecords(db: DB, jobId: number) {
+	const [inspections, coolingChecks] = await Promise.all([
+		db
+			.selectFrom('surface_inspections as s')
+			.leftJoin('users as u', 'u.id', 's.inspected_by')
+			.select([
+				's.id',
+				's.half',
+				's.zone',
+				's.grade',
+				's.shots_at as shotsAt',
+				's.longest_crack_mm as longestCrackMm',
+				's.notes',
+				's.inspected_at as at',
+				'u.name as by'
+			])
+			.where('s.job_id', '=', jobId)
+			.orderBy('s.id')
+			.execute(),
+		db
+			.selectFrom('cooling_checks as k')
+			.innerJoin('cooling_circuits as c', 'c.id', 'k.circuit_id')
+			.leftJoin('users as u', 'u.id', 'k.checked_by')
+			.select([
+				'k.id',
+				'c.label as circuit',
+				'c.half',
+				'c.nominal_flow_lpm as nominalFlowLpm',
+				'k.measured_flow_lpm as measuredFlowLpm',
+				'k.leak_test as leakTest',
+				'k.flushed',
+				'k.checked_at as at',
+				'u.name as by'
+			])
+			.where('k.job_id', '=', jobId)
+			.orderBy('k.id')
+			.execute()
+	]);
+	return { inspections, coolingChecks };
+}
+
 export async function getJobPage(db: DB, job: JobDetail, role: RoleName, asOf = nowIso()) {
-	const [photos, assignees] = await Promise.all([listJobPhotos(db, job.id), listAssignees(db)]);
+	const [photos, assignees, records] = await Promise.all([
+		listJobPhotos(db, job.id),
+		listAssignees(db),
+		listJobRecords(db, job.id)
+	]);
 	return {
+		...records,
 		job,
 		tasks: job.tasks.map((t) => ({
 			...viewServiceTask(

@@ -558,3 +558,16 @@ export async function cancelJob(
 		return { ok: true, dieStatus } as const;
 	});
 }
+
+/**
+ * Whether a bench record (inspection, cooling check) may join this job: the job exists, belongs
+ * to the die, and is still active. The one rule for every record made from a job.
+ */
+export async function isOpenJobOfDie(db: DB, jobId: number, dieId: number): Promise<boolean> {
+	const job = await db
+		.selectFrom('toolroom_jobs')
+		.select(['die_id', 'status'])
+		.where('id', '=', jobId)
+		.executeTakeFirst();
+	return !!job && job.die_id === dieId && isActiveJob(job.status);
+}

@@ -7,8 +7,9 @@ import { randomBytes } from 'node:crypto';
 import { MAX_PHOTOS_PER_UPLOAD } from '../../schemas/toolroom';
 import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
+import type { PhotoStage } from '../db/schema-toolroom';
 import {
-	preparePhotos,
+	checkPhotos,
 	storePhotoFilesWith,
 	type PhotoProblem,
 	type StoredPhotoFiles,
@@ -21,7 +22,8 @@ import type { Actor } from './jobs';
 export type PhotoTarget = { jobId: number } | { inspectionId: number };
 
 export type UploadResult =
-	| { ok: true; count: number; message: string }
+	/** At least one photo landed; `problems` names each file that did not, with its reason. */
+	| { ok: true; count: number; message: string; problems: PhotoProblem[] }
 	| { ok: false; status: 400 | 403 | 404 | 409; message: string; problems: PhotoProblem[] };
 
 /** Random, URL-safe and not guessable: photo addresses must not be found by counting. */
@@ -36,7 +38,8 @@ export async function insertPhotoRows(
 	owner: { jobId: number | null; inspectionId: number | null; dieId: number },
 	actorId: string | null,
 	at: string,
-	caption: string | null = null
+	caption: string | null = null,
+	stage: PhotoStage | null = null
 ) {
 	if (files.length === 0) return;
 	await trx
@@ -57,7 +60,8 @@ export async function insertPhotoRows(
 				source_type: f.image.sourceType,
 				uploaded_by: actorId,
 				uploaded_at: at,
-				caption
+				caption,
+				stage
 			}))
 		)
 		.execute();
@@ -88,8 +92,10 @@ async function findTarget(db: DB, target: PhotoTarget) {
 
 /**
  * The upload handler: adds up to MAX_PHOTOS_PER_UPLOAD photos to a job or an inspection. Every
- * file is checked by content and processed first; only when all pass are files written and rows
- * inserted (one transaction), so a refused upload stores nothing at all.
+ * file is checked by content and processed on its own: the good ones are written and their rows
+ * inserted (one transaction, files removed again if it fails), each bad one is reported by its
+ * file name, so one bad photo never costs the others. `stage` tags job photos before / during /
+ * after the work.
  */
 export async function uploadPhotos(
 	db: DB,
@@ -99,6 +105,7 @@ export async function uploadPhotos(
 		actor: Actor;
 		uploadDir: string;
 		caption?: string | null;
+		stage?: PhotoStage | null;
 		at?: string;
 	}
 ): Promise<UploadResult> {
@@ -117,12 +124,20 @@ export async function uploadPhotos(
 			problems: []
 		};
 	}
-	const prepared = await preparePhotos(input.files, MAX_PHOTOS_PER_UPLOAD);
-	if (!prepared.ok) {
-		return { ok: false, status: 400, message: prepared.message, problems: prepared.problems };
+	const checked = await checkPhotos(input.files, MAX_PHOTOS_PER_UPLOAD);
+	if (!checked.ok) {
+		return { ok: false, status: 400, message: checked.message, problems: checked.problems };
 	}
+	const { problems } = checked;
+	if (checked.images.length === 0) {
+		const message =
+			problems.length === 1 ? 'The photo was not saved.' : 'None of the photos could be saved.';
+		return { ok: false, status: 400, message, problems };
+	}
+	const stage = 'jobId' in input.target ? (input.stage ?? null) : null;
 	const caption = input.caption?.trim() ? input.caption.trim().slice(0, 200) : null;
-	await storePhotoFilesWith(input.uploadDir, prepared.images, (files) =>
+	const images = checked.images.map((i) => i.image);
+	await storePhotoFilesWith(input.uploadDir, images, (files) =>
 		db.transaction().execute(async (trx) => {
 			await insertPhotoRows(
 				trx,
@@ -134,7 +149,8 @@ export async function uploadPhotos(
 				},
 				input.actor.userId,
 				at,
-				caption
+				caption,
+				stage
 			);
 			await writeAudit(
 				trx,
@@ -148,8 +164,13 @@ export async function uploadPhotos(
 			);
 		})
 	);
-	const count = prepared.images.length;
-	return { ok: true, count, message: `${count} photo${count === 1 ? '' : 's'} added.` };
+	const count = images.length;
+	const added = `${count} photo${count === 1 ? '' : 's'} added`;
+	const message =
+		problems.length === 0
+			? `${added}.`
+			: `${added}; ${problems.length} could not be used: ${problems.map((p) => p.file).join(', ')}.`;
+	return { ok: true, count, message, problems };
 }
 
 const PHOTO_COLUMNS = [
@@ -159,6 +180,7 @@ const PHOTO_COLUMNS = [
 	'p.caption',
 	'p.uploaded_at as uploadedAt',
 	'p.shared_with_owner as shared',
+	'p.stage',
 	'u.name as uploadedBy'
 ] as const;
 

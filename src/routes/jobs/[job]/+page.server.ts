@@ -7,7 +7,8 @@ import {
 	closeJobSchema,
 	jobStatusSchema,
 	photoShareSchema,
-	voidJobSchema
+	voidJobSchema,
+	photoStageSchema
 } from '$lib/schemas/toolroom';
 import { requireRole } from '$lib/server/auth/guard';
 import { getDb } from '$lib/server/db';
@@ -122,10 +123,16 @@ export const actions: Actions = {
 			};
 			return fail(413, { upload });
 		}
+		const stage = photoStageSchema.safeParse(data.get('stage') ?? '');
+		if (!stage.success) {
+			const upload = { ok: false, message: 'Choose before, during or after.', problems: [] };
+			return fail(400, { upload });
+		}
 		const result = await uploadPhotos(getDb(), {
 			target: { jobId: job.id },
 			files: selectedFiles(data.getAll('photos')),
 			caption: String(data.get('caption') ?? ''),
+			stage: stage.data,
 			actor: { userId: user.id, role: user.role },
 			uploadDir: getUploadDir()
 		});
@@ -134,7 +141,7 @@ export const actions: Actions = {
 				upload: { ok: false, message: result.message, problems: result.problems }
 			});
 		}
-		return { upload: { ok: true, message: result.message, problems: [] } };
+		return { upload: { ok: true, message: result.message, problems: result.problems } };
 	},
 
 	share: async (event) => {

@@ -30,6 +30,7 @@ import {
 	recordCheck,
 	voidCoolingCheck
 } from '$lib/server/toolroom/cooling';
+import { getJob } from '$lib/server/toolroom/jobs';
 import type { Actions, PageServerLoad } from './$types';
 
 /** The heat-balance inputs from the URL: none given, valid, or field errors to show. */
@@ -145,10 +146,19 @@ export const actions: Actions = {
 	check: async (event) => {
 		const user = requireRole(event, ...TOOLROOM_WORKERS);
 		const die = await loadPlantDie(event.params.number);
-		const form = await superValidate(event.request, zod4(coolingCheckSchema), { id: 'check' });
+		const data = await event.request.formData();
+		const form = await superValidate(data, zod4(coolingCheckSchema), { id: 'check' });
 		if (!form.valid) return fail(400, { checkForm: form });
+		const jobNumber = String(data.get('job') ?? '').trim();
+		const job = jobNumber ? await getJob(getDb(), jobNumber) : undefined;
+		if (jobNumber && !job) {
+			return message(form, `There is no toolroom job ${jobNumber}; the check was not saved.`, {
+				status: 400
+			});
+		}
 		const result = await recordCheck(getDb(), {
 			dieId: die.id,
+			jobId: job?.id ?? null,
 			form: form.data,
 			actor: { userId: user.id, role: user.role }
 		});
@@ -163,12 +173,10 @@ export const actions: Actions = {
 		const pct = Math.round(result.figures.pctOfNominal);
 		// Says how the typed flow was read (a decimal comma, grouping), so nothing is reread silently.
 		const flow = `flow read as ${form.data.measuredFlowLpm} L/min is ${pct} % of nominal`;
-		return message(
-			form,
-			result.figures.weak
-				? `Check recorded: ${flow} — below ${WEAK_FLOW_THRESHOLD_PCT} %, flagged as weak.`
-				: `Check recorded: ${flow}.`
-		);
+		form.message = result.figures.weak
+			? `Check recorded: ${flow} — below ${WEAK_FLOW_THRESHOLD_PCT} %, flagged as weak.`
+			: `Check recorded: ${flow}.`;
+		return { checkForm: form, taskOffer: result.offer };
 	},
 
 	voidCheck: async (event) => {

@@ -29,6 +29,7 @@ import {
 	recordInspection,
 	voidInspection
 } from '$lib/server/toolroom/inspections';
+import { getJob } from '$lib/server/toolroom/jobs';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -51,6 +52,10 @@ export const load: PageServerLoad = async (event) => {
 		...overview,
 		compare,
 		compareIds: { a: params.get('a') ?? '', b: params.get('b') ?? '' },
+		// Recording from a job (the job page links here with ?job=TJ-…): the inspection joins it.
+		jobNumber: /^TJ-\d{1,8}$/i.test(params.get('job') ?? '')
+			? params.get('job')!.toUpperCase()
+			: null,
 		form,
 		voidForm,
 		correctForm,
@@ -94,8 +99,15 @@ export const actions: Actions = {
 		}
 		const form = await superValidate(data, zod4(inspectionSchema));
 		if (!form.valid) return fail(400, { form });
+		const jobNumber = String(data.get('job') ?? '').trim();
+		const job = jobNumber ? await getJob(getDb(), jobNumber) : undefined;
+		if (jobNumber && !job) {
+			form.message = `There is no toolroom job ${jobNumber}; the inspection was not saved.`;
+			return fail(400, { form });
+		}
 		const result = await recordInspection(getDb(), {
 			dieId: die.id,
+			jobId: job?.id ?? null,
 			form: form.data,
 			files: selectedFiles(data.getAll('photos')),
 			actor: { userId: user.id, role: user.role },
@@ -109,10 +121,8 @@ export const actions: Actions = {
 		const photos = result.photos
 			? ` with ${result.photos} photo${result.photos === 1 ? '' : 's'}`
 			: '';
-		return message(
-			form,
-			`Inspection recorded: grade ${form.data.grade} at ${form.data.shotsAt} shots${photos}.`
-		);
+		form.message = `Inspection recorded: grade ${form.data.grade} at ${form.data.shotsAt} shots${photos}${job ? ` under ${job.number}` : ''}.`;
+		return { form, taskOffer: result.offer };
 	},
 
 	voidInspection: async (event) => {
