@@ -110,10 +110,14 @@ function expectEscaped(html: string, value: string, where: string) {
 	}
 }
 
-/** The cell as csvResponse writes it: formula starts defused, quoted when needed. */
+/** The cell as csvResponse writes it: a formula start defused at the start of every line, quoted
+ * when it holds a quote, comma, semicolon or line break. */
 function csvCell(value: string): string {
-	const v = /^[=+\-@\t\r]/.test(value) ? `'${value}` : value;
-	return /[",\r\n]/.test(v) ? `"${v.replaceAll('"', '""')}"` : v;
+	const v = (/^[=+\-@\t\r]/.test(value) ? `'${value}` : value).replace(
+		/([\r\n])([=+\-@\t])/g,
+		"$1'$2"
+	);
+	return /[",;\r\n]/.test(v) ? `"${v.replaceAll('"', '""')}"` : v;
 }
 
 async function expectPage(page: Page, url: string, value: string) {
@@ -799,6 +803,23 @@ test('after sign-in, redirect targets that a browser reads as another host go to
 	});
 	expect(ok.headers()['location']).toBe('/bookings');
 	await ctx.dispose();
+});
+
+test('a part name with a line break and a formula stays one quoted, defused cell in every export', async ({
+	page
+}) => {
+	await signIn(page, 'admin');
+	const name = 'Line one\n=1+1;2\r\n@SUM(A1)';
+	const res = await postForm(page, `/dies/${DIE}/edit`, dieForm({ partName: name }));
+	expect(res.status(), await res.text().then((t) => t.slice(0, 300))).toBe(303);
+	for (const url of ['/dies/export.csv', '/jobs/export.csv']) {
+		const csv = await (await page.request.get(url)).text();
+		// No physical line may start with a formula trigger (the cell's second and third lines included).
+		for (const line of csv.split(/\r\n|\r|\n/)) expect(line, url).not.toMatch(/^[=+@]/);
+		expect(csv, url).toContain(`"Line one\n'=1+1;2\r\n'@SUM(A1)"`);
+	}
+	// Put the hostile name back for anything that runs after.
+	await postForm(page, `/dies/${DIE}/edit`, dieForm({ partName: HOSTILE_NAME }));
 });
 
 test('the server is still up after all of it', async ({ request }) => {
