@@ -1,4 +1,4 @@
-import { json, text, type Handle, type ServerInit } from '@sveltejs/kit';
+import { json, text, type Handle, type RequestEvent, type ServerInit } from '@sveltejs/kit';
 import { sequence } from '@sveltejs/kit/hooks';
 import { building } from '$app/environment';
 import { CONTROL_CHARACTERS, CONTROL_CHARACTERS_MESSAGE } from '$lib/server/api/respond';
@@ -6,6 +6,8 @@ import { getLucia } from '$lib/server/auth';
 import { getDb } from '$lib/server/db';
 import { migrateToLatest } from '$lib/server/db/connect';
 import { startNoticeCron } from '$lib/server/notices/cron';
+import { bodyLimitFor, refuseBodyByHeaders, SMALL_BODY_BYTES } from '$lib/server/http/body-limit';
+import { readTextCapped } from '$lib/server/http/read-capped';
 
 export const init: ServerInit = async () => {
 	if (building) return;
@@ -45,29 +47,64 @@ const securityHeaders: Handle = async ({ event, resolve }) => {
 	response.headers.set('Referrer-Policy', 'same-origin');
 	response.headers.set('X-Frame-Options', 'DENY');
 	response.headers.set('Permissions-Policy', 'camera=(self), geolocation=(), microphone=()');
+	// Answers made for a signed-in caller (pages, JSON, CSV) stay out of shared and back-button
+	// caches unless the route chose a life of its own (photos do).
+	const personal = event.locals.user || event.request.headers.has('authorization');
+	if (personal && !response.headers.has('cache-control')) {
+		response.headers.set('cache-control', 'private, no-store');
+	}
 	return response;
 };
 
+/** A refusal in the shape the caller expects: an action result, API JSON or a plain sentence. */
+function refuse(event: RequestEvent, status: number, message: string): Response {
+	if (event.request.headers.get('x-sveltekit-action') === 'true') {
+		return json({ type: 'error', error: { message } }, { status });
+	}
+	if (event.url.pathname.startsWith('/api/')) return json({ error: message }, { status });
+	return text(message, { status, headers: { 'content-type': 'text/plain; charset=utf-8' } });
+}
+
+// The body's size is judged from its headers before anything reads it: 1 MB for everyone, more
+// only on the upload routes for the roles that may upload there (see body-limit.ts).
+const limitRequestBody: Handle = async ({ event, resolve }) => {
+	const method = event.request.method;
+	if (method === 'GET' || method === 'HEAD' || method === 'OPTIONS') return resolve(event);
+	const limit = bodyLimitFor(
+		event.route.id,
+		event.locals.user?.role ?? null,
+		/^Bearer\s/i.test(event.request.headers.get('authorization') ?? '')
+	);
+	const refusal = refuseBodyByHeaders(event.request.headers, limit);
+	return refusal ? refuse(event, refusal.status, refusal.message) : resolve(event);
+};
+
 // A form post carrying control characters is refused before any action sees it (the JSON API
-// does the same in readJsonBody); multipart uploads are left to their own checks.
+// does the same in readJsonBody); multipart uploads are left to their own checks. A url-encoded
+// form is never large, so at most 1 MB of it is read here.
 const refuseControlCharacters: Handle = async ({ event, resolve }) => {
 	const type = event.request.headers.get('content-type') ?? '';
 	if (event.request.method !== 'POST' || !type.startsWith('application/x-www-form-urlencoded')) {
 		return resolve(event);
 	}
-	const fields = new URLSearchParams(await event.request.clone().text());
+	const body = await readTextCapped(event.request.clone(), SMALL_BODY_BYTES);
+	if (body === null) {
+		return refuse(event, 413, 'The form is too large: at most 1 MB may be sent.');
+	}
+	const fields = new URLSearchParams(body);
 	const bad = [...fields].some(
 		([k, v]) => CONTROL_CHARACTERS.test(k) || CONTROL_CHARACTERS.test(v)
 	);
-	if (!bad) return resolve(event);
-	// A form sent by use:enhance expects an action result; a plain form post gets the sentence.
-	if (event.request.headers.get('x-sveltekit-action') === 'true') {
-		return json({ type: 'error', error: { message: CONTROL_CHARACTERS_MESSAGE } }, { status: 400 });
+	return bad ? refuse(event, 400, CONTROL_CHARACTERS_MESSAGE) : resolve(event);
+};
+
+// SvelteKit throws a plain Error (a 500) for the reserved action name "default" in the query;
+// it is simply an action that does not exist.
+const refuseReservedActionName: Handle = async ({ event, resolve }) => {
+	if (event.request.method === 'POST' && event.url.searchParams.has('/default')) {
+		return refuse(event, 404, 'There is no form action called "default" here.');
 	}
-	return text(CONTROL_CHARACTERS_MESSAGE, {
-		status: 400,
-		headers: { 'content-type': 'text/plain; charset=utf-8' }
-	});
+	return resolve(event);
 };
 
 const requestLog: Handle = async ({ event, resolve }) => {
@@ -80,4 +117,11 @@ const requestLog: Handle = async ({ event, resolve }) => {
 	return response;
 };
 
-export const handle = sequence(requestLog, securityHeaders, refuseControlCharacters, authenticate);
+export const handle = sequence(
+	requestLog,
+	securityHeaders,
+	authenticate,
+	limitRequestBody,
+	refuseReservedActionName,
+	refuseControlCharacters
+);

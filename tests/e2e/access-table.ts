@@ -158,6 +158,7 @@ export const ENDPOINTS: Record<string, Cells> = {
 	'GET /api/v1/dies/[number]/order-check': api(ALL_ROLES, 'none'),
 	'POST /api/v1/shots': api(RECORDERS),
 	'GET /dies/export.csv': roles(...PLANT),
+	'GET /favicon.svg': everyone('ok'),
 	'GET /jobs/export.csv': roles(...PLANT),
 	'GET /owner/dies/[number]/ledger.csv': ownTooling(),
 	'GET /owner/export.csv': roles('customer'),

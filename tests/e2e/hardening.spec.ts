@@ -1,0 +1,178 @@
+// Issue 14 (hardening), the items best seen from outside: request size before and after sign-in
+// (4), the reserved action name (11), cache and security headers (14) and signing in twice (15).
+// Uses the demo plant read-only, plus its own request contexts.
+import path from 'node:path';
+import SQLite from 'better-sqlite3';
+import { expect, test, type APIRequestContext } from '@playwright/test';
+import { ACCOUNTS, DEMO_PASSWORD, type Account } from './support';
+
+const PORT = process.env.E2E_PORT ?? '4173';
+const BASE = `http://127.0.0.1:${PORT}`;
+
+async function signedIn(
+	playwright: { request: { newContext: (o: object) => Promise<APIRequestContext> } },
+	who: Account
+) {
+	const ctx = await playwright.request.newContext({ baseURL: BASE });
+	const res = await ctx.post('/sign-in', {
+		form: { email: ACCOUNTS[who], password: DEMO_PASSWORD },
+		headers: { origin: BASE, accept: 'text/html' },
+		maxRedirects: 0
+	});
+	expect(res.status()).toBe(303);
+	return ctx;
+}
+
+function firstJob(): string {
+	const db = new SQLite(path.resolve(`test-results/e2e-data-${PORT}/castellan.db`), {
+		readonly: true
+	});
+	const row = db.prepare('select number from toolroom_jobs order by id limit 1').get() as {
+		number: string;
+	};
+	db.close();
+	return row.number;
+}
+
+/** A multipart body of about `bytes` bytes holding one file field. */
+function multipart(field: string, bytes: number) {
+	return { [field]: { name: 'big.jpg', mimeType: 'image/jpeg', buffer: Buffer.alloc(bytes, 1) } };
+}
+
+test.describe('item 4: request size is judged before the body is read', () => {
+	test('an anonymous 5 MB post to a missing page or to sign-in gets 413 with a sentence', async ({
+		request
+	}) => {
+		const big = Buffer.alloc(5_000_000, 0x61);
+		for (const url of ['/no-such-page', '/sign-in']) {
+			const res = await request.post(url, {
+				data: big,
+				headers: { 'content-type': 'application/x-www-form-urlencoded', origin: BASE },
+				maxRedirects: 0
+			});
+			expect(res.status(), url).toBe(413);
+			expect(await res.text(), url).toMatch(/too large: at most 1 MB/);
+		}
+	});
+
+	test('a 2 MB JSON post to the bookings API is refused for a customer before it is parsed', async ({
+		playwright
+	}) => {
+		const ctx = await signedIn(playwright, 'customer');
+		const res = await ctx.post('/api/v1/bookings', {
+			data: Buffer.alloc(2_000_000, 0x20),
+			headers: { 'content-type': 'application/json', origin: BASE }
+		});
+		expect(res.status()).toBe(413);
+		expect((await res.json()).error).toMatch(/too large/);
+		await ctx.dispose();
+	});
+
+	test('a 2 MB photo post passes the size check for a toolmaker, not for a scheduler', async ({
+		playwright
+	}) => {
+		const job = firstJob();
+		const toolmaker = await signedIn(playwright, 'toolmaker');
+		const allowed = await toolmaker.post(`/jobs/${job}?/upload`, {
+			multipart: multipart('photos', 2_000_000),
+			headers: { origin: BASE, accept: 'text/html' },
+			maxRedirects: 0
+		});
+		// Not a JPEG, so the photo check refuses it, but not for its size.
+		expect(allowed.status()).not.toBe(413);
+		const scheduler = await signedIn(playwright, 'scheduler');
+		const refused = await scheduler.post(`/jobs/${job}?/upload`, {
+			multipart: multipart('photos', 2_000_000),
+			headers: { origin: BASE, accept: 'text/html' },
+			maxRedirects: 0
+		});
+		expect(refused.status()).toBe(413);
+		await Promise.all([toolmaker.dispose(), scheduler.dispose()]);
+	});
+});
+
+test('item 11: POST ?/default answers 404 with a sentence, not a 500 or a stack trace', async ({
+	playwright
+}) => {
+	const admin = await signedIn(playwright, 'admin');
+	for (const url of ['/dies', '/admin/users', '/sign-in', '/account', '/bookings/new']) {
+		const res = await admin.post(`${url}?/default`, {
+			form: { x: '1' },
+			headers: { origin: BASE, accept: 'text/html' },
+			maxRedirects: 0
+		});
+		expect(res.status(), url).toBe(404);
+		const body = await res.text();
+		expect(body, url).toContain('There is no form action called "default" here.');
+		expect(body, url).not.toMatch(/\bat .+:\d+:\d+|Error:/);
+	}
+	await admin.dispose();
+});
+
+test.describe('item 14: cache and security headers', () => {
+	test('signed-in pages, JSON and CSV say private, no-store; photos a short private life', async ({
+		playwright
+	}) => {
+		const admin = await signedIn(playwright, 'admin');
+		for (const url of ['/dies', '/api/v1/dies', '/dies/export.csv', '/jobs/export.csv']) {
+			const res = await admin.get(url);
+			expect(res.status(), url).toBe(200);
+			expect(res.headers()['cache-control'], url).toBe('private, no-store');
+		}
+		const customer = await signedIn(playwright, 'customer');
+		for (const url of [
+			'/owner',
+			'/owner/export.csv',
+			'/api/v1/bookings?from=2026-01-01&to=2026-01-31'
+		]) {
+			const res = await customer.get(url);
+			expect(res.status(), url).toBe(200);
+			expect(res.headers()['cache-control'], url).toBe('private, no-store');
+		}
+		const db = new SQLite(path.resolve(`test-results/e2e-data-${PORT}/castellan.db`), {
+			readonly: true
+		});
+		const photo = db.prepare('select public_id from photos limit 1').get() as { public_id: string };
+		db.close();
+		const res = await admin.get(`/photos/${photo.public_id}/thumb`);
+		expect(res.status()).toBe(200);
+		expect(res.headers()['cache-control']).toBe('private, max-age=300');
+		await Promise.all([admin.dispose(), customer.dispose()]);
+	});
+
+	test('/favicon.svg carries the security headers', async ({ request }) => {
+		const res = await request.get('/favicon.svg');
+		expect(res.status()).toBe(200);
+		expect(res.headers()['content-type']).toContain('image/svg+xml');
+		expect(res.headers()['x-content-type-options']).toBe('nosniff');
+		expect(res.headers()['x-frame-options']).toBe('DENY');
+		expect(res.headers()['referrer-policy']).toBe('same-origin');
+	});
+});
+
+test('item 15: signing in again ends the session the browser had before', async ({
+	playwright
+}) => {
+	const ctx = await signedIn(playwright, 'scheduler');
+	const cookieName = 'castellan_session';
+	const first = (await ctx.storageState()).cookies.find((c) => c.name === cookieName)?.value;
+	expect(first).toBeTruthy();
+	const again = await ctx.post('/sign-in', {
+		form: { email: ACCOUNTS.scheduler, password: DEMO_PASSWORD },
+		headers: { origin: BASE, accept: 'text/html' },
+		maxRedirects: 0
+	});
+	expect(again.status()).toBe(303);
+	const second = (await ctx.storageState()).cookies.find((c) => c.name === cookieName)?.value;
+	expect(second).toBeTruthy();
+	expect(second).not.toBe(first);
+	// The old session cookie, sent on its own, no longer opens a page.
+	const old = await playwright.request.newContext({
+		baseURL: BASE,
+		extraHTTPHeaders: { cookie: `${cookieName}=${first}` }
+	});
+	const res = await old.get('/bookings', { maxRedirects: 0 });
+	expect(res.status()).toBe(303);
+	expect(res.headers()['location']).toContain('/sign-in');
+	await Promise.all([ctx.dispose(), old.dispose()]);
+});
