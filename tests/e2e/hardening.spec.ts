@@ -176,3 +176,97 @@ test('item 15: signing in again ends the session the browser had before', async 
 	expect(res.headers()['location']).toContain('/sign-in');
 	await Promise.all([ctx.dispose(), old.dispose()]);
 });
+
+test('item 5: a customer session and a customer-bound token get only the customer fields from every API route', async ({
+	playwright
+}) => {
+	const admin = await signedIn(playwright, 'admin');
+	const db = new SQLite(path.resolve(`test-results/e2e-data-${PORT}/castellan.db`), {
+		readonly: true
+	});
+	const customerId = (
+		db.prepare("select id from customers where code = 'BRKPUMP'").get() as { id: number }
+	).id;
+	db.close();
+	const made = await admin.post('/admin/tokens?/create', {
+		form: { name: 'e2e hardening Brookmere', scopes: 'dies:read', customerId: String(customerId) },
+		headers: { origin: BASE, accept: 'text/html' },
+		maxRedirects: 0
+	});
+	const token = /data-testid="new-token"[^>]*>\s*(cst_[^<\s]+)/.exec(await made.text())?.[1];
+	expect(token).toMatch(/^cst_/);
+	const customer = await signedIn(playwright, 'customer');
+	const bearer = await playwright.request.newContext({
+		baseURL: BASE,
+		extraHTTPHeaders: { authorization: `Bearer ${token}` }
+	});
+
+	// The fields a tooling owner may read, written out here from the issue and the owner portal:
+	// no order reference, planned rate, scrap allowance or planner notes.
+	const DIE = [
+		'number',
+		'part',
+		'customer',
+		'alloy',
+		'family',
+		'status',
+		'totalShots',
+		'expectedLifeShots',
+		'lifeUsedPct',
+		'nextService',
+		'shotsPerDay',
+		'projectedEndOfLife'
+	];
+	const BOOKING = [
+		'id',
+		'die',
+		'part',
+		'customer',
+		'press',
+		'startsAt',
+		'endsAt',
+		'parts',
+		'shotsPlanned',
+		'status',
+		'cancelledAt'
+	];
+	const day = (offset: number) =>
+		new Date(Date.now() + offset * 86_400_000).toISOString().slice(0, 10);
+	const from = day(-30);
+	const to = day(60);
+	for (const caller of [customer, bearer]) {
+		const list = await (await caller.get('/api/v1/dies?size=200')).json();
+		for (const d of list.dies) expect(Object.keys(d).every((k) => DIE.includes(k))).toBe(true);
+		const one = await (await caller.get('/api/v1/dies/D-0101')).json();
+		expect(Object.keys(one).sort()).toEqual([...DIE].sort());
+		const check = await caller.get('/api/v1/dies/D-0101/order-check?parts=10&shotsPerHour=100');
+		expect(check.status()).toBe(200);
+		expect(Object.keys(await check.json())).not.toContain('notes');
+		const bookings = (await (await caller.get(`/api/v1/bookings?from=${from}&to=${to}`)).json())
+			.bookings as Record<string, unknown>[];
+		expect(bookings.length).toBeGreaterThan(0);
+		for (const b of bookings) {
+			expect(
+				Object.keys(b).every((k) => BOOKING.includes(k)),
+				Object.keys(b).join()
+			).toBe(true);
+			expect(b).not.toHaveProperty('orderRef');
+			expect(b).not.toHaveProperty('shotsPerHour');
+			expect(b).not.toHaveProperty('notes');
+		}
+		const board = await (await caller.get(`/api/v1/board?from=${from}&days=56`)).json();
+		expect(board.bookings.columns).not.toContain('order');
+		expect(JSON.stringify(board.bookings.rows)).not.toMatch(/SO-\d+/);
+		// TJ-00007 on D-0109 is open and not shared with the owner.
+		expect(JSON.stringify(board.jobs.rows)).not.toContain('TJ-00007');
+	}
+	// The plant still sees all of it (so the checks above can fail).
+	const plantBookings = (await (await admin.get(`/api/v1/bookings?from=${from}&to=${to}`)).json())
+		.bookings as Record<string, unknown>[];
+	expect(plantBookings.some((b) => typeof b.orderRef === 'string')).toBe(true);
+	expect(plantBookings[0]).toHaveProperty('shotsPerHour');
+	const plantBoard = await (await admin.get(`/api/v1/board?from=${from}&days=56`)).json();
+	expect(plantBoard.bookings.columns).toContain('order');
+	expect(JSON.stringify(plantBoard.jobs.rows)).toContain('TJ-00007');
+	await Promise.all([admin.dispose(), customer.dispose(), bearer.dispose()]);
+});

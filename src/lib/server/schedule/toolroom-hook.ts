@@ -15,6 +15,8 @@ export interface OpenJob {
 	description: string;
 	/** True while the job keeps the die in the toolroom. */
 	holdsDie: boolean;
+	/** True once the plant shared the job with the die's owner. */
+	shared: boolean;
 }
 
 const known = new WeakMap<object, boolean>();
@@ -36,7 +38,16 @@ export async function listOpenToolroomJobs(db: DB, dieIds?: readonly number[]): 
 	if (dieIds && dieIds.length === 0) return [];
 	const rows = await db
 		.selectFrom('toolroom_jobs')
-		.select(['die_id', 'number', 'kind', 'status', 'opened_at', 'description', 'die_to_toolroom'])
+		.select([
+			'die_id',
+			'number',
+			'kind',
+			'status',
+			'opened_at',
+			'description',
+			'die_to_toolroom',
+			'summary_shared'
+		])
 		.where('status', 'in', [...OPEN_STATUSES])
 		.$if(dieIds !== undefined, (q) => q.where('die_id', 'in', [...dieIds!]))
 		.orderBy('opened_at')
@@ -48,6 +59,7 @@ export async function listOpenToolroomJobs(db: DB, dieIds?: readonly number[]): 
 		status: r.status,
 		openedAt: r.opened_at,
 		description: r.description,
-		holdsDie: r.die_to_toolroom === 1
+		holdsDie: r.die_to_toolroom === 1,
+		shared: r.summary_shared === 1
 	}));
 }

@@ -6,6 +6,7 @@ import { dieApiView } from '$lib/server/dies/api-view';
 import { findDie, dieLife } from '$lib/server/dies/die-detail';
 import { worstTasks } from '$lib/server/dies/register';
 import { nowIso } from '$lib/server/time';
+import { audienceOf, viewFor } from '$lib/server/owner/customer-fields';
 
 // GET /api/v1/dies/{number}: another owner's die answers 404, exactly like a missing one.
 export const GET = apiRoute(async (event) => {
@@ -18,22 +19,24 @@ export const GET = apiRoute(async (event) => {
 		worstTasks(db, [{ id: die.id, totalShots: die.total_shots }], asOf),
 		dieLife(db, die, asOf)
 	]);
-	return json({
-		...dieApiView({
-			id: die.id,
-			number: die.number,
-			partName: die.part_name,
-			customerCode: die.customerCode,
-			customerName: die.customerName,
-			alloyCode: die.alloyCode,
-			family: die.family,
-			status: die.status,
-			totalShots: die.total_shots,
-			expectedLifeShots: die.expectedLifeShots,
-			lifeUsedPct: life.lifeUsedPct,
-			nextService: die.status === 'retired' ? null : (tasks.get(die.id) ?? null)
-		}),
-		shotsPerDay: life.shotsPerDay,
-		projectedEndOfLife: life.projectedEndOfLife
-	});
+	return json(
+		viewFor(audienceOf(principal), 'die', {
+			...dieApiView({
+				id: die.id,
+				number: die.number,
+				partName: die.part_name,
+				customerCode: die.customerCode,
+				customerName: die.customerName,
+				alloyCode: die.alloyCode,
+				family: die.family,
+				status: die.status,
+				totalShots: die.total_shots,
+				expectedLifeShots: die.expectedLifeShots,
+				lifeUsedPct: life.lifeUsedPct,
+				nextService: die.status === 'retired' ? null : (tasks.get(die.id) ?? null)
+			}),
+			shotsPerDay: life.shotsPerDay,
+			projectedEndOfLife: life.projectedEndOfLife
+		})
+	);
 });

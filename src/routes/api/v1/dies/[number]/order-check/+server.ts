@@ -5,6 +5,7 @@ import { authorizeApi } from '$lib/server/auth/principal';
 import { getDb } from '$lib/server/db';
 import { findDie } from '$lib/server/dies/die-detail';
 import { checkDieOrder } from '$lib/server/shots/die-order-check';
+import { audienceOf, viewFor } from '$lib/server/owner/customer-fields';
 
 // GET /api/v1/dies/{number}/order-check?parts=N&scrapPct=S&shotsPerHour=R. Another owner's die
 // answers 404, exactly like a missing one.
@@ -26,5 +27,7 @@ export const GET = apiRoute(async (event) => {
 	const db = getDb();
 	const die = await findDie(db, event.params.number ?? '', { customerId: principal.customerId });
 	if (!die) throw new ApiError(404, `There is no die ${event.params.number}.`);
-	return json(await checkDieOrder(db, die, parsed.data));
+	return json(
+		viewFor(audienceOf(principal), 'orderCheck', await checkDieOrder(db, die, parsed.data))
+	);
 });
