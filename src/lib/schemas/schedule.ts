@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { calendarFieldsValid } from '../calc/dates';
 import { MAX_PLAUSIBLE_SHOTS_PER_HOUR } from '../calc/life';
 
 // Optional text stays a string ('' when empty) so a form can round-trip it; the server stores
@@ -64,6 +65,8 @@ const DATE_TIME =
  */
 export function toUtcIso(value: string): string | null {
 	const m = DATE_TIME.exec(value.trim());
+	// The ledger's calendar check: 2027-02-30 is refused, not read as 2 March.
+	if (m && !calendarFieldsValid(`${m[1]}T${m[2]}`)) return null;
 	const ms = m ? Date.parse(`${m[1]}T${m[2]}${m[3] ?? 'Z'}`) : Number.NaN;
 	return Number.isFinite(ms) ? new Date(ms).toISOString() : null;
 }
@@ -116,11 +119,28 @@ const bookingFields = {
 	notes: optionalText(1000)
 };
 
+/** A booking starts at most this many days back (late entry of a past run)… */
+export const BOOKING_PAST_DAYS = 366;
+/** …and at most this many days ahead (a plan, not a typo such as 9999-12-31). */
+export const BOOKING_FUTURE_DAYS = 3 * 366;
+
 function checkWindow(v: { startsAt: string; endsAt: string }, ctx: z.RefinementCtx) {
 	const start = Date.parse(toUtcIso(v.startsAt) ?? '');
 	const end = Date.parse(toUtcIso(v.endsAt) ?? '');
 	// A bad date already has its own message.
 	if (!Number.isFinite(start) || !Number.isFinite(end)) return;
+	const now = Date.now();
+	if (
+		start < now - BOOKING_PAST_DAYS * 86_400_000 ||
+		start > now + BOOKING_FUTURE_DAYS * 86_400_000
+	) {
+		ctx.addIssue({
+			code: 'custom',
+			path: ['startsAt'],
+			message: 'The start must lie within a year back and three years ahead.'
+		});
+		return;
+	}
 	if (!(end > start)) {
 		ctx.addIssue({ code: 'custom', path: ['endsAt'], message: 'The end must be after the start.' });
 	} else if (end - start > MAX_BOOKING_DAYS * 86_400_000) {
