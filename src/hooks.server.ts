@@ -6,13 +6,22 @@ import { getLucia } from '$lib/server/auth';
 import { getDb } from '$lib/server/db';
 import { migrateToLatest } from '$lib/server/db/connect';
 import { startNoticeCron } from '$lib/server/notices/cron';
-import { bodyLimitFor, refuseBodyByHeaders, SMALL_BODY_BYTES } from '$lib/server/http/body-limit';
+import {
+	bodyLimitFor,
+	refuseBodyByHeaders,
+	SMALL_BODY_BYTES,
+	takesPhotos
+} from '$lib/server/http/body-limit';
+import { getUploadDir, UPLOADS_UNAVAILABLE, uploadDirProblem } from '$lib/server/photos/upload-dir';
 import { readTextCapped } from '$lib/server/http/read-capped';
 
 export const init: ServerInit = async () => {
 	if (building) return;
 	const applied = await migrateToLatest(getDb());
 	if (applied.length) console.log(`Castellan: applied migrations ${applied.join(', ')}`);
+	const photoProblem = uploadDirProblem(getUploadDir());
+	if (photoProblem)
+		console.error(`Castellan: ${photoProblem} Photo uploads answer 503 until then.`);
 	// The notice job lives in the server process, once per process (NOTICE_CRON=off stops it).
 	if (!building) startNoticeCron();
 };
@@ -79,6 +88,21 @@ const limitRequestBody: Handle = async ({ event, resolve }) => {
 	return refusal ? refuse(event, refusal.status, refusal.message) : resolve(event);
 };
 
+// Photos are refused before their bytes are read when the photo folder cannot be written: a plain
+// 503 sentence instead of a 500 after a long upload.
+const refuseUploadsWithoutStore: Handle = async ({ event, resolve }) => {
+	const type = event.request.headers.get('content-type') ?? '';
+	if (
+		event.request.method === 'POST' &&
+		type.startsWith('multipart/form-data') &&
+		takesPhotos(event.route.id) &&
+		uploadDirProblem(getUploadDir())
+	) {
+		return refuse(event, 503, UPLOADS_UNAVAILABLE);
+	}
+	return resolve(event);
+};
+
 // A form post carrying control characters is refused before any action sees it (the JSON API
 // does the same in readJsonBody); multipart uploads are left to their own checks. A url-encoded
 // form is never large, so at most 1 MB of it is read here.
@@ -123,5 +147,6 @@ export const handle = sequence(
 	authenticate,
 	limitRequestBody,
 	refuseReservedActionName,
+	refuseUploadsWithoutStore,
 	refuseControlCharacters
 );

@@ -22,6 +22,11 @@ const LARGE_BODY_ROUTES: Record<string, { roles: RoleName[]; bytes: number; bear
 	'/api/v1/shots': { roles: SHOT_RECORDERS, bytes: SHOTS_API_BODY_BYTES, bearer: true }
 };
 
+/** Routes whose multipart posts carry photos into UPLOAD_DIR. */
+export function takesPhotos(routeId: string | null): boolean {
+	return !!routeId && LARGE_BODY_ROUTES[routeId]?.bytes === PHOTO_BODY_BYTES;
+}
+
 /** The most bytes this caller (a signed-in role, or a bearer token) may send to this route. */
 export function bodyLimitFor(
 	routeId: string | null,
