@@ -82,3 +82,18 @@ describe('item 10: the photo folder is checked before photos arrive', () => {
 		expect(problem).toMatch(/Set UPLOAD_DIR/);
 	});
 });
+
+describe('item 12: the CSV preview stops reading at the row limit', () => {
+	test('a 100 000-row file is refused for its rows; a broken line after row 5001 is never reached', async () => {
+		const { parseShotCsv } = await import('../../src/lib/server/shots/csv-upload');
+		const rows = 'die,counted_at,shots\n' + 'Z,2026-06-10,1\n'.repeat(100_000); // 1.5 MB
+		expect(parseShotCsv(rows)).toEqual({
+			ok: false,
+			message: 'The file has more than 5000 data rows; upload at most 5000 at a time.'
+		});
+		// An unclosed quote on line 5 003 would stop a reader that parses the whole file first.
+		const broken =
+			'die,counted_at,shots\n' + 'Z-1,2026-06-10 08:00,1\n'.repeat(5001) + 'Z-1,"2026-06-10,1\n';
+		expect(parseShotCsv(broken)).toMatchObject({ ok: false, message: /more than 5000 data rows/ });
+	});
+});
