@@ -270,3 +270,19 @@ test('item 5: a customer session and a customer-bound token get only the custome
 	expect(JSON.stringify(plantBoard.jobs.rows)).toContain('TJ-00007');
 	await Promise.all([admin.dispose(), customer.dispose(), bearer.dispose()]);
 });
+
+test('item 21: the outbox shows the notice schedule and an admin can run the notices now', async ({
+	page
+}) => {
+	await page.goto('/sign-in');
+	await page.getByLabel('E-mail').fill(ACCOUNTS.admin);
+	await page.getByLabel('Password').fill(DEMO_PASSWORD);
+	await page.getByRole('button', { name: 'Sign in' }).click();
+	await page.goto('/admin/outbox');
+	// The e2e server runs with NOTICE_CRON=off.
+	await expect(page.getByTestId('next-run')).toContainText('off on this server');
+	await page.getByRole('button', { name: 'Run now' }).click();
+	await expect(page.getByRole('status').first()).toContainText('The notice run finished');
+	await page.goto('/admin/audit');
+	await expect(page.getByRole('table')).toContainText('notice.run_now');
+});

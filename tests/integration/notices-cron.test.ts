@@ -1,5 +1,5 @@
 import { afterEach, describe, expect, it, vi } from 'vitest';
-import { startNoticeCron, stopNoticeCron } from '../../src/lib/server/notices/cron';
+import { noticeSchedule, startNoticeCron, stopNoticeCron } from '../../src/lib/server/notices/cron';
 
 afterEach(async () => {
 	await stopNoticeCron();
@@ -27,5 +27,25 @@ describe('startNoticeCron', () => {
 			String(line).startsWith('Castellan notices: "')
 		);
 		expect(starts).toHaveLength(1);
+	});
+});
+
+describe('noticeSchedule (issue 14 item 21: the outbox shows the next run)', () => {
+	it('says off when the job is not running', () => {
+		expect(noticeSchedule()).toEqual({ running: false, cron: null, nextRun: null });
+	});
+
+	it('gives the next 06:00 (server time) after now for "0 6 * * *"', () => {
+		vi.spyOn(console, 'log').mockImplementation(() => {});
+		startNoticeCron({ NOTICE_CRON: '0 6 * * *', SMTP_URL: 'smtp://127.0.0.1:1' });
+		const schedule = noticeSchedule();
+		expect(schedule.running).toBe(true);
+		expect(schedule.cron).toBe('0 6 * * *');
+		const next = new Date(schedule.nextRun!);
+		// By hand: the first instant after now whose local clock reads 06:00:00.
+		const expected = new Date();
+		expected.setHours(6, 0, 0, 0);
+		if (expected.getTime() <= Date.now()) expected.setDate(expected.getDate() + 1);
+		expect(next.getTime()).toBe(expected.getTime());
 	});
 });

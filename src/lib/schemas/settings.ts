@@ -51,7 +51,9 @@ export const alloySchema = z
 		latentHeatJKg: optionalNumber(z.coerce.number().min(1000).max(2_000_000)),
 		solidusC: optionalNumber(z.coerce.number().min(100).max(1500)),
 		liquidusC: optionalNumber(z.coerce.number().min(100).max(1500)),
-		pourTempC: optionalNumber(z.coerce.number().min(100).max(1600))
+		pourTempC: optionalNumber(z.coerce.number().min(100).max(1600)),
+		/** Ticked after the admin saw which dies change state with the new expected life. */
+		confirmImpact: z.boolean().default(false)
 	})
 	.refine(
 		(a) => a.solidusC === undefined || a.liquidusC === undefined || a.liquidusC >= a.solidusC,
