@@ -286,3 +286,35 @@ test('item 21: the outbox shows the notice schedule and an admin can run the not
 	await page.goto('/admin/audit');
 	await expect(page.getByRole('table')).toContainText('notice.run_now');
 });
+
+test('item 20: inviting a Brookmere user from another e-mail domain asks for confirmation first', async ({
+	playwright
+}) => {
+	const admin = await signedIn(playwright, 'admin');
+	const db = new SQLite(path.resolve(`test-results/e2e-data-${PORT}/castellan.db`), {
+		readonly: true
+	});
+	const customerId = (
+		db.prepare("select id from customers where code = 'BRKPUMP'").get() as { id: number }
+	).id;
+	db.close();
+	const email = `e2e.hardening.${Date.now()}@elsewhere.test`;
+	const form = { customerId: String(customerId), name: 'Dana Elsewhere', email };
+	const asked = await admin.post('/admin/invites?/create', {
+		form,
+		headers: { origin: BASE, accept: 'text/html' },
+		maxRedirects: 0
+	});
+	expect(asked.status()).toBe(409);
+	expect(await asked.text()).toContain('elsewhere.test is not among this customer');
+	const list = await (await admin.get('/admin/invites')).text();
+	expect(list).not.toContain(email);
+	const sent = await admin.post('/admin/invites?/create', {
+		form: { ...form, confirmDomain: 'on' },
+		headers: { origin: BASE, accept: 'text/html' },
+		maxRedirects: 0
+	});
+	expect(sent.status()).toBe(200);
+	expect(await sent.text()).toContain('data-testid="invite-link"');
+	await admin.dispose();
+});
