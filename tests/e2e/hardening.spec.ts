@@ -4,7 +4,7 @@
 import path from 'node:path';
 import SQLite from 'better-sqlite3';
 import { expect, test, type APIRequestContext } from '@playwright/test';
-import { ACCOUNTS, DEMO_PASSWORD, type Account } from './support';
+import { ACCOUNTS, DEMO_PASSWORD, signIn, type Account } from './support';
 
 const PORT = process.env.E2E_PORT ?? '4173';
 const BASE = `http://127.0.0.1:${PORT}`;
@@ -51,7 +51,7 @@ test.describe('item 4: request size is judged before the body is read', () => {
 				maxRedirects: 0
 			});
 			expect(res.status(), url).toBe(413);
-			expect(await res.text(), url).toMatch(/too large: at most 1 MB/);
+			expect(await res.text(), url).toMatch(/too large: the body is larger than 1 MB/);
 		}
 	});
 
@@ -274,10 +274,7 @@ test('item 5: a customer session and a customer-bound token get only the custome
 test('item 21: the outbox shows the notice schedule and an admin can run the notices now', async ({
 	page
 }) => {
-	await page.goto('/sign-in');
-	await page.getByLabel('E-mail').fill(ACCOUNTS.admin);
-	await page.getByLabel('Password').fill(DEMO_PASSWORD);
-	await page.getByRole('button', { name: 'Sign in' }).click();
+	await signIn(page, 'admin');
 	await page.goto('/admin/outbox');
 	// The e2e server runs with NOTICE_CRON=off.
 	await expect(page.getByTestId('next-run')).toContainText('off on this server');

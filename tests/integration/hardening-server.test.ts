@@ -35,7 +35,7 @@ describe('item 4: body limits', () => {
 		const h = (o: Record<string, string>) => new Headers(o);
 		expect(refuseBodyByHeaders(h({ 'content-length': '150000000' }), 1_000_000)).toEqual({
 			status: 413,
-			message: 'The request is too large: at most 1 MB may be sent here.'
+			message: 'The request is too large: the body is larger than 1 MB, the most accepted here.'
 		});
 		expect(refuseBodyByHeaders(h({ 'content-length': '1000000' }), 1_000_000)).toBeNull();
 		expect(refuseBodyByHeaders(h({ 'content-length': 'lots' }), 1_000_000)?.status).toBe(413);

@@ -58,7 +58,7 @@ export function refuseBodyByHeaders(
 		if (bytes > limit) {
 			return {
 				status: 413,
-				message: `The request is too large: at most ${megabytes(limit)} may be sent here.`
+				message: `The request is too large: the body is larger than ${megabytes(limit)}, the most accepted here.`
 			};
 		}
 		return null;
