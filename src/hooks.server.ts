@@ -67,11 +67,18 @@ const securityHeaders: Handle = async ({ event, resolve }) => {
 
 /** A refusal in the shape the caller expects: an action result, API JSON or a plain sentence. */
 function refuse(event: RequestEvent, status: number, message: string): Response {
+	// A body refused unread stays on the socket: close it, or the client's next request on that
+	// keep-alive connection would be read from the leftover bytes.
+	const headers: Record<string, string> =
+		status === 413 || status === 411 ? { connection: 'close' } : {};
 	if (event.request.headers.get('x-sveltekit-action') === 'true') {
-		return json({ type: 'error', error: { message } }, { status });
+		return json({ type: 'error', error: { message } }, { status, headers });
 	}
-	if (event.url.pathname.startsWith('/api/')) return json({ error: message }, { status });
-	return text(message, { status, headers: { 'content-type': 'text/plain; charset=utf-8' } });
+	if (event.url.pathname.startsWith('/api/')) return json({ error: message }, { status, headers });
+	return text(message, {
+		status,
+		headers: { ...headers, 'content-type': 'text/plain; charset=utf-8' }
+	});
 }
 
 // The body's size is judged from its headers before anything reads it: 1 MB for everyone, more

@@ -52,6 +52,14 @@ test.describe('item 4: request size is judged before the body is read', () => {
 			});
 			expect(res.status(), url).toBe(413);
 			expect(await res.text(), url).toMatch(/too large: the body is larger than 1 MB/);
+			expect(res.headers()['connection'], url).toBe('close');
+			// The unread body must not poison the next request from the same client.
+			const next = await request.post('/sign-in', {
+				form: { email: 'x@y.test', password: 'p' },
+				headers: { origin: BASE, accept: 'text/html' },
+				maxRedirects: 0
+			});
+			expect(next.status(), url).toBeLessThan(500);
 		}
 	});
 
