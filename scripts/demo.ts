@@ -3,7 +3,7 @@
 import { execSync, spawn } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
-import { startFakeMail } from '../fakes/mail/server';
+import { fakeMailPortsFromEnv, startFakeMail } from '../fakes/mail/server';
 import { DEMO_PASSWORD, DEMO_PLANT, DEMO_USERS, isEmpty, seedDemo } from './lib/demo-scenario';
 import { databasePath, openMigratedDatabase } from './lib/cli';
 
@@ -37,7 +37,7 @@ await db.destroy();
 
 let mail: Awaited<ReturnType<typeof startFakeMail>> | null = null;
 try {
-	mail = await startFakeMail();
+	mail = await startFakeMail(fakeMailPortsFromEnv());
 } catch (err) {
 	console.warn(`Fake mail server not started (${(err as Error).message}); is one already running?`);
 }
@@ -50,7 +50,10 @@ const app = spawn(process.execPath, ['scripts/start.js'], {
 		ORIGIN: origin,
 		DATABASE_PATH: databasePath(),
 		UPLOAD_DIR: process.env.UPLOAD_DIR ?? './data/uploads',
-		SMTP_URL: process.env.SMTP_URL ?? 'smtp://127.0.0.1:2525'
+		// The app mails the fake on the port it really listens on (FAKE_MAIL_SMTP_PORT honoured).
+		SMTP_URL:
+			process.env.SMTP_URL ??
+			`smtp://127.0.0.1:${mail?.smtpPort ?? fakeMailPortsFromEnv().smtpPort}`
 	}
 });
 

@@ -1,4 +1,4 @@
-import { json, text, type Handle, type ServerInit } from '@sveltejs/kit';
+import { json, text, type Handle, type RequestEvent, type ServerInit } from '@sveltejs/kit';
 import { sequence } from '@sveltejs/kit/hooks';
 import { building } from '$app/environment';
 import { CONTROL_CHARACTERS, CONTROL_CHARACTERS_MESSAGE } from '$lib/server/api/respond';
@@ -7,12 +7,23 @@ import { getDb } from '$lib/server/db';
 import { migrateToLatest } from '$lib/server/db/connect';
 import { startNoticeCron } from '$lib/server/notices/cron';
 import { getPlantTimeZone } from '$lib/server/settings/plant-time';
+import {
+	bodyLimitFor,
+	refuseBodyByHeaders,
+	SMALL_BODY_BYTES,
+	takesPhotos
+} from '$lib/server/http/body-limit';
+import { getUploadDir, UPLOADS_UNAVAILABLE, uploadDirProblem } from '$lib/server/photos/upload-dir';
+import { readTextCapped } from '$lib/server/http/read-capped';
 
 export const init: ServerInit = async () => {
 	if (building) return;
 	const applied = await migrateToLatest(getDb());
 	if (applied.length) console.log(`Castellan: applied migrations ${applied.join(', ')}`);
 	console.log(`Castellan: plant time is ${await getPlantTimeZone(getDb())}.`);
+	const photoProblem = uploadDirProblem(getUploadDir());
+	if (photoProblem)
+		console.error(`Castellan: ${photoProblem} Photo uploads answer 503 until then.`);
 	// The notice job lives in the server process, once per process (NOTICE_CRON=off stops it).
 	if (!building) startNoticeCron();
 };
@@ -50,29 +61,86 @@ const securityHeaders: Handle = async ({ event, resolve }) => {
 	response.headers.set('Referrer-Policy', 'same-origin');
 	response.headers.set('X-Frame-Options', 'DENY');
 	response.headers.set('Permissions-Policy', 'camera=(self), geolocation=(), microphone=()');
+	// Answers made for a signed-in caller (pages, JSON, CSV) stay out of shared and back-button
+	// caches unless the route chose a life of its own (photos do).
+	const personal = event.locals.user || event.request.headers.has('authorization');
+	if (personal && !response.headers.has('cache-control')) {
+		response.headers.set('cache-control', 'private, no-store');
+	}
 	return response;
 };
 
+/** A refusal in the shape the caller expects: an action result, API JSON or a plain sentence. */
+function refuse(event: RequestEvent, status: number, message: string): Response {
+	// A body refused unread stays on the socket: close it, or the client's next request on that
+	// keep-alive connection would be read from the leftover bytes.
+	const headers: Record<string, string> =
+		status === 413 || status === 411 ? { connection: 'close' } : {};
+	if (event.request.headers.get('x-sveltekit-action') === 'true') {
+		return json({ type: 'error', error: { message } }, { status, headers });
+	}
+	if (event.url.pathname.startsWith('/api/')) return json({ error: message }, { status, headers });
+	return text(message, {
+		status,
+		headers: { ...headers, 'content-type': 'text/plain; charset=utf-8' }
+	});
+}
+
+// The body's size is judged from its headers before anything reads it: 1 MB for everyone, more
+// only on the upload routes for the roles that may upload there (see body-limit.ts).
+const limitRequestBody: Handle = async ({ event, resolve }) => {
+	const method = event.request.method;
+	if (method === 'GET' || method === 'HEAD' || method === 'OPTIONS') return resolve(event);
+	const limit = bodyLimitFor(
+		event.route.id,
+		event.locals.user?.role ?? null,
+		/^Bearer\s/i.test(event.request.headers.get('authorization') ?? '')
+	);
+	const refusal = refuseBodyByHeaders(event.request.headers, limit);
+	return refusal ? refuse(event, refusal.status, refusal.message) : resolve(event);
+};
+
+// Photos are refused before their bytes are read when the photo folder cannot be written: a plain
+// 503 sentence instead of a 500 after a long upload.
+const refuseUploadsWithoutStore: Handle = async ({ event, resolve }) => {
+	const type = event.request.headers.get('content-type') ?? '';
+	if (
+		event.request.method === 'POST' &&
+		type.startsWith('multipart/form-data') &&
+		takesPhotos(event.route.id) &&
+		uploadDirProblem(getUploadDir())
+	) {
+		return refuse(event, 503, UPLOADS_UNAVAILABLE);
+	}
+	return resolve(event);
+};
+
 // A form post carrying control characters is refused before any action sees it (the JSON API
-// does the same in readJsonBody); multipart uploads are left to their own checks.
+// does the same in readJsonBody); multipart uploads are left to their own checks. A url-encoded
+// form is never large, so at most 1 MB of it is read here.
 const refuseControlCharacters: Handle = async ({ event, resolve }) => {
 	const type = event.request.headers.get('content-type') ?? '';
 	if (event.request.method !== 'POST' || !type.startsWith('application/x-www-form-urlencoded')) {
 		return resolve(event);
 	}
-	const fields = new URLSearchParams(await event.request.clone().text());
+	const body = await readTextCapped(event.request.clone(), SMALL_BODY_BYTES);
+	if (body === null) {
+		return refuse(event, 413, 'The form is too large: at most 1 MB may be sent.');
+	}
+	const fields = new URLSearchParams(body);
 	const bad = [...fields].some(
 		([k, v]) => CONTROL_CHARACTERS.test(k) || CONTROL_CHARACTERS.test(v)
 	);
-	if (!bad) return resolve(event);
-	// A form sent by use:enhance expects an action result; a plain form post gets the sentence.
-	if (event.request.headers.get('x-sveltekit-action') === 'true') {
-		return json({ type: 'error', error: { message: CONTROL_CHARACTERS_MESSAGE } }, { status: 400 });
+	return bad ? refuse(event, 400, CONTROL_CHARACTERS_MESSAGE) : resolve(event);
+};
+
+// SvelteKit throws a plain Error (a 500) for the reserved action name "default" in the query;
+// it is simply an action that does not exist.
+const refuseReservedActionName: Handle = async ({ event, resolve }) => {
+	if (event.request.method === 'POST' && event.url.searchParams.has('/default')) {
+		return refuse(event, 404, 'There is no form action called "default" here.');
 	}
-	return text(CONTROL_CHARACTERS_MESSAGE, {
-		status: 400,
-		headers: { 'content-type': 'text/plain; charset=utf-8' }
-	});
+	return resolve(event);
 };
 
 const requestLog: Handle = async ({ event, resolve }) => {
@@ -95,7 +163,10 @@ const plantTime: Handle = async ({ event, resolve }) => {
 export const handle = sequence(
 	requestLog,
 	securityHeaders,
-	refuseControlCharacters,
 	plantTime,
-	authenticate
+	authenticate,
+	limitRequestBody,
+	refuseReservedActionName,
+	refuseUploadsWithoutStore,
+	refuseControlCharacters
 );

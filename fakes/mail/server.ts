@@ -295,14 +295,29 @@ export async function startFakeMail({
 	};
 }
 
-function portFromEnv(name: string, fallback: number): number {
-	const raw = process.env[name];
+function portFromEnv(
+	env: Record<string, string | undefined>,
+	name: string,
+	fallback: number
+): number {
+	const raw = env[name];
 	if (raw === undefined || raw === '') return fallback;
 	const port = Number(raw);
 	if (!Number.isInteger(port) || port < 0 || port > 65535) {
 		throw new Error(`${name} must be a port number (0–65535), not "${raw}".`);
 	}
 	return port;
+}
+
+/**
+ * The fake's ports from FAKE_MAIL_SMTP_PORT / FAKE_MAIL_HTTP_PORT (2525 and 8025 when unset), for
+ * `npm run fake:mail` and `npm run demo` alike.
+ */
+export function fakeMailPortsFromEnv(env: Record<string, string | undefined> = process.env) {
+	return {
+		smtpPort: portFromEnv(env, 'FAKE_MAIL_SMTP_PORT', 2525),
+		httpPort: portFromEnv(env, 'FAKE_MAIL_HTTP_PORT', 8025)
+	};
 }
 
 function isEntryPoint(): boolean {
@@ -317,11 +332,7 @@ function isEntryPoint(): boolean {
 
 if (isEntryPoint()) {
 	const host = '127.0.0.1';
-	const mail = await startFakeMail({
-		smtpPort: portFromEnv('FAKE_MAIL_SMTP_PORT', 2525),
-		httpPort: portFromEnv('FAKE_MAIL_HTTP_PORT', 8025),
-		host
-	});
+	const mail = await startFakeMail({ ...fakeMailPortsFromEnv(), host });
 	console.log(
 		`Fake mail: SMTP smtp://${host}:${mail.smtpPort}, inbox http://${host}:${mail.httpPort}`
 	);

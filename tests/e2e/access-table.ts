@@ -54,6 +54,7 @@ const ALL_ROLES: Role[] = [...PLANT, 'customer'];
 export const PAGES: Record<string, Cells> = {
 	'/': signedIn('login', 'home'),
 	'/account': signedIn('login', 'ok'),
+	'/admin/audit': roles('admin'),
 	'/admin/invites': roles('admin'),
 	'/admin/outbox': roles('admin'),
 	'/admin/tokens': roles('admin'),
@@ -106,6 +107,7 @@ export const ACTIONS: Record<string, Cells> = {
 	'/admin/invites?/withdraw': roles('admin'),
 	'/admin/outbox?/resend': roles('admin'),
 	'/admin/outbox?/resendFailed': roles('admin'),
+	'/admin/outbox?/runNow': roles('admin'),
 	'/admin/tokens?/create': roles('admin'),
 	'/admin/tokens?/revoke': roles('admin'),
 	'/admin/users?/active': roles('admin'),
@@ -168,6 +170,7 @@ export const ENDPOINTS: Record<string, Cells> = {
 	'GET /api/v1/dies/[number]/order-check': api(ALL_ROLES, 'none'),
 	'POST /api/v1/shots': api(RECORDERS),
 	'GET /dies/export.csv': roles(...PLANT),
+	'GET /favicon.svg': everyone('ok'),
 	'GET /jobs/export.csv': roles(...PLANT),
 	'GET /jobs/[job]/report.pdf': roles(...PLANT),
 	'GET /owner/dies/[number]/ledger.csv': ownTooling(),

@@ -58,12 +58,16 @@ test('dies API: bearer tokens, scopes, customer binding and 404 for other owners
 	expect(noScope.status()).toBe(403);
 	expect(await noScope.json()).toEqual({ error: 'The API token lacks the scope dies:read.' });
 
-	// Revoke the plant token in the UI: it stops working at once.
+	// Revoke the plant token in the UI (it asks first): it stops working at once.
 	await page.goto('/admin/tokens');
 	await page
 		.getByRole('row', { name: /e2e plant reader/ })
-		.getByRole('button', { name: 'Revoke' })
+		.getByRole('button', { name: 'Revoke…' })
 		.click();
+	// Asked, not yet revoked: the token still works.
+	await expect(page.getByTestId('confirm-revoke')).toContainText('stops at once');
+	expect((await request.get('/api/v1/dies', auth(plant))).status()).toBe(200);
+	await page.getByRole('button', { name: 'Yes, revoke' }).click();
 	await expect(page.getByRole('row', { name: /e2e plant reader/ })).toContainText('Revoked');
 	expect((await request.get('/api/v1/dies', auth(plant))).status()).toBe(401);
 });

@@ -110,10 +110,14 @@ function expectEscaped(html: string, value: string, where: string) {
 	}
 }
 
-/** The cell as csvResponse writes it: formula starts defused, quoted when needed. */
+/** The cell as csvResponse writes it: a formula start defused at the start of every line, quoted
+ * when it holds a quote, comma, semicolon or line break. */
 function csvCell(value: string): string {
-	const v = /^[=+\-@\t\r]/.test(value) ? `'${value}` : value;
-	return /[",\r\n]/.test(v) ? `"${v.replaceAll('"', '""')}"` : v;
+	const v = (/^[=+\-@\t\r]/.test(value) ? `'${value}` : value).replace(
+		/([\r\n])([=+\-@\t])/g,
+		"$1'$2"
+	);
+	return /[",;\r\n]/.test(v) ? `"${v.replaceAll('"', '""')}"` : v;
 }
 
 async function expectPage(page: Page, url: string, value: string) {
@@ -712,6 +716,110 @@ test('photo uploads with path tricks in their names are stored under random name
 		expect(fs.existsSync(path.resolve(`test-results/e2e-data-${port}`, escaped))).toBe(false);
 	}
 	await page.screenshot({ path: info.outputPath('odd-photo-names.png'), fullPage: true });
+});
+
+test('30 parallel sign-ins to one account (29 wrong, 1 right): at most 5 reach the password check', async ({
+	page,
+	playwright
+}) => {
+	const email = 'race950@plant.test';
+	const password = 'Race-950-horse-battery';
+	await signIn(page, 'admin');
+	const made = await postForm(page, '/admin/users?/create', {
+		email,
+		name: 'Race Nine-Fifty',
+		role: 'scheduler',
+		customerId: '',
+		password
+	});
+	expect(made.status()).toBe(200);
+	const base = new URL(page.url()).origin;
+	// Thirty browsers at once, the right password sent last.
+	const contexts = await Promise.all(
+		Array.from({ length: 30 }, () => playwright.request.newContext({ baseURL: base }))
+	);
+	const answers = await Promise.all(
+		contexts.map((ctx, i) =>
+			ctx.post('/sign-in', {
+				form: { email, password: i === 29 ? password : `wrong-${i}` },
+				headers: { origin: base, accept: 'text/html' },
+				maxRedirects: 0
+			})
+		)
+	);
+	const statuses = answers.map((a) => a.status());
+	// 429 = refused before the verify. The limit is 5 per account, so at least 25 are refused.
+	expect(statuses.filter((s) => s === 429).length, statuses.join(',')).toBeGreaterThanOrEqual(25);
+	expect(statuses.filter((s) => s !== 429).length).toBeLessThanOrEqual(5);
+	// Whatever happened to the right password, the account is now locked for a while.
+	const after = await contexts[0].post('/sign-in', {
+		form: { email, password },
+		headers: { origin: base, accept: 'text/html' },
+		maxRedirects: 0
+	});
+	expect(after.status()).toBe(429);
+	await Promise.all(contexts.map((c) => c.dispose()));
+});
+
+test('after sign-in, redirect targets that a browser reads as another host go to the role home', async ({
+	playwright,
+	baseURL
+}) => {
+	const variants = [
+		'/%5Cevil.example',
+		'/%5C%5Cevil.example',
+		'/%09/evil.example',
+		'/%0A/evil.example',
+		'/%0D/evil.example',
+		'//evil.example',
+		'/%2F/evil.example',
+		'https%3A%2F%2Fevil.example',
+		'%2F%5Cevil.example',
+		'/%5C/evil.example/'
+	];
+	for (const target of variants) {
+		const ctx = await playwright.request.newContext({ baseURL });
+		const res = await ctx.post(`/sign-in?redirectTo=${target}`, {
+			form: { email: 'planner@kestrelvale.test', password: 'castellan-demo' },
+			headers: { origin: baseURL!, accept: 'text/html' },
+			maxRedirects: 0
+		});
+		expect(res.status(), target).toBe(303);
+		const location = res.headers()['location'] ?? '';
+		expect(location, target).not.toMatch(/evil|\\|[\t\r\n]/);
+		expect(new URL(location, baseURL).origin, target).toBe(new URL(baseURL!).origin);
+		// The same for a visitor already signed in who opens the sign-in page.
+		const again = await ctx.get(`/sign-in?redirectTo=${target}`, { maxRedirects: 0 });
+		expect(again.status(), target).toBe(303);
+		expect(again.headers()['location'] ?? '', target).not.toMatch(/evil|\\|[\t\r\n]/);
+		await ctx.dispose();
+	}
+	// A same-origin path is still followed.
+	const ctx = await playwright.request.newContext({ baseURL });
+	const ok = await ctx.post('/sign-in?redirectTo=%2Fbookings', {
+		form: { email: 'planner@kestrelvale.test', password: 'castellan-demo' },
+		headers: { origin: baseURL!, accept: 'text/html' },
+		maxRedirects: 0
+	});
+	expect(ok.headers()['location']).toBe('/bookings');
+	await ctx.dispose();
+});
+
+test('a part name with a line break and a formula stays one quoted, defused cell in every export', async ({
+	page
+}) => {
+	await signIn(page, 'admin');
+	const name = 'Line one\n=1+1;2\r\n@SUM(A1)';
+	const res = await postForm(page, `/dies/${DIE}/edit`, dieForm({ partName: name }));
+	expect(res.status(), await res.text().then((t) => t.slice(0, 300))).toBe(303);
+	for (const url of ['/dies/export.csv', '/jobs/export.csv']) {
+		const csv = await (await page.request.get(url)).text();
+		// No physical line may start with a formula trigger (the cell's second and third lines included).
+		for (const line of csv.split(/\r\n|\r|\n/)) expect(line, url).not.toMatch(/^[=+@]/);
+		expect(csv, url).toContain(`"Line one\n'=1+1;2\r\n'@SUM(A1)"`);
+	}
+	// Put the hostile name back for anything that runs after.
+	await postForm(page, `/dies/${DIE}/edit`, dieForm({ partName: HOSTILE_NAME }));
 });
 
 test('the server is still up after all of it', async ({ request }) => {

@@ -206,7 +206,7 @@ test('POST /api/v1/shots with a bearer token: 201, repeated key, 400 issues, 401
 		data: { die: 'D-0118', shots: 1 }
 	});
 	expect(noToken.status()).toBe(401);
-	expect(await noToken.json()).toEqual({ error: 'The API token is unknown or has been revoked.' });
+	expect(await noToken.json()).toEqual({ error: 'The API token is unknown, revoked or expired.' });
 
 	const unknown = await request.post('/api/v1/shots', {
 		headers: auth,

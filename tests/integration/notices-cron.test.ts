@@ -2,6 +2,7 @@ import { afterEach, describe, expect, it, vi } from 'vitest';
 import { dateTimeInZone } from '../../src/lib/calc/zone';
 import {
 	nextNoticeRun,
+	noticeSchedule,
 	setNoticeCronZone,
 	startNoticeCron,
 	stopNoticeCron
@@ -48,5 +49,25 @@ describe('startNoticeCron', () => {
 		expect(dateTimeInZone(vienna, 'Europe/Vienna').slice(11)).toBe('06:00');
 		// Vienna is UTC+1 in winter and UTC+2 in summer: 05:00 or 04:00 UTC.
 		expect(['05:00', '04:00']).toContain(vienna.toISOString().slice(11, 16));
+	});
+});
+
+describe('noticeSchedule (issue 14 item 21: the outbox shows the next run)', () => {
+	it('says off when the job is not running', () => {
+		expect(noticeSchedule()).toEqual({ running: false, cron: null, nextRun: null });
+	});
+
+	it('gives the next 06:00 (server time) after now for "0 6 * * *"', () => {
+		vi.spyOn(console, 'log').mockImplementation(() => {});
+		startNoticeCron({ NOTICE_CRON: '0 6 * * *', SMTP_URL: 'smtp://127.0.0.1:1' });
+		const schedule = noticeSchedule();
+		expect(schedule.running).toBe(true);
+		expect(schedule.cron).toBe('0 6 * * *');
+		const next = new Date(schedule.nextRun!);
+		// By hand: the first instant after now whose local clock reads 06:00:00.
+		const expected = new Date();
+		expected.setHours(6, 0, 0, 0);
+		if (expected.getTime() <= Date.now()) expected.setDate(expected.getDate() + 1);
+		expect(next.getTime()).toBe(expected.getTime());
 	});
 });

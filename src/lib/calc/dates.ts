@@ -6,6 +6,24 @@ const DATE_ONLY = /^\d{4}-\d{2}-\d{2}$/;
 /** Milliseconds in one day. */
 export const MS_PER_DAY = DAY_MS;
 
+const MONTH_DAYS = [31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31];
+
+/**
+ * True when the date at the start of `text` (`YYYY-MM-DD`, optionally followed by `THH…`) is a
+ * real calendar day and the hour is at most 23. Date.parse rolls 30 February into March and
+ * 24:00 into the next day; this refuses both. Gregorian leap years (divisible by 4, except
+ * centuries not divisible by 400).
+ */
+export function calendarFieldsValid(text: string): boolean {
+	const year = Number(text.slice(0, 4));
+	const month = Number(text.slice(5, 7));
+	const day = Number(text.slice(8, 10));
+	if (!Number.isInteger(year) || month < 1 || month > 12 || day < 1) return false;
+	const leap = month === 2 && year % 4 === 0 && (year % 100 !== 0 || year % 400 === 0);
+	if (day > MONTH_DAYS[month - 1] + (leap ? 1 : 0)) return false;
+	return text.length < 13 || Number(text.slice(11, 13)) <= 23;
+}
+
 /**
  * Parse an ISO-8601 date or timestamp to epoch milliseconds (UTC).
  * A date-only string (`YYYY-MM-DD`) stands for the end of that day, i.e. the next midnight UTC,

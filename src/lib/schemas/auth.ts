@@ -29,18 +29,30 @@ export const preferencesSchema = z.object({
 	noticesEnabled: z.boolean().default(false)
 });
 
-export const newUserSchema = z.object({
-	email: z.string().trim().email('Enter a valid e-mail address.').max(200),
-	name: z.string().trim().min(2, 'Enter the person’s name.').max(100),
-	role: z.enum(['admin', 'toolroom_lead', 'toolmaker', 'scheduler', 'customer'], {
-		error: 'Choose a role.'
-	}),
-	customerId: z.preprocess(
-		(v) => (v === '' || v === null ? undefined : v),
-		z.coerce.number().int().positive().optional()
-	),
-	password: newPassword
-});
+/** New accounts start with the least plant role; admin is a deliberate, confirmed choice. */
+export const DEFAULT_NEW_USER_ROLE = 'toolmaker';
+
+export const newUserSchema = z
+	.object({
+		email: z.string().trim().email('Enter a valid e-mail address.').max(200),
+		name: z.string().trim().min(2, 'Enter the person’s name.').max(100),
+		role: z
+			.enum(['admin', 'toolroom_lead', 'toolmaker', 'scheduler', 'customer'], {
+				error: 'Choose a role.'
+			})
+			.default(DEFAULT_NEW_USER_ROLE),
+		customerId: z.preprocess(
+			(v) => (v === '' || v === null ? undefined : v),
+			z.coerce.number().int().positive().optional()
+		),
+		confirmAdmin: z.boolean().default(false),
+		password: newPassword
+	})
+	.refine((v) => v.role !== 'admin' || v.confirmAdmin, {
+		path: ['confirmAdmin'],
+		message:
+			'A plant admin may change users, tokens and settings. Tick the box to confirm this account gets that.'
+	});
 
 export const resetPasswordSchema = z.object({ userId: z.string().min(1), password: newPassword });
 
@@ -50,5 +62,11 @@ export const tokenSchema = z.object({
 	customerId: z.preprocess(
 		(v) => (v === '' || v === null ? undefined : v),
 		z.coerce.number().int().positive().optional()
-	)
+	),
+	/** Last day the token works (UTC); empty = no expiry. Checked against today on the server. */
+	expiresOn: z
+		.string()
+		.trim()
+		.regex(/^(\d{4}-\d{2}-\d{2})?$/, 'Give the last day as a date, or leave it empty.')
+		.default('')
 });

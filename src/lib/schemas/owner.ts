@@ -26,7 +26,9 @@ export const inviteSchema = z.object({
 		.trim()
 		.min(2, 'Enter the person’s name.')
 		.max(100, 'Keep it under 100 characters.'),
-	email: z.string().trim().toLowerCase().email('Enter a valid e-mail address.').max(200)
+	email: z.string().trim().toLowerCase().email('Enter a valid e-mail address.').max(200),
+	/** Ticked after being told the address is outside the customer's known e-mail domains. */
+	confirmDomain: z.boolean().default(false)
 });
 export type InviteForm = z.infer<typeof inviteSchema>;
 

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { readPlantDateTime, toPlantInput } from '../plant-time';
+import { calendarFieldsValid } from '../calc/dates';
 import { MAX_PLAUSIBLE_SHOTS_PER_HOUR } from '../calc/life';
 import { decimalNumber, optionalDecimalNumber, wholeNumber } from './numbers';
 
@@ -70,7 +71,10 @@ const DATE_TIME =
  */
 export function toUtcIso(value: string): string | null {
 	const text = value.trim();
-	return DATE_TIME.test(text) ? readPlantDateTime(text) : null;
+	if (!DATE_TIME.test(text)) return null;
+	// The ledger's calendar check: 2027-02-30 is refused, not read as 2 March.
+	if (!calendarFieldsValid(text.replace(' ', 'T').slice(0, 16))) return null;
+	return readPlantDateTime(text);
 }
 
 /** The `datetime-local` value (YYYY-MM-DDTHH:mm, plant clock) of an ISO instant. */
@@ -114,11 +118,28 @@ const bookingFields = {
 	notes: optionalText(1000)
 };
 
+/** A booking starts at most this many days back (late entry of a past run)… */
+export const BOOKING_PAST_DAYS = 366;
+/** …and at most this many days ahead (a plan, not a typo such as 9999-12-31). */
+export const BOOKING_FUTURE_DAYS = 3 * 366;
+
 function checkWindow(v: { startsAt: string; endsAt: string }, ctx: z.RefinementCtx) {
 	const start = Date.parse(toUtcIso(v.startsAt) ?? '');
 	const end = Date.parse(toUtcIso(v.endsAt) ?? '');
 	// A bad date already has its own message.
 	if (!Number.isFinite(start) || !Number.isFinite(end)) return;
+	const now = Date.now();
+	if (
+		start < now - BOOKING_PAST_DAYS * 86_400_000 ||
+		start > now + BOOKING_FUTURE_DAYS * 86_400_000
+	) {
+		ctx.addIssue({
+			code: 'custom',
+			path: ['startsAt'],
+			message: 'The start must lie within a year back and three years ahead.'
+		});
+		return;
+	}
 	if (!(end > start)) {
 		ctx.addIssue({ code: 'custom', path: ['endsAt'], message: 'The end must be after the start.' });
 	} else if (end - start > MAX_BOOKING_DAYS * 86_400_000) {

@@ -62,7 +62,9 @@ export const alloySchema = z
 		pourTempC: optionalDecimalNumber({
 			min: [100, 'Pour 100–1600 °C.'],
 			max: [1600, 'Pour 100–1600 °C.']
-		})
+		}),
+		/** Ticked after the admin saw which dies change state with the new expected life. */
+		confirmImpact: z.boolean().default(false)
 	})
 	.refine(
 		(a) => a.solidusC === undefined || a.liquidusC === undefined || a.liquidusC >= a.solidusC,

@@ -4,7 +4,8 @@ import { zod4 } from 'sveltekit-superforms/adapters';
 import { changePasswordSchema, preferencesSchema } from '$lib/schemas/auth';
 import { requireUser } from '$lib/server/auth/guard';
 import { getLucia } from '$lib/server/auth';
-import { verifyPassword } from '$lib/server/auth/password';
+import { passwordWeakness } from '$lib/server/auth/password-strength';
+import { checkPassword, tooManyAttemptsMessage } from '$lib/server/auth/sign-in';
 import { getDb } from '$lib/server/db';
 import { getUserById, setUserPassword, updateUserPreferences } from '$lib/server/users/users';
 import type { Actions, PageServerLoad } from './$types';
@@ -20,6 +21,7 @@ export const load: PageServerLoad = async (event) => {
 		)
 	]);
 	return {
+		mustChangePassword: user.mustChangePassword,
 		passwordForm,
 		preferencesForm,
 		showNotices:
@@ -36,7 +38,18 @@ export const actions: Actions = {
 		if (!form.valid) return fail(400, { passwordForm: form });
 		const db = getDb();
 		const row = await getUserById(db, user.id);
-		if (!row || !(await verifyPassword(row.password_hash, currentPassword))) {
+		const weak = passwordWeakness(newPassword, [user.email, user.name]);
+		if (weak) return setError(form, 'newPassword', weak);
+		// Throttled like sign-in: a stolen session must not become a password-guessing oracle.
+		const check = row
+			? await checkPassword(db, row.email, currentPassword, event.getClientAddress())
+			: ({ kind: 'wrong' } as const);
+		if (check.kind === 'blocked') {
+			return setError(form, 'currentPassword', tooManyAttemptsMessage(check.waitMinutes), {
+				status: 429
+			});
+		}
+		if (check.kind === 'wrong') {
 			return setError(form, 'currentPassword', 'The current password is wrong.');
 		}
 		await setUserPassword(db, user.id, newPassword, user.id);

@@ -4,7 +4,15 @@ import { zod4 } from 'sveltekit-superforms/adapters';
 import { alloySchema, customerSchema } from '$lib/schemas/settings';
 import { requireRole } from '$lib/server/auth/guard';
 import { getDb } from '$lib/server/db';
-import { listAlloys, listServiceTemplates, saveAlloy } from '$lib/server/settings/alloys';
+import {
+	alloyAuditView,
+	findAlloy,
+	listAlloys,
+	listServiceTemplates,
+	saveAlloy
+} from '$lib/server/settings/alloys';
+import { previewAlloyLifeChange } from '$lib/server/settings/alloy-impact';
+import { writeAudit } from '$lib/server/audit';
 import { listCustomers, saveCustomer } from '$lib/server/settings/customers';
 import { loadPlantZoneForm, savePlantZone } from './plant-time';
 import type { Actions, PageServerLoad } from './$types';
@@ -71,11 +79,25 @@ export const actions: Actions = {
 		return message(form, `Customer ${form.data.code} saved.`);
 	},
 	alloy: async (event) => {
-		requireRole(event, 'admin');
+		const admin = requireRole(event, 'admin');
 		const form = await superValidate(event.request, zod4(alloySchema));
 		if (!form.valid) return fail(400, { alloyForm: form });
 		const d = form.data;
-		const result = await saveAlloy(getDb(), {
+		const db = getDb();
+		const before = d.id ? await findAlloy(db, d.id) : undefined;
+		// A new expected life moves dies between life states: show which, and save only once the
+		// admin has seen them and confirmed.
+		const impact =
+			before && before.expected_life_shots !== d.expectedLifeShots
+				? await previewAlloyLifeChange(db, d.id!, d.expectedLifeShots)
+				: null;
+		if (impact && !d.confirmImpact) {
+			form.message = impact.changes.length
+				? `Not saved yet: ${impact.changes.length} of ${impact.dies} dies change state with this expected life (listed below). Tick the box and save again to confirm.`
+				: `Not saved yet: none of the ${impact.dies} dies of this alloy changes state. Tick the box and save again to confirm.`;
+			return fail(409, { alloyForm: form, impact });
+		}
+		const result = await saveAlloy(db, {
 			id: d.id,
 			code: d.code,
 			name: d.name,
@@ -90,6 +112,20 @@ export const actions: Actions = {
 			source_note: 'Edited in Castellan settings'
 		});
 		if (!result.ok) return setError(form, 'code', result.message);
+		const after = await findAlloy(db, result.id);
+		await writeAudit(db, {
+			userId: admin.id,
+			action: before ? 'alloy.update' : 'alloy.create',
+			detail: {
+				alloy: d.code,
+				before: before ? alloyAuditView(before) : {},
+				after: after ? alloyAuditView(after) : {},
+				...(impact
+					? { diesChangingState: impact.changes.map((c) => `${c.number}: ${c.from} → ${c.to}`) }
+					: {})
+			}
+		});
+		form.data.confirmImpact = false;
 		return message(form, `Alloy ${d.code} saved.`);
 	}
 };

@@ -1,4 +1,5 @@
 import { json, type RequestEvent } from '@sveltejs/kit';
+import { readTextCapped } from '../http/read-capped';
 
 export interface ApiIssue {
 	index?: number;
@@ -69,9 +70,12 @@ export async function readJsonBody(request: Request, maxBytes = 2_000_000): Prom
 	if (!type.toLowerCase().startsWith('application/json')) {
 		throw new ApiError(415, 'Send the body as application/json.');
 	}
-	const text = await request.text();
-	if (Buffer.byteLength(text) > maxBytes) {
-		throw new ApiError(413, `The body is larger than ${Math.round(maxBytes / 1e6)} MB.`);
+	// Stops reading at the cap instead of buffering whatever was sent.
+	const text = await readTextCapped(request, maxBytes);
+	if (text === null) {
+		const size =
+			maxBytes >= 1e6 ? `${Math.round(maxBytes / 1e6)} MB` : `${Math.round(maxBytes / 1e3)} kB`;
+		throw new ApiError(413, `The body is larger than ${size}.`);
 	}
 	let body: unknown;
 	try {

@@ -3,6 +3,9 @@ import { ROLE_LABELS, type RoleName } from '$lib/roles';
 
 export type SignedInUser = NonNullable<App.Locals['user']>;
 
+/** The pages a user who must change the password can still reach. */
+const PASSWORD_CHANGE_PATHS = ['/account', '/sign-out'];
+
 /**
  * The one role check for pages and form actions. Signed-out visitors go to sign-in (coming back
  * afterwards); a signed-in user without the role gets a 403 that names the roles allowed.
@@ -13,6 +16,10 @@ export function requireRole(event: RequestEvent, ...roles: RoleName[]): SignedIn
 		const back = event.url.pathname + event.url.search;
 		const ended = event.locals.sessionEnded ? '&ended=1' : '';
 		redirect(303, `/sign-in?redirectTo=${encodeURIComponent(back)}${ended}`);
+	}
+	// A password an admin set is a shared secret: nothing opens until the user chose their own.
+	if (user.mustChangePassword && !PASSWORD_CHANGE_PATHS.includes(event.url.pathname)) {
+		redirect(303, '/account?change=1');
 	}
 	if (roles.length > 0 && !roles.includes(user.role)) {
 		error(403, {

@@ -28,7 +28,8 @@ export function createKyselyAdapter(db: DB): Adapter {
 					'users.role',
 					'users.customer_id',
 					'users.active',
-					'users.unit_system'
+					'users.unit_system',
+					'users.must_change_password'
 				])
 				.where('sessions.id', '=', sessionId)
 				.executeTakeFirst();
@@ -41,7 +42,8 @@ export function createKyselyAdapter(db: DB): Adapter {
 					role: row.role,
 					customer_id: row.customer_id,
 					active: row.active,
-					unit_system: row.unit_system
+					unit_system: row.unit_system,
+					must_change_password: row.must_change_password
 				}
 			};
 			return [toSession(row), user];
@@ -96,7 +98,8 @@ export function createLucia(db: DB, secureCookies: boolean) {
 			role: a.role,
 			customerId: a.customer_id,
 			active: a.active === 1,
-			unitSystem: a.unit_system
+			unitSystem: a.unit_system,
+			mustChangePassword: a.must_change_password === 1
 		})
 	});
 }
@@ -113,6 +116,7 @@ declare module 'lucia' {
 			customer_id: number | null;
 			active: number;
 			unit_system: 'metric' | 'us';
+			must_change_password: number;
 		};
 	}
 }

@@ -29,7 +29,7 @@ export async function authorizeApi(event: RequestEvent, scope: ApiScope): Promis
 		const match = /^Bearer\s+(\S+)$/i.exec(header);
 		if (!match) throw new ApiError(401, 'Use the header "Authorization: Bearer <token>".');
 		const token = await findActiveToken(getDb(), match[1]);
-		if (!token) throw new ApiError(401, 'The API token is unknown or has been revoked.');
+		if (!token) throw new ApiError(401, 'The API token is unknown, revoked or expired.');
 		if (!token.scopes.includes(scope)) {
 			throw new ApiError(403, `The API token lacks the scope ${scope}.`);
 		}
@@ -37,6 +37,9 @@ export async function authorizeApi(event: RequestEvent, scope: ApiScope): Promis
 	}
 	const user = event.locals.user;
 	if (!user) throw new ApiError(401, 'Sign in or send an API token.');
+	if (user.mustChangePassword) {
+		throw new ApiError(403, 'Change the password an admin set for you first (on /account).');
+	}
 	if (!SESSION_SCOPES[scope].includes(user.role)) {
 		throw new ApiError(403, `Your role may not use ${scope}.`);
 	}

@@ -16,6 +16,8 @@ export interface NewTokenInput {
 	scopes: ApiScope[];
 	customerId: number | null;
 	createdBy: string | null;
+	/** The token stops working at this instant (ISO); null = never. */
+	expiresAt?: string | null;
 }
 
 /** Creates a token and returns its secret; only the hash is stored, so this is the one chance to see it. */
@@ -34,11 +36,27 @@ export async function createApiToken(
 			token_prefix: token.slice(0, 10),
 			scopes: scopes.join(','),
 			customer_id: input.customerId,
-			created_by: input.createdBy
+			created_by: input.createdBy,
+			expires_at: input.expiresAt ?? null
 		})
 		.returning('id')
 		.executeTakeFirstOrThrow();
 	return { id: row.id, token };
+}
+
+/**
+ * The instant a token made today stops working: the end (UTC) of the last day given, null for no
+ * expiry, 'invalid' for a day that does not exist, is not after today or is over five years away.
+ */
+export function tokenExpiry(lastDay: string, now: string): string | null | 'invalid' {
+	if (!lastDay) return null;
+	const start = new Date(`${lastDay}T00:00:00.000Z`);
+	if (Number.isNaN(start.getTime()) || start.toISOString().slice(0, 10) !== lastDay)
+		return 'invalid';
+	const today = now.slice(0, 10);
+	const limit = `${Number(today.slice(0, 4)) + 5}${today.slice(4)}`;
+	if (lastDay <= today || lastDay > limit) return 'invalid';
+	return new Date(start.getTime() + 86_400_000).toISOString();
 }
 
 export interface TokenPrincipal {
@@ -52,11 +70,12 @@ export interface TokenPrincipal {
 export async function findActiveToken(db: DB, token: string): Promise<TokenPrincipal | null> {
 	const row = await db
 		.selectFrom('api_tokens')
-		.select(['id', 'name', 'scopes', 'customer_id', 'revoked_at', 'last_used_at'])
+		.select(['id', 'name', 'scopes', 'customer_id', 'revoked_at', 'last_used_at', 'expires_at'])
 		.where('token_hash', '=', hashToken(token))
 		.executeTakeFirst();
 	if (!row || row.revoked_at) return null;
 	const now = nowIso();
+	if (row.expires_at && row.expires_at <= now) return null;
 	// Touch last-used at most once a minute so a busy press feed does not write on every call.
 	if (!row.last_used_at || Date.parse(now) - Date.parse(row.last_used_at) > 60_000) {
 		await db
@@ -85,6 +104,7 @@ export async function listApiTokens(db: DB, customerId?: number) {
 			'api_tokens.created_at',
 			'api_tokens.last_used_at',
 			'api_tokens.revoked_at',
+			'api_tokens.expires_at',
 			'customers.code as customerCode',
 			'customers.name as customerName'
 		])

@@ -40,6 +40,8 @@ export interface UsersTable {
 	unit_system: Generated<'metric' | 'us'>;
 	notices_enabled: Generated<Flag>;
 	created_at: Generated<string>;
+	/** 1 after an admin set the password: the user must choose a new one at the next sign-in. */
+	must_change_password: Generated<Flag>;
 }
 
 export interface SessionsTable {
@@ -67,6 +69,8 @@ export interface ApiTokensTable {
 	created_at: Generated<string>;
 	last_used_at: string | null;
 	revoked_at: string | null;
+	/** The token stops working at this instant; null = no expiry. */
+	expires_at: string | null;
 }
 
 export interface AlloysTable {

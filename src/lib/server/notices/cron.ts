@@ -146,3 +146,42 @@ export function sendNoticesSoon(): void {
 	const state = holder[STATE];
 	if (state) void deliverOnce(state);
 }
+
+/** What the outbox page shows about the schedule: when the next daily run is, or that it is off. */
+export interface NoticeSchedule {
+	running: boolean;
+	cron: string | null;
+	/** ISO instant of the next daily run; null when the job is not running. */
+	nextRun: string | null;
+}
+
+export function noticeSchedule(): NoticeSchedule {
+	const state = holder[STATE];
+	if (!state) return { running: false, cron: null, nextRun: null };
+	const next = state.tasks[0]?.getNextRun();
+	return { running: true, cron: state.config.cron, nextRun: next ? next.toISOString() : null };
+}
+
+/**
+ * The daily run, now (an admin's "run now"): in the queue of this process's job when it runs, so
+ * it never overlaps a scheduled run; with a mailer of its own when the job is off. Written
+ * notices are keyed, so running now and then at the scheduled time sends nothing twice.
+ */
+export async function runNoticesNow(
+	source: Record<string, string | undefined> = env
+): Promise<void> {
+	const state = holder[STATE];
+	if (state) return runOnce(state);
+	const config = readNoticeConfig(source);
+	const once: NoticeCron = {
+		config,
+		mailer: createMailer({ smtpUrl: config.smtpUrl, from: config.from }),
+		tasks: [],
+		queue: Promise.resolve()
+	};
+	try {
+		await runOnce(once);
+	} finally {
+		once.mailer.close();
+	}
+}

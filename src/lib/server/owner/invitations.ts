@@ -329,3 +329,35 @@ export async function acceptInvitation(
 }
 
 class InvitationRace extends Error {}
+
+const domainOf = (email: string | null | undefined) =>
+	email?.trim().toLowerCase().split('@')[1] || null;
+
+/**
+ * The e-mail domains a customer is known by: its contact address and its portal users' addresses.
+ * An invitation to any other domain may be a typo or the wrong company, so it is confirmed first.
+ */
+export async function knownCustomerDomains(db: DB, customerId: number): Promise<string[]> {
+	const [customer, users] = await Promise.all([
+		db
+			.selectFrom('customers')
+			.select('contact_email')
+			.where('id', '=', customerId)
+			.executeTakeFirst(),
+		db.selectFrom('users').select('email').where('customer_id', '=', customerId).execute()
+	]);
+	const domains = [customer?.contact_email, ...users.map((u) => u.email)].map(domainOf);
+	return [...new Set(domains.filter((d): d is string => d !== null))].sort();
+}
+
+/** A sentence asking to confirm an invitation outside the known domains, or null when none is needed. */
+export async function inviteDomainQuestion(
+	db: DB,
+	customerId: number,
+	email: string
+): Promise<string | null> {
+	const known = await knownCustomerDomains(db, customerId);
+	const domain = domainOf(email);
+	if (known.length === 0 || (domain && known.includes(domain))) return null;
+	return `${domain ?? email} is not among this customer's known e-mail domains (${known.join(', ')}). Check the address; tick the box and send again if it is right.`;
+}

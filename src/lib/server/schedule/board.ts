@@ -7,6 +7,7 @@ import { lifeExpectedSql, lifeShotsSql, lifeUsedPctOf } from '../dies/life';
 import type { DB } from '../db/connect';
 import type { DieProcess, DieStatus } from '../db/schema';
 import type { DieScope } from '../dies/register';
+import { audienceOf, customerMaySeeJob } from '../owner/customer-fields';
 import { projectTaskDue, viewServiceTask } from '../dies/service-summary';
 import { nowIso } from '../time';
 import { chamberChecks, dieClampRequirement } from './verdict';
@@ -141,6 +142,7 @@ export async function loadBoard(
 	scope: DieScope,
 	now = nowIso()
 ): Promise<BoardData> {
+	const audience = audienceOf(scope);
 	const today = plantDate(now);
 	const from = query.from ?? startOfWeek(now);
 	const to = addDaysToDate(from, query.days);
@@ -274,7 +276,9 @@ export async function loadBoard(
 		},
 		jobs: {
 			columns: BOARD_JOB_COLUMNS,
-			rows: jobs.map((j) => [index.get(j.dieId)!, j.number, j.kind, j.status, j.openedAt])
+			rows: jobs
+				.filter((j) => audience === 'plant' || customerMaySeeJob(j))
+				.map((j) => [index.get(j.dieId)!, j.number, j.kind, j.status, j.openedAt])
 		},
 		service: { columns: BOARD_SERVICE_COLUMNS, rows: service }
 	};

@@ -17,6 +17,8 @@ export interface OpenJob {
 	holdsDie: boolean;
 	/** When the toolroom expects to release the die; null when not said. */
 	expectedReleaseAt: string | null;
+	/** True once the plant shared the job with the die's owner. */
+	shared: boolean;
 }
 
 const known = new WeakMap<object, boolean>();
@@ -46,7 +48,8 @@ export async function listOpenToolroomJobs(db: DB, dieIds?: readonly number[]): 
 			'opened_at',
 			'description',
 			'die_to_toolroom',
-			'expected_release_at'
+			'expected_release_at',
+			'summary_shared'
 		])
 		.where('status', 'in', [...OPEN_STATUSES])
 		.$if(dieIds !== undefined, (q) => q.where('die_id', 'in', [...dieIds!]))
@@ -60,6 +63,7 @@ export async function listOpenToolroomJobs(db: DB, dieIds?: readonly number[]): 
 		openedAt: r.opened_at,
 		description: r.description,
 		holdsDie: r.die_to_toolroom === 1,
-		expectedReleaseAt: r.expected_release_at
+		expectedReleaseAt: r.expected_release_at,
+		shared: r.summary_shared === 1
 	}));
 }

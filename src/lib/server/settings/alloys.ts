@@ -1,8 +1,28 @@
 import type { DB } from '../db/connect';
-import type { AlloyFamily, NewAlloy } from '../db/schema';
+import type { Alloy, AlloyFamily, NewAlloy } from '../db/schema';
 
 export async function listAlloys(db: DB) {
 	return db.selectFrom('alloys').selectAll().orderBy('family').orderBy('name').execute();
+}
+
+export async function findAlloy(db: DB, id: number) {
+	return db.selectFrom('alloys').selectAll().where('id', '=', id).executeTakeFirst();
+}
+
+/** The fields of an alloy as the audit log records them (before → after). */
+export function alloyAuditView(a: Alloy) {
+	return {
+		code: a.code,
+		name: a.name,
+		family: a.family,
+		expectedLifeShots: a.expected_life_shots,
+		densityKgM3: a.density_kg_m3,
+		specificHeatJKgK: a.specific_heat_j_kgk,
+		latentHeatJKg: a.latent_heat_j_kg,
+		solidusC: a.solidus_c,
+		liquidusC: a.liquidus_c,
+		pourTempC: a.pour_temp_c
+	};
 }
 
 export async function saveAlloy(

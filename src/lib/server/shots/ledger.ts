@@ -6,6 +6,7 @@ import { formatShots } from '../../format';
 import { dayOf } from '../time';
 import { plantZone } from '../../plant-time';
 import { maxShotsIn, maxShotsPerHour } from './plausibility';
+import { calendarFieldsValid } from '../../calc/dates';
 
 /** One counted entry as every source hands it in (form, CSV row, API object). */
 export interface ShotInput {
@@ -216,17 +217,6 @@ const LOCAL_DATE_TIME = /^\d{4}-\d{2}-\d{2}[T ]\d{2}:\d{2}(:\d{2}(\.\d{1,9})?)?$
 /** The stored form; a press feed usually sends exactly this, so it gets a fast path. */
 const CANONICAL = /^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}:\d{2}\.\d{3}Z$/;
 const MONTH_DAYS = [31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31];
-
-/** Date.parse rolls 30 February into March and 24:00 into the next day; refuse both. */
-function calendarFieldsValid(text: string): boolean {
-	const year = Number(text.slice(0, 4));
-	const month = Number(text.slice(5, 7));
-	const day = Number(text.slice(8, 10));
-	if (month < 1 || month > 12 || day < 1) return false;
-	const leap = month === 2 && year % 4 === 0 && (year % 100 !== 0 || year % 400 === 0);
-	if (day > MONTH_DAYS[month - 1] + (leap ? 1 : 0)) return false;
-	return text.length < 13 || Number(text.slice(11, 13)) <= 23;
-}
 
 /** Epoch ms of a text already in the stored form, read digit by digit (the ingest hot path). */
 function canonicalMs(t: string): number | null {

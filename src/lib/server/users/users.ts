@@ -10,6 +10,8 @@ export interface NewUserInput {
 	role: Role;
 	customerId: number | null;
 	password: string;
+	/** True when someone else (an admin) chose the password: it must be changed at first sign-in. */
+	mustChangePassword?: boolean;
 }
 
 export class UserInputError extends Error {
@@ -19,6 +21,17 @@ export class UserInputError extends Error {
 	) {
 		super(message);
 	}
+}
+
+/** A customer id from a form must name a customer that exists (a field message, not a 500). */
+export async function requireCustomer(db: DB, customerId: number) {
+	const found = await db
+		.selectFrom('customers')
+		.select('id')
+		.where('id', '=', customerId)
+		.executeTakeFirst();
+	if (!found)
+		throw new UserInputError('customerId', 'There is no such customer; choose one from the list.');
 }
 
 export function normaliseEmail(email: string): string {
@@ -31,6 +44,7 @@ export async function createUser(db: DB, input: NewUserInput, actorId: string | 
 	if (input.role === 'customer' && input.customerId === null) {
 		throw new UserInputError('customerId', 'A tooling owner account must belong to a customer.');
 	}
+	if (input.role === 'customer') await requireCustomer(db, input.customerId!);
 	const existing = await db
 		.selectFrom('users')
 		.select('id')
@@ -46,7 +60,8 @@ export async function createUser(db: DB, input: NewUserInput, actorId: string | 
 			name: input.name.trim(),
 			role: input.role,
 			customer_id: input.role === 'customer' ? input.customerId : null,
-			password_hash: await hashPassword(input.password)
+			password_hash: await hashPassword(input.password),
+			must_change_password: input.mustChangePassword ? 1 : 0
 		})
 		.execute();
 	await writeAudit(db, {
@@ -98,6 +113,7 @@ export async function updateUserRole(
 	if (role === 'customer' && customerId === null) {
 		throw new UserInputError('customerId', 'A tooling owner account must belong to a customer.');
 	}
+	if (role === 'customer') await requireCustomer(db, customerId!);
 	await db.transaction().execute(async (trx) => {
 		await trx
 			.updateTable('users')
@@ -126,12 +142,13 @@ export async function setUserActive(db: DB, id: string, active: boolean, actorId
 	});
 }
 
+/** Sets a password. Set by anyone but the user (an admin), it must be changed at next sign-in. */
 export async function setUserPassword(db: DB, id: string, password: string, actorId: string) {
 	const passwordHash = await hashPassword(password);
 	await db.transaction().execute(async (trx) => {
 		await trx
 			.updateTable('users')
-			.set({ password_hash: passwordHash })
+			.set({ password_hash: passwordHash, must_change_password: actorId === id ? 0 : 1 })
 			.where('id', '=', id)
 			.execute();
 		await trx.deleteFrom('sessions').where('user_id', '=', id).execute();

@@ -9,6 +9,7 @@ import { readNoticeConfig } from '$lib/server/notices/config';
 import { deliverInvitation, type InvitationMailConfig } from '$lib/server/owner/invitation-mail';
 import {
 	createInvitation,
+	inviteDomainQuestion,
 	listInvitations,
 	renewInvitation,
 	withdrawInvitation
@@ -44,7 +45,16 @@ export const actions: Actions = {
 		const form = await superValidate(event.request, zod4(inviteSchema));
 		if (!form.valid) return fail(400, { form });
 		const db = getDb();
-		const created = await createInvitation(db, { ...form.data, invitedBy: admin.id });
+		const question = form.data.confirmDomain
+			? null
+			: await inviteDomainQuestion(db, form.data.customerId, form.data.email);
+		if (question) return setError(form, 'confirmDomain', question, { status: 409 });
+		const created = await createInvitation(db, {
+			customerId: form.data.customerId,
+			name: form.data.name,
+			email: form.data.email,
+			invitedBy: admin.id
+		});
 		if (!created.ok) return setError(form, created.field, created.message);
 		const delivery = await deliverInvitation(
 			db,

@@ -8,7 +8,7 @@ import {
 	resendAllFailed,
 	resendDelivery
 } from '$lib/server/notices/admin';
-import { sendNoticesSoon } from '$lib/server/notices/cron';
+import { noticeSchedule, runNoticesNow, sendNoticesSoon } from '$lib/server/notices/cron';
 import { NOTICE_LEVEL_LABELS } from '$lib/server/notices/types';
 import { outboxQuerySchema, resendSchema } from './schema';
 import type { Actions, PageServerLoad } from './$types';
@@ -28,7 +28,14 @@ export const load: PageServerLoad = async (event) => {
 		}),
 		outboxHealth(db)
 	]);
-	return { query, ...list, size: PAGE_SIZE, health, levelLabels: NOTICE_LEVEL_LABELS };
+	return {
+		query,
+		...list,
+		size: PAGE_SIZE,
+		health,
+		levelLabels: NOTICE_LEVEL_LABELS,
+		schedule: noticeSchedule()
+	};
 };
 
 export const actions: Actions = {
@@ -49,6 +56,12 @@ export const actions: Actions = {
 		});
 		sendNoticesSoon();
 		return { done: 'Queued again; it goes out with the next send.' };
+	},
+	runNow: async (event) => {
+		const admin = requireRole(event, 'admin');
+		await runNoticesNow();
+		await writeAudit(getDb(), { userId: admin.id, action: 'notice.run_now', detail: {} });
+		return { done: 'The notice run finished; new notices are in the list below.' };
 	},
 	resendFailed: async (event) => {
 		const admin = requireRole(event, 'admin');

@@ -5,6 +5,7 @@ import { z } from 'zod';
 import { newUserSchema, resetPasswordSchema } from '$lib/schemas/auth';
 import { requireRole } from '$lib/server/auth/guard';
 import { getDb } from '$lib/server/db';
+import { passwordWeakness } from '$lib/server/auth/password-strength';
 import { listCustomers } from '$lib/server/settings/customers';
 import {
 	createUser,
@@ -45,10 +46,17 @@ export const actions: Actions = {
 		const password = form.data.password;
 		form.data.password = '';
 		if (!form.valid) return fail(400, { createForm: form });
+		const weak = passwordWeakness(password, [form.data.email, form.data.name]);
+		if (weak) return setError(form, 'password', weak);
 		try {
 			await createUser(
 				getDb(),
-				{ ...form.data, password, customerId: form.data.customerId ?? null },
+				{
+					...form.data,
+					password,
+					customerId: form.data.customerId ?? null,
+					mustChangePassword: true
+				},
 				admin.id
 			);
 		} catch (err) {
@@ -96,6 +104,8 @@ export const actions: Actions = {
 		const password = form.data.password;
 		form.data.password = '';
 		if (!form.valid) return fail(400, { resetForm: form });
+		const weak = passwordWeakness(password);
+		if (weak) return setError(form, 'password', weak);
 		await setUserPassword(getDb(), form.data.userId, password, admin.id);
 		return message(form, 'Password reset; tell the user by a channel other than e-mail.');
 	}

@@ -1,8 +1,9 @@
 import { redirect } from '@sveltejs/kit';
-import { message, superValidate } from 'sveltekit-superforms';
+import { message, setError, superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
 import { acceptInviteSchema } from '$lib/schemas/owner';
 import { getLucia } from '$lib/server/auth';
+import { passwordWeakness } from '$lib/server/auth/password-strength';
 import { getDb } from '$lib/server/db';
 import {
 	acceptInvitation,
@@ -31,6 +32,9 @@ export const actions: Actions = {
 		form.data.password = '';
 		form.data.confirmPassword = '';
 		if (!form.valid) return message(form, 'Check the password fields.', { status: 400 });
+		const invite = await findInvitationByToken(getDb(), event.params.token);
+		const weak = passwordWeakness(password, [invite?.email ?? '', invite?.name ?? '']);
+		if (weak) return setError(form, 'password', weak);
 		const result = await acceptInvitation(getDb(), event.params.token, password);
 		if (!result.ok) return message(form, result.message, { status: 400 });
 		const lucia = getLucia();

@@ -12,6 +12,7 @@ import {
 	windowBounds
 } from '$lib/server/schedule/bookings';
 import { nowIso } from '$lib/server/time';
+import { audienceOf, viewFor } from '$lib/server/owner/customer-fields';
 
 // GET /api/v1/bookings?from=YYYY-MM-DD&to=YYYY-MM-DD[&die=&press=&cancelled=1] — bookings that
 // overlap the days from..to (plant days, both included). A customer-bound caller sees its own dies only.
@@ -28,7 +29,11 @@ export const GET = apiRoute(async (event) => {
 		{ customerId: principal.customerId }
 	);
 	const now = nowIso();
-	return json({ from: q.from, to: q.to, bookings: rows.map((b) => bookingApiView(b, now)) });
+	return json({
+		from: q.from,
+		to: q.to,
+		bookings: rows.map((b) => viewFor(audienceOf(principal), 'booking', bookingApiView(b, now)))
+	});
 });
 
 // POST /api/v1/bookings — one booking, checked like the form: 422 when a check blocks it, 409 with
@@ -49,7 +54,7 @@ export const POST = apiRoute(async (event) => {
 	const booking = await getBooking(db, result.id, { customerId: principal.customerId });
 	return json(
 		{
-			booking: bookingApiView(booking!, nowIso()),
+			booking: viewFor(audienceOf(principal), 'booking', bookingApiView(booking!, nowIso())),
 			warnings: result.warnings.map((w) => w.message)
 		},
 		{ status: 201, headers: { location: `/bookings/${result.id}` } }

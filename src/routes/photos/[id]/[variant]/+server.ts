@@ -20,7 +20,7 @@ export const GET: RequestHandler = async (event) => {
 	const etag = `"${photo.sha256.slice(0, 32)}-${variant}"`;
 	const headers = {
 		'content-type': 'image/jpeg',
-		'cache-control': 'private, max-age=86400',
+		'cache-control': 'private, max-age=300',
 		'x-content-type-options': 'nosniff',
 		etag
 	};

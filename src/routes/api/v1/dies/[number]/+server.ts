@@ -8,6 +8,7 @@ import { listHalfLives, loadDieLife } from '$lib/server/dies/life';
 import { countToReview } from '$lib/server/shots/review';
 import { worstTasks } from '$lib/server/dies/register';
 import { nowIso } from '$lib/server/time';
+import { audienceOf, viewFor } from '$lib/server/owner/customer-fields';
 
 // GET /api/v1/dies/{number}: another owner's die answers 404, exactly like a missing one.
 export const GET = apiRoute(async (event) => {
@@ -22,7 +23,7 @@ export const GET = apiRoute(async (event) => {
 		listHalfLives(db, die.id),
 		countToReview(db, [die.id])
 	]);
-	return json({
+	return json(viewFor(audienceOf(principal), 'die', {
 		...dieApiView({
 			id: die.id,
 			number: die.number,
@@ -52,5 +53,5 @@ export const GET = apiRoute(async (event) => {
 			lifeUsedPct: Math.round(h.lifeUsedPct * 100) / 100
 		})),
 		toReview: toReview.get(die.id) ?? 0
-	});
+	}));
 });

@@ -4,6 +4,7 @@ import { ApiError, apiRoute } from '$lib/server/api/respond';
 import { authorizeApi } from '$lib/server/auth/principal';
 import { getDb } from '$lib/server/db';
 import { orderCheckApiView, runOrderCheck } from '$lib/server/schedule/order-check';
+import { audienceOf, viewFor } from '$lib/server/owner/customer-fields';
 
 // GET /api/v1/dies/{number}/order-check?parts=N[&scrapPct=S&shotsPerHour=R&press=P&from=T] — the
 // same verdict as the order-check page and the booking form. Another owner's die answers 404,
@@ -44,5 +45,5 @@ export const GET = apiRoute(async (event) => {
 		if (result.field === 'die') throw new ApiError(404, `There is no die ${event.params.number}.`);
 		throw new ApiError(400, result.message, [{ field: 'press', message: result.message }]);
 	}
-	return json(orderCheckApiView(result.answer));
+	return json(viewFor(audienceOf(principal), 'orderCheck', orderCheckApiView(result.answer)));
 });
