@@ -6,6 +6,7 @@ import type { ToolroomTables } from './schema-toolroom';
 import type { ScheduleTables } from './schema-schedule';
 import type { NoticesTables } from './schema-notices';
 import type { InvitationsTables } from './schema-invitations';
+import type { ImportTables } from './schema-import';
 
 export type { AlloyFamily, DieProcess, DieStatus, HalfSide, Role, ShotSource };
 
@@ -176,7 +177,11 @@ export interface AuditLogTable {
 	detail: Generated<string>;
 }
 
-export interface Database extends ToolroomTables, ScheduleTables, NoticesTables, InvitationsTables {
+export interface Database extends ToolroomTables,
+		ScheduleTables,
+		NoticesTables,
+		InvitationsTables,
+		ImportTables {
 	customers: CustomersTable;
 	users: UsersTable;
 	sessions: SessionsTable;
