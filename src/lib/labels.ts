@@ -81,3 +81,11 @@ export const HEAT_BALANCE_LABELS = {
 	balanced: 'Balanced',
 	ample: 'Cooling to spare'
 } as const;
+/** What an imported row does, as a word and a mark (die-register import preview). */
+export const IMPORT_ROW_LABELS = {
+	create: { word: 'New', mark: '+' },
+	update: { word: 'Changes', mark: '~' },
+	unchanged: { word: 'No change', mark: '=' },
+	skip: { word: 'Skipped', mark: '–' },
+	problem: { word: 'Needs a fix', mark: '✗' }
+} as const;
