@@ -19,6 +19,7 @@ export const NAV: Record<RoleName, NavItem[]> = {
 		{ href: '/admin/tokens', label: 'API tokens' },
 		{ href: '/admin/invites', label: 'Invitations' },
 		{ href: '/admin/outbox', label: 'Outbox' },
+		{ href: '/admin/data', label: 'Import and export' },
 		{ href: '/settings', label: 'Settings' }
 	],
 	toolroom_lead: [
