@@ -97,6 +97,7 @@ export async function run(): Promise<BenchFigure[]> {
 			])
 			.execute();
 		const bytes = await workbook();
+		if (process.env.BENCH_IMPORT_SAVE) fs.writeFileSync(process.env.BENCH_IMPORT_SAVE, bytes);
 		console.log(
 			`  workbook: ${(bytes.byteLength / 1024 / 1024).toFixed(1)} MB, ${DIES} dies, ${DIES * 10} halves, ${DIES * 5} service rows`
 		);
