@@ -26,9 +26,7 @@ async function rebuildSourceCheck(db: Kysely<any>, widen: boolean) {
 		.replace(/create table\s+("?)shot_entries\1/i, 'create table "shot_entries_rebuild"');
 	const extras = await sql<{ sql: string }>`
 		select sql from sqlite_master
-		 where tbl_name = 'shot_entries' and type in ('index', 'trigger') and sql is not null`.execute(
-		db
-	);
+		 where tbl_name = 'shot_entries' and type in ('index', 'trigger') and sql is not null`.execute(db);
 	await sql.raw(rebuilt).execute(db);
 	await sql`insert into shot_entries_rebuild select * from shot_entries`.execute(db);
 	await sql`drop table shot_entries`.execute(db);

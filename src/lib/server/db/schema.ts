@@ -177,11 +177,8 @@ export interface AuditLogTable {
 	detail: Generated<string>;
 }
 
-export interface Database extends ToolroomTables,
-		ScheduleTables,
-		NoticesTables,
-		InvitationsTables,
-		ImportTables {
+export interface Database
+	extends ToolroomTables, ScheduleTables, NoticesTables, InvitationsTables, ImportTables {
 	customers: CustomersTable;
 	users: UsersTable;
 	sessions: SessionsTable;

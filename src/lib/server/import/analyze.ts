@@ -2,7 +2,7 @@ import type SQLite from 'better-sqlite3';
 import { DEFAULT_EXPECTED_LIFE_BY_FAMILY, type AlloyFamily } from '../../calc/life';
 import { IMPORT_FIELDS, type ImportKind } from '../../import-fields';
 import { dieFormSchema, type DieForm } from '../../schemas/die';
-import type { DieProcess, HalfSide } from '../db/schema';
+import type { Die, DieProcess, HalfSide } from '../db/schema';
 import { MAX_SHOTS_PER_ENTRY } from '../shots/ledger';
 import { cellText, readImportDate, readImportNumber, type Cell } from './read-value';
 import type { ImportPayload, ImportPreview, RowPreview, RowProblem } from './types';
@@ -53,22 +53,24 @@ export interface ImportPlan {
 	alloyIds: Map<string, number>;
 }
 
-interface ExistingDie {
-	id: number;
-	number: string;
-	part_name: string;
-	part_number: string | null;
-	customer_id: number;
-	alloy_id: number;
-	process: DieProcess;
-	cavities: number;
-	projected_area_cm2: number;
-	has_slides: number;
-	location: string | null;
-	notes: string | null;
-	expected_life_shots: number | null;
-	total_shots: number;
-}
+/** The register columns the import reads and may change. */
+type ExistingDie = Pick<
+	Die,
+	| 'id'
+	| 'number'
+	| 'part_name'
+	| 'part_number'
+	| 'customer_id'
+	| 'alloy_id'
+	| 'process'
+	| 'cavities'
+	| 'projected_area_cm2'
+	| 'has_slides'
+	| 'location'
+	| 'notes'
+	| 'expected_life_shots'
+	| 'total_shots'
+>;
 
 const DAY = (d: string) => `${d}T00:00:00.000Z`;
 const lower = (s: string) => s.trim().toLowerCase();
