@@ -54,6 +54,8 @@ test('an admin imports 20 dies from the template, maps a column, fixes a row and
 	await expect(page.getByLabel('Opening shot count')).toHaveValue('');
 	await page.getByLabel('Opening shot count').selectOption('Shots on counter');
 	await page.getByRole('button', { name: 'Save the mapping' }).click();
+	// Only the saved mapping reads the counts: 1000·(1+…+20) less die 7's 7 000, whose row waits.
+	await expect(page.getByTestId('import-summary')).toContainText('203,000 opening');
 	await expect(page.getByTestId('import-summary')).toContainText('19 new');
 	await expect(page.getByTestId('import-summary')).toContainText('1 need a fix');
 
@@ -62,6 +64,7 @@ test('an admin imports 20 dies from the template, maps a column, fixes a row and
 	await expect(bad).toContainText('has a comma');
 	await bad.getByLabel('Cavities').fill('2');
 	await bad.getByRole('button', { name: 'Fix' }).click();
+	await expect(page.getByTestId('import-row-dies-8')).toContainText('New');
 	await expect(page.getByTestId('import-summary')).toContainText('20 new');
 	await expect(page.getByTestId('import-summary')).toContainText('0 need a fix');
 	// 1000·(1+…+20) = 210 000 opening shots.

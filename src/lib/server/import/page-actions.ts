@@ -28,7 +28,7 @@ const back = (id: string) => redirect(303, `/dies/import?draft=${id}`);
 
 async function openDraft(db: DB, data: FormData, userId: string): Promise<Draft | Fail> {
 	const id = draftIdSchema.safeParse(data.get('draft'));
-	if (!id.success) return bad('That import is not known. Upload the file again.', 'draft', 404);
+	if (!id.success) return bad('That import is not known. Upload the file again.', 'draft');
 	const draft = await loadDraft(db, id.data, userId);
 	if (!draft) return bad('That import is not known. Upload the file again.', 'draft', 404);
 	if (draft.state !== 'open')
