@@ -88,7 +88,7 @@ describe('export everything, import into an empty database', () => {
 		// Passwords stay out of the archive.
 		const users = await target.selectFrom('users').select('password_hash').execute();
 		expect(users.every((u) => u.password_hash === '!')).toBe(true);
-	});
+	}, 180_000);
 
 	it('refuses to restore into a database that already has a plant, and writes nothing', async () => {
 		const source = await openTestDatabase();

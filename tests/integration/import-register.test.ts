@@ -179,6 +179,8 @@ describe('die register import', () => {
 			.executeTakeFirstOrThrow();
 		expect(Number(ledger.s)).toBe(180_300_000 - 20_000 - 30_000 + 30_500);
 		expect(Number(ledger.n)).toBe(599);
+		// Not production of the import day: the daily roll-up (trailing rates, due dates) stays empty.
+		expect(await db.selectFrom('shot_daily').selectAll().execute()).toEqual([]);
 		const d1042 = await db
 			.selectFrom('dies')
 			.innerJoin('die_halves', 'die_halves.die_id', 'dies.id')

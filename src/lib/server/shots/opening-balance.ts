@@ -11,8 +11,11 @@ export interface OpeningBalance {
 
 /**
  * Writes a die's opening balance — the shots it made before Castellan — as a ledger entry of
- * source 'opening', with the daily roll-up, the die total and its current halves' counts in the
- * caller's transaction (the sibling of recordShots for a die that has just been registered).
+ * source 'opening', with the die total and its current halves' counts, in the caller's
+ * transaction (the sibling of recordShots for a die that has just been registered).
+ * The daily roll-up is left alone on purpose: it holds production per day, and years of shots
+ * on the import day would make the trailing rate (and every projected due date) absurd; charts
+ * built back from the kept total start at the opening count, as they should.
  * A current half gets the shots since it went in: opening minus the die count at its install.
  * "Last counted at" stays empty: an opening balance is no press reading, so the first real count
  * after it is not rate-checked against the import time.
@@ -33,12 +36,6 @@ export function writeOpeningBalance(raw: SQLite.Database, entry: OpeningBalance)
 			 values (?, null, ?, ?, null, null, 'opening', null, ?, null, ?, ?)`
 		)
 		.run(entry.dieId, entry.at, entry.shots, entry.userId, entry.note, entry.at);
-	raw
-		.prepare(
-			`insert into shot_daily (die_id, day, shots) values (?, ?, ?)
-			 on conflict (die_id, day) do update set shots = shots + excluded.shots`
-		)
-		.run(entry.dieId, entry.at.slice(0, 10), entry.shots);
 	raw
 		.prepare('update dies set total_shots = total_shots + ?, updated_at = ? where id = ?')
 		.run(entry.shots, entry.at, entry.dieId);
