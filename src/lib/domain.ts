@@ -4,7 +4,7 @@ export type DieStatus = 'ready' | 'running' | 'in_toolroom' | 'held' | 'retired'
 export type DieProcess = 'hot_chamber' | 'cold_chamber';
 export type AlloyFamily = 'zinc' | 'magnesium' | 'aluminium' | 'copper';
 export type HalfSide = 'cover' | 'ejector';
-export type ShotSource = 'manual' | 'csv' | 'api' | 'correction' | 'seed';
+export type ShotSource = 'manual' | 'csv' | 'api' | 'correction' | 'seed' | 'opening';
 export type UnitSystem = 'metric' | 'us';
 /** Why a die was retired; only the first two are wear failures in the fleet life statistics. */
 export type RetirementReason =

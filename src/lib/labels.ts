@@ -152,4 +152,11 @@ export const PHOTO_STAGE_LABELS = {
 	before: { word: 'Before', shape: '◁' },
 	during: { word: 'During', shape: '◇' },
 	after: { word: 'After', shape: '▷' }
+/** What an imported row does, as a word and a mark (die-register import preview). */
+export const IMPORT_ROW_LABELS = {
+	create: { word: 'New', mark: '+' },
+	update: { word: 'Changes', mark: '~' },
+	unchanged: { word: 'No change', mark: '=' },
+	skip: { word: 'Skipped', mark: '–' },
+	problem: { word: 'Needs a fix', mark: '✗' }
 } as const;

@@ -20,6 +20,7 @@ export const NAV: Record<RoleName, NavItem[]> = {
 		{ href: '/admin/invites', label: 'Invitations' },
 		{ href: '/admin/outbox', label: 'Outbox' },
 		{ href: '/admin/audit', label: 'Audit log' },
+		{ href: '/admin/data', label: 'Import and export' },
 		{ href: '/settings', label: 'Settings' }
 	],
 	toolroom_lead: [

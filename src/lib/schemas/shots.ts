@@ -1,13 +1,14 @@
 import { z } from 'zod';
 import { decimalNumber, optionalDecimalNumber, optionalWholeNumber, wholeNumber } from './numbers';
 
-export const SHOT_SOURCES = ['manual', 'csv', 'api', 'correction', 'seed'] as const;
+export const SHOT_SOURCES = ['manual', 'csv', 'api', 'correction', 'seed', 'opening'] as const;
 export const SHOT_SOURCE_LABELS: Record<(typeof SHOT_SOURCES)[number], string> = {
 	manual: 'Press-run form',
 	csv: 'CSV upload',
 	api: 'API',
 	correction: 'Correction',
-	seed: 'Imported'
+	seed: 'Imported',
+	opening: 'Opening balance'
 };
 
 /** `YYYY-MM-DDTHH:MM` as a datetime-local input sends it (read as plant time). */

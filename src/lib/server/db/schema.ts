@@ -15,6 +15,7 @@ import type { ScheduleTables } from './schema-schedule';
 import type { NoticesTables } from './schema-notices';
 import type { InvitationsTables } from './schema-invitations';
 import type { PlantSettingsTables } from './schema-settings';
+import type { ImportTables } from './schema-import';
 
 export type { AlloyFamily, DieProcess, DieStatus, HalfSide, RetirementReason, Role, ShotSource };
 
@@ -221,6 +222,7 @@ export interface AuditLogTable {
 
 export interface Database
 	extends ToolroomTables, ScheduleTables, NoticesTables, InvitationsTables, PlantSettingsTables {
+	extends ToolroomTables, ScheduleTables, NoticesTables, InvitationsTables, ImportTables {
 	customers: CustomersTable;
 	users: UsersTable;
 	sessions: SessionsTable;

@@ -1,0 +1,48 @@
+import type SQLite from 'better-sqlite3';
+
+export interface OpeningBalance {
+	dieId: number;
+	shots: number;
+	/** When the balance is entered (the import); the entry is dated on it. */
+	at: string;
+	userId: string | null;
+	note: string;
+}
+
+/**
+ * Writes a die's opening balance — the shots it made before Castellan — as a ledger entry of
+ * source 'opening', with the die total and its current halves' counts, in the caller's
+ * transaction (the sibling of recordShots for a die that has just been registered).
+ * The daily roll-up is left alone on purpose: it holds production per day, and years of shots
+ * on the import day would make the trailing rate (and every projected due date) absurd; charts
+ * built back from the kept total start at the opening count, as they should.
+ * A current half gets the shots since it went in: opening minus the die count at its install.
+ * "Last counted at" stays empty: an opening balance is no press reading, so the first real count
+ * after it is not rate-checked against the import time.
+ */
+export function writeOpeningBalance(raw: SQLite.Database, entry: OpeningBalance): void {
+	if (!Number.isSafeInteger(entry.shots) || entry.shots < 0) {
+		throw new Error(`An opening balance must be a whole number of shots, 0 or more.`);
+	}
+	if (entry.shots === 0) return;
+	const has = raw
+		.prepare('select count(*) as n from shot_entries where die_id = ?')
+		.get(entry.dieId) as { n: number };
+	if (has.n > 0) throw new Error('A die that already has ledger entries takes no opening balance.');
+	raw
+		.prepare(
+			`insert into shot_entries (die_id, machine_id, counted_at, shots, counter_start, counter_end,
+			   source, idem_key, entered_by, token_id, note, created_at)
+			 values (?, null, ?, ?, null, null, 'opening', null, ?, null, ?, ?)`
+		)
+		.run(entry.dieId, entry.at, entry.shots, entry.userId, entry.note, entry.at);
+	raw
+		.prepare('update dies set total_shots = total_shots + ?, updated_at = ? where id = ?')
+		.run(entry.shots, entry.at, entry.dieId);
+	raw
+		.prepare(
+			`update die_halves set shots = shots + max(0, ? - die_shots_at_install)
+			  where die_id = ? and active = 1`
+		)
+		.run(entry.shots, entry.dieId);
+}
