@@ -6,6 +6,7 @@ import * as createSchedule from './2026_12_01_2310_create_schedule';
 import * as createNotices from './2026_12_01_2320_create_notices';
 import * as addShotIndexes from './2026_12_01_2330_add_shot_indexes';
 import * as createInvitations from './2026_12_01_2340_create_invitations';
+import * as createPressFeed from './2026_12_03_1800_create_press_feed';
 
 // Every migration is listed here by name so the same list works in the built app, in Vitest and
 // in tsx scripts (none of which share a way to glob the folder). Add new ones at the end.
@@ -16,5 +17,6 @@ export const migrations: Record<string, Migration> = {
 	'2026_12_01_2310_create_schedule': createSchedule,
 	'2026_12_01_2320_create_notices': createNotices,
 	'2026_12_01_2330_add_shot_indexes': addShotIndexes,
-	'2026_12_01_2340_create_invitations': createInvitations
+	'2026_12_01_2340_create_invitations': createInvitations,
+	'2026_12_03_1800_create_press_feed': createPressFeed
 };

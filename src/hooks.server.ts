@@ -6,6 +6,7 @@ import { getLucia } from '$lib/server/auth';
 import { getDb } from '$lib/server/db';
 import { migrateToLatest } from '$lib/server/db/connect';
 import { startNoticeCron } from '$lib/server/notices/cron';
+import { startPressIdleCron } from '$lib/server/schedule/press-idle-cron';
 
 export const init: ServerInit = async () => {
 	if (building) return;
@@ -13,6 +14,8 @@ export const init: ServerInit = async () => {
 	if (applied.length) console.log(`Castellan: applied migrations ${applied.join(', ')}`);
 	// The notice job lives in the server process, once per process (NOTICE_CRON=off stops it).
 	if (!building) startNoticeCron();
+	// Running dies whose press has gone quiet go back to ready (PRESS_IDLE_CHECK=off stops it).
+	startPressIdleCron();
 };
 
 const authenticate: Handle = async ({ event, resolve }) => {

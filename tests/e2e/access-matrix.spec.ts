@@ -75,6 +75,7 @@ function parameters() {
 		press: one<{ id: number }>(
 			'select machine_id as id from shot_entries where machine_id is not null group by machine_id order by count(*) desc limit 1'
 		).id,
+		pressName: one<{ name: string }>('select name from machines order by id limit 1').name,
 		job: one<{ number: string }>(
 			'select toolroom_jobs.number from toolroom_jobs join dies on dies.id = toolroom_jobs.die_id order by toolroom_jobs.id limit 1'
 		).number,
@@ -91,6 +92,7 @@ function concrete(routeId: string, p: ReturnType<typeof parameters>): string {
 		.replace('/photos/[id]', `/photos/${p.photo}`)
 		.replace('/bookings/[id]', `/bookings/${p.booking}`)
 		.replace('/presses/[id]', `/presses/${p.press}`)
+		.replace('[press]', encodeURIComponent(p.pressName))
 		.replace('[number]', 'D-0101')
 		.replace('[job]', p.job)
 		.replace('[token]', 'no-such-invitation')

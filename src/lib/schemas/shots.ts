@@ -149,7 +149,11 @@ export const apiShotEntrySchema = z.strictObject({
 		.trim()
 		.min(1, 'key must not be empty (leave it out instead).')
 		.max(200, 'key has at most 200 characters.')
-		.nullish()
+		.nullish(),
+	press: z.string().trim().max(40).nullish(),
+	counterStart: z.number().int().nonnegative().nullish(),
+	counterEnd: z.number().int().nonnegative().nullish(),
+	counterResetReason: z.string().trim().max(500).nullish()
 });
 export type ApiShotEntry = z.infer<typeof apiShotEntrySchema>;
 

@@ -1,8 +1,11 @@
 import { apiShotEntrySchema } from '../../schemas/shots';
 import type { DB } from '../db/connect';
+import { notePressFeed } from '../schedule/press-feed';
+import { nowIso } from '../time';
 import {
 	isUnknownDieIssue,
 	MAX_BATCH,
+	normalizeInstant,
 	recordShots,
 	type LedgerActor,
 	type ShotInput,
@@ -81,7 +84,16 @@ export async function ingestShotBody(
 		const e = parsed.data;
 		valid.push({
 			index,
-			input: { die: e.die, shots: e.shots, countedAt: e.countedAt, machine: e.machine, key: e.key }
+			input: {
+				die: e.die,
+				shots: e.shots,
+				countedAt: e.countedAt,
+				machine: e.press ?? e.machine,
+				key: e.key,
+				counterStart: e.counterStart,
+				counterEnd: e.counterEnd,
+				note: e.counterResetReason
+			}
 		});
 	});
 
@@ -111,6 +123,19 @@ export async function ingestShotBody(
 		};
 	}
 	if (!result || !result.ok) throw new Error('Unreachable: no issues and no result.');
+	const fed = inputs.flatMap((input, i) =>
+		result.outcome[i] === 'counted' && input.machine
+			? [
+					{
+						press: input.machine,
+						die: input.die,
+						counterEnd: input.counterEnd ?? null,
+						countedAt: (input.countedAt && normalizeInstant(input.countedAt)) || now || nowIso()
+					}
+				]
+			: []
+	);
+	await notePressFeed(db, fed, actor.tokenId);
 	return {
 		status: 201,
 		body: { accepted: result.accepted, duplicates: result.duplicates, dies: result.dies }
