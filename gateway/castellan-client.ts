@@ -30,7 +30,9 @@ export function toApiEntry(e: GatewayEntry) {
 		countedAt: e.countedAt,
 		key: e.key,
 		...(e.resetFrom !== null
-			? { counterResetReason: `Press counter reset or rolled over (was ${e.resetFrom}); reported by the press gateway.` }
+			? {
+					counterResetReason: `Press counter reset or rolled over (was ${e.resetFrom}); reported by the press gateway.`
+				}
 			: {})
 	};
 }
@@ -75,12 +77,17 @@ export function castellanClient(
 				const refused = new Map<number, string>();
 				for (const i of body.issues ?? []) {
 					if (i.index >= 0 && i.index < entries.length) {
-						refused.set(i.index, `${refused.has(i.index) ? refused.get(i.index) + ' ' : ''}${i.message}`);
+						refused.set(
+							i.index,
+							`${refused.has(i.index) ? refused.get(i.index) + ' ' : ''}${i.message}`
+						);
 					}
 				}
 				// A single entry answered 404/409 without a row list: that entry is the one refused.
-				if (refused.size === 0 && entries.length === 1) refused.set(0, body.error ?? `HTTP ${res.status}`);
-				if (refused.size) return { kind: 'refused', status: res.status, refused, error: body.error };
+				if (refused.size === 0 && entries.length === 1)
+					refused.set(0, body.error ?? `HTTP ${res.status}`);
+				if (refused.size)
+					return { kind: 'refused', status: res.status, refused, error: body.error };
 			}
 			return { kind: 'retry', status: res.status, error: body.error ?? `HTTP ${res.status}` };
 		},

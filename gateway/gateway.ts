@@ -1,22 +1,22 @@
 // The press gateway at run time: subscribes to the presses' topics on the plant's MQTT broker,
 // keeps the counter bookkeeping (press-counters.ts) in a state file, and delivers closed intervals
 // to Castellan's shot API. No count is lost and none is doubled:
-//  - a QoS 1 message is acknowledged to the broker only after the state that took it in is written
-//    (a kill before that makes the broker deliver it again; a redelivered reading is stale), and
-//    closed intervals are written, flushed to disk, before they are sent;
+//  - a QoS 1 message is acknowledged to the broker only after it is in the journal (a kill before
+//    that makes the broker deliver it again; a redelivered reading is stale), and closed intervals
+//    are written with the whole state, flushed to disk, before they are sent;
 //  - an interval keeps its idempotency key from the moment it is closed, and leaves the outbox
 //    only when Castellan has acknowledged it, so a restart or an outage re-sends the same keys.
 import mqtt, { type IPublishPacket, type MqttClient } from 'mqtt';
 import type { CastellanClient } from './castellan-client';
 import {
 	adoptMountedDie,
-	changeDie,
+	applyRecord,
 	closeAllIntervals,
 	pressesNeedingDie,
-	takeReading,
-	type GatewayState
+	type GatewayState,
+	type PressRecord
 } from './press-counters';
-import { loadState, saveState } from './state-file';
+import { Journal, loadState, saveState } from './state-file';
 
 export interface GatewayConfig {
 	mqttUrl: string;
@@ -57,6 +57,16 @@ export async function startGateway(config: GatewayConfig): Promise<Gateway> {
 	const retryMax = config.retryMaxMs ?? 60_000;
 	const prefix = config.topicPrefix.replace(/\/+$/, '');
 	const state: GatewayState = loadState(config.stateFile);
+	const journalFile = `${config.stateFile}.journal`;
+	const replayed = Journal.replay(journalFile, state);
+	if (replayed) log(`replayed ${replayed} message(s) from the journal.`);
+	const journal = new Journal(journalFile);
+	/** Writes the whole state (flushed to disk); the journal is then empty. */
+	const checkpoint = () => {
+		saveState(config.stateFile, state);
+		journal.clear();
+	};
+	checkpoint();
 	let delivered = 0;
 	let lastError: string | null = null;
 	let stopped = false;
@@ -68,29 +78,42 @@ export async function startGateway(config: GatewayConfig): Promise<Gateway> {
 		log(line);
 	};
 
-	function takeMessage(topic: string, payload: Buffer) {
-		if (!topic.startsWith(prefix + '/')) return;
+	/** A broker message as a record (its time fixed now, so a replay reads it the same), or null. */
+	function readMessage(topic: string, payload: Buffer): PressRecord | null {
+		if (!topic.startsWith(prefix + '/')) return null;
 		const [press, kind, ...rest] = topic.slice(prefix.length + 1).split('/');
-		if (!press || rest.length) return;
+		if (!press || rest.length || (kind !== 'counter' && kind !== 'die')) return null;
 		let body: { counter?: unknown; at?: unknown; die?: unknown };
 		try {
 			body = JSON.parse(payload.toString('utf8'));
 		} catch {
 			reportOnce(`json:${press}`, `press ${press}: a message on ${topic} is not JSON; ignored.`);
-			return;
+			return null;
 		}
 		const at = typeof body.at === 'string' ? body.at : new Date().toISOString();
-		if (kind === 'counter') {
-			const outcome = takeReading(state, press, body.counter, at);
-			if (outcome === 'invalid') {
-				log(`press ${press}: counter reading ${JSON.stringify(body)} is not a whole number ≥ 0 with a time; ignored.`);
-			} else if (outcome === 'reset') {
-				log(`press ${press}: counter went down to ${String(body.counter)} — a reset or rollover; a new interval starts at 0.`);
-			}
-		} else if (kind === 'die') {
-			const die = typeof body.die === 'string' && body.die.trim() ? body.die.trim() : null;
-			changeDie(state, press, die, at, body.counter);
-			log(`press ${press}: die ${die ?? '(none)'} mounted.`);
+		if (kind === 'counter') return { press, kind, counter: body.counter, at };
+		const die = typeof body.die === 'string' && body.die.trim() ? body.die.trim() : null;
+		return {
+			press,
+			kind,
+			die,
+			at,
+			...(body.counter !== undefined ? { counter: body.counter } : {})
+		};
+	}
+
+	function takeRecord(r: PressRecord) {
+		const outcome = applyRecord(state, r);
+		if (outcome === 'invalid' && r.kind === 'counter') {
+			log(
+				`press ${r.press}: counter reading ${JSON.stringify(r.counter)} at ${r.at} is not a whole number ≥ 0 with a time; ignored.`
+			);
+		} else if (outcome === 'reset' && r.kind === 'counter') {
+			log(
+				`press ${r.press}: counter went down to ${String(r.counter)} — a reset or rollover; a new interval starts at 0.`
+			);
+		} else if (r.kind === 'die') {
+			log(`press ${r.press}: die ${r.die ?? '(none)'} mounted.`);
 		}
 	}
 
@@ -104,7 +127,9 @@ export async function startGateway(config: GatewayConfig): Promise<Gateway> {
 			const result = await config.castellan.postEntries(batch);
 			if (result.kind === 'retry') {
 				lastError = `Castellan: ${result.error ?? 'no answer'}`;
-				log(`delivery of ${batch.length} entries failed (${lastError}); retrying in ${(retryDelay / 1000).toFixed(1)} s.`);
+				log(
+					`delivery of ${batch.length} entries failed (${lastError}); retrying in ${(retryDelay / 1000).toFixed(1)} s.`
+				);
 				if (!retryTimer && !stopped) {
 					retryTimer = setTimeout(() => {
 						retryTimer = null;
@@ -125,11 +150,13 @@ export async function startGateway(config: GatewayConfig): Promise<Gateway> {
 					const reason = result.refused?.get(i);
 					if (reason) {
 						state.refused.push({ entry: batch[i], reason, at: now });
-						log(`entry ${batch[i].key} (${batch[i].die}, ${batch[i].shots} shots) refused by Castellan: ${reason}`);
+						log(
+							`entry ${batch[i].key} (${batch[i].die}, ${batch[i].shots} shots) refused by Castellan: ${reason}`
+						);
 					} else keep.push(batch[i]);
 				}
 				state.outbox.splice(0, batch.length, ...keep);
-				saveState(config.stateFile, state);
+				checkpoint();
 				continue;
 			}
 			state.outbox.splice(0, batch.length);
@@ -138,7 +165,7 @@ export async function startGateway(config: GatewayConfig): Promise<Gateway> {
 				const e = batch[w.index];
 				if (e) log(`entry ${e.key} (${e.die}) counted, marked for review: ${w.message}`);
 			}
-			saveState(config.stateFile, state);
+			checkpoint();
 		}
 	}
 	function deliver(): Promise<void> {
@@ -156,7 +183,10 @@ export async function startGateway(config: GatewayConfig): Promise<Gateway> {
 			if (die === undefined) continue; // Castellan unreachable: ask again next flush.
 			adoptMountedDie(state, press, die);
 			if (die === null) {
-				reportOnce(`nodie:${press}`, `press ${press}: counts arrive but no die is mounted on it (neither the press nor Castellan names one); they are kept as unassigned.`);
+				reportOnce(
+					`nodie:${press}`,
+					`press ${press}: counts arrive but no die is mounted on it (neither the press nor Castellan names one); they are kept as unassigned.`
+				);
 			}
 		}
 	}
@@ -174,9 +204,12 @@ export async function startGateway(config: GatewayConfig): Promise<Gateway> {
 		await askCastellanForDies();
 		closeAllIntervals(state);
 		if (state.unassigned.length) {
-			reportOnce(`unassigned:${state.unassigned.length}`, `${state.unassigned.length} interval(s) kept without a die (see the state file's "unassigned").`);
+			reportOnce(
+				`unassigned:${state.unassigned.length}`,
+				`${state.unassigned.length} interval(s) kept without a die (see the state file's "unassigned").`
+			);
 		}
-		saveState(config.stateFile, state);
+		checkpoint();
 		await deliver();
 	}
 
@@ -189,13 +222,19 @@ export async function startGateway(config: GatewayConfig): Promise<Gateway> {
 	});
 	client.handleMessage = (packet: IPublishPacket, done) => {
 		try {
-			takeMessage(packet.topic, Buffer.isBuffer(packet.payload) ? packet.payload : Buffer.from(packet.payload));
+			const record = readMessage(
+				packet.topic,
+				Buffer.isBuffer(packet.payload) ? packet.payload : Buffer.from(packet.payload)
+			);
+			if (record) {
+				// Journalled before it is acknowledged: a kill before the write makes the broker deliver
+				// it again (and a redelivered reading is stale once taken in).
+				journal.append(record);
+				takeRecord(record);
+			}
 		} catch (err) {
 			log(`message on ${packet.topic} could not be taken in: ${(err as Error).message}`);
 		}
-		// Acknowledged to the broker only once the state that took it in is written: a kill before
-		// that makes the broker deliver it again (and a redelivered reading is stale).
-		saveState(config.stateFile, state, false);
 		done();
 	};
 	client.on('connect', (ack) => {
@@ -238,7 +277,8 @@ export async function startGateway(config: GatewayConfig): Promise<Gateway> {
 			clearInterval(timer);
 			if (retryTimer) clearTimeout(retryTimer);
 			await delivering;
-			saveState(config.stateFile, state);
+			checkpoint();
+			journal.close();
 			await client.endAsync();
 		}
 	};

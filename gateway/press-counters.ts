@@ -55,13 +55,7 @@ export interface GatewayState {
 	refused: RefusedEntry[];
 }
 
-export type ReadingOutcome =
-	| 'baseline'
-	| 'counted'
-	| 'unchanged'
-	| 'reset'
-	| 'stale'
-	| 'invalid';
+export type ReadingOutcome = 'baseline' | 'counted' | 'unchanged' | 'reset' | 'stale' | 'invalid';
 
 export function emptyState(): GatewayState {
 	return { version: 1, presses: {}, outbox: [], unassigned: [], refused: [] };
@@ -182,4 +176,16 @@ export function pressesNeedingDie(state: GatewayState): string[] {
 	return Object.entries(state.presses)
 		.filter(([, p]) => p.dieSource !== 'press' && p.open !== null)
 		.map(([name]) => name);
+}
+
+/** A message as taken in: what the journal keeps, so a replay gives the same state. */
+export type PressRecord =
+	| { press: string; kind: 'counter'; counter: unknown; at: string }
+	| { press: string; kind: 'die'; die: string | null; at: string; counter?: unknown };
+
+/** Applies one record; the outcome of a counter reading, or null for a die message. */
+export function applyRecord(state: GatewayState, r: PressRecord): ReadingOutcome | null {
+	if (r.kind === 'counter') return takeReading(state, r.press, r.counter, r.at);
+	changeDie(state, r.press, r.die, r.at, r.counter);
+	return null;
 }

@@ -13,7 +13,9 @@ import { startGateway } from '../gateway/gateway';
 const env = process.env;
 const token = env.CASTELLAN_TOKEN;
 if (!token) {
-	console.error('Error: set CASTELLAN_TOKEN to an API token with the shots:write scope (npm run token:add).');
+	console.error(
+		'Error: set CASTELLAN_TOKEN to an API token with the shots:write scope (npm run token:add).'
+	);
 	process.exit(2);
 }
 const flushSeconds = Number(env.GATEWAY_FLUSH_SECONDS ?? 60);

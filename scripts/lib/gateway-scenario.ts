@@ -43,7 +43,7 @@ export interface GatewayScenarioReport {
 	settledMs: number;
 }
 
-async function freePort(): Promise<number> {
+export async function freePort(): Promise<number> {
 	return new Promise((resolve, reject) => {
 		const s = net.createServer();
 		s.once('error', reject);
@@ -59,7 +59,11 @@ const debug = (line: string) => {
 };
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
-function waitForLine(child: ChildProcess, pattern: RegExp, timeoutMs: number): Promise<RegExpExecArray> {
+export function waitForLine(
+	child: ChildProcess,
+	pattern: RegExp,
+	timeoutMs: number
+): Promise<RegExpExecArray> {
 	return new Promise((resolve, reject) => {
 		const timer = setTimeout(() => reject(new Error(`no "${pattern}" in time`)), timeoutMs);
 		const lines = createInterface({ input: child.stdout! });
@@ -75,7 +79,7 @@ function waitForLine(child: ChildProcess, pattern: RegExp, timeoutMs: number): P
 }
 
 /** The plant: one owner, three presses, four dies with halves, a booking for the press that does not name its die. */
-async function makePlant(file: string) {
+export async function makeGatewayTestPlant(file: string) {
 	const db = openDatabase(file);
 	await migrateToLatest(db);
 	const customer = await db
@@ -139,7 +143,11 @@ async function makePlant(file: string) {
 				.execute();
 		}
 	}
-	const cc1 = await db.selectFrom('machines').select('id').where('name', '=', 'CC-1').executeTakeFirstOrThrow();
+	const cc1 = await db
+		.selectFrom('machines')
+		.select('id')
+		.where('name', '=', 'CC-1')
+		.executeTakeFirstOrThrow();
 	await db
 		.insertInto('press_bookings')
 		.values({
@@ -230,7 +238,9 @@ async function mosquittoBroker(dir: string): Promise<Broker> {
 	return { url: `mqtt://127.0.0.1:${port}`, stop, start, close: stop };
 }
 
-export async function runGatewayScenario(opts: GatewayScenarioOptions): Promise<GatewayScenarioReport> {
+export async function runGatewayScenario(
+	opts: GatewayScenarioOptions
+): Promise<GatewayScenarioReport> {
 	const ticks = opts.ticks ?? 480;
 	const tickMs = opts.tickMs ?? 20;
 	const faults = opts.faults ?? true;
@@ -243,14 +253,19 @@ export async function runGatewayScenario(opts: GatewayScenarioOptions): Promise<
 	let broker: Broker | null = null;
 	let plant: FakePlant | null = null;
 	try {
-		await makePlant(file);
+		await makeGatewayTestPlant(file);
 
 		// Castellan's ingest path.
 		const apiPort = await freePort();
 		const startApi = async () => {
 			const child = spawn(process.execPath, ['--import', 'tsx', 'scripts/lib/ingest-server.ts'], {
 				cwd: ROOT,
-				env: { ...process.env, DATABASE_PATH: file, PORT: String(apiPort), INGEST_EXIT_WITH_PARENT: '1' },
+				env: {
+					...process.env,
+					DATABASE_PATH: file,
+					PORT: String(apiPort),
+					INGEST_EXIT_WITH_PARENT: '1'
+				},
 				stdio: ['pipe', 'pipe', 'pipe']
 			});
 			child.stdin!.on('error', () => {});
@@ -357,16 +372,20 @@ export async function runGatewayScenario(opts: GatewayScenarioOptions): Promise<
 		for (const p of plant.presses) await p.report(at());
 
 		const truth = new Map<string, number>();
-		for (const p of plant.presses) for (const [die, n] of p.truth) truth.set(die, (truth.get(die) ?? 0) + n);
+		for (const p of plant.presses)
+			for (const [die, n] of p.truth) truth.set(die, (truth.get(die) ?? 0) + n);
 
 		// Wait until the ledger holds what the presses counted (or give up and report the gap).
 		const started = Date.now();
 		const read = new SQLite(file, { readonly: true });
 		const totals = () =>
 			new Map(
-				(read.prepare('select number, total_shots from dies').all() as { number: string; total_shots: number }[]).map(
-					(r) => [r.number, r.total_shots]
-				)
+				(
+					read.prepare('select number, total_shots from dies').all() as {
+						number: string;
+						total_shots: number;
+					}[]
+				).map((r) => [r.number, r.total_shots])
 			);
 		let ledger = totals();
 		while (Date.now() - started < 60_000) {
@@ -378,14 +397,19 @@ export async function runGatewayScenario(opts: GatewayScenarioOptions): Promise<
 		// A little longer: anything still arriving would be a doubled count.
 		await sleep(800);
 		ledger = totals();
-		const entries = (read.prepare('select count(*) as n from shot_entries').get() as { n: number }).n;
+		const entries = (read.prepare('select count(*) as n from shot_entries').get() as { n: number })
+			.n;
 		const keysDuplicated = (
 			read
-				.prepare('select count(*) as n from (select idem_key from shot_entries where idem_key is not null group by idem_key having count(*) > 1)')
+				.prepare(
+					'select count(*) as n from (select idem_key from shot_entries where idem_key is not null group by idem_key having count(*) > 1)'
+				)
 				.get() as { n: number }
 		).n;
 		const resetEntries = (
-			read.prepare("select count(*) as n from shot_entries where idem_key like 'gw:HC-2:1:%'").get() as { n: number }
+			read
+				.prepare("select count(*) as n from shot_entries where idem_key like 'gw:HC-2:1:%'")
+				.get() as { n: number }
 		).n;
 		read.close();
 

@@ -4,12 +4,19 @@
 // in-process aedes broker and against Debian's mosquitto (installed by .ci/run).
 import fs from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { MOSQUITTO, runGatewayScenario, type GatewayScenarioReport } from '../../scripts/lib/gateway-scenario';
+import {
+	MOSQUITTO,
+	runGatewayScenario,
+	type GatewayScenarioReport
+} from '../../scripts/lib/gateway-scenario';
 
 function expectExactCounts(r: GatewayScenarioReport) {
 	const context = `faults: ${r.faults.join('; ')}\ngateway log (last lines):\n${r.gatewayLog.slice(-30).join('\n')}`;
 	// Four dies counted: D-9001 then D-9002 on HC-1, D-9003 on HC-2, D-9004 on CC-1.
-	expect(r.dies.map((d) => d.die), context).toEqual(['D-9001', 'D-9002', 'D-9003', 'D-9004']);
+	expect(
+		r.dies.map((d) => d.die),
+		context
+	).toEqual(['D-9001', 'D-9002', 'D-9003', 'D-9004']);
 	for (const d of r.dies) {
 		expect(d.truth, `${d.die} ran`).toBeGreaterThan(0);
 		expect(d.ledger, `${d.die}: ledger total vs press counters\n${context}`).toBe(d.truth);
@@ -20,11 +27,13 @@ function expectExactCounts(r: GatewayScenarioReport) {
 	expect(r.refused, context).toBe(0);
 	expect(r.unassigned).toBe(0);
 	expect(r.outbox).toBe(0);
-	expect(r.faults).toEqual(expect.arrayContaining([
-		expect.stringContaining('broker stopped'),
-		expect.stringContaining('gateway SIGKILLed'),
-		expect.stringContaining('Castellan unreachable')
-	]));
+	expect(r.faults).toEqual(
+		expect.arrayContaining([
+			expect.stringContaining('broker stopped'),
+			expect.stringContaining('gateway SIGKILLed'),
+			expect.stringContaining('Castellan unreachable')
+		])
+	);
 }
 
 describe('press gateway: no lost and no doubled counts across faults', () => {
@@ -32,7 +41,11 @@ describe('press gateway: no lost and no doubled counts across faults', () => {
 		expectExactCounts(await runGatewayScenario({ broker: 'aedes' }));
 	}, 180_000);
 
-	it.skipIf(!fs.existsSync(MOSQUITTO))('with Debian\'s mosquitto', async () => {
-		expectExactCounts(await runGatewayScenario({ broker: 'mosquitto' }));
-	}, 180_000);
+	it.skipIf(!fs.existsSync(MOSQUITTO))(
+		"with Debian's mosquitto",
+		async () => {
+			expectExactCounts(await runGatewayScenario({ broker: 'mosquitto' }));
+		},
+		180_000
+	);
 });

@@ -52,7 +52,9 @@ describe('press gateway: counter readings to ledger intervals', () => {
 		takeReading(s, 'P1', 70, t(4));
 		closeAllIntervals(s);
 		// 900 → 1 000 (100 shots) before the reset; 0 → 70 after it. Keys differ by epoch.
-		expect(s.outbox.map((e) => [e.key, e.counterStart, e.counterEnd, e.shots, e.resetFrom])).toEqual([
+		expect(
+			s.outbox.map((e) => [e.key, e.counterStart, e.counterEnd, e.shots, e.resetFrom])
+		).toEqual([
 			['gw:P1:0:900', 900, 1_000, 100, null],
 			['gw:P1:1:0', 0, 70, 70, 1_000]
 		]);
@@ -93,5 +95,39 @@ describe('press gateway: counter readings to ledger intervals', () => {
 		expect(takeReading(s, 'P1', '12', t(0))).toBe('invalid');
 		expect(takeReading(s, 'P1', 12, 'yesterday')).toBe('invalid');
 		expect(s.presses).toEqual({});
+	});
+});
+
+describe('press gateway: state file and journal', () => {
+	it('rebuilds the state after a kill from the last state file plus the journal, replays twice harmlessly', async () => {
+		const fs = await import('node:fs');
+		const os = await import('node:os');
+		const path = await import('node:path');
+		const { Journal, loadState, saveState } = await import('../../gateway/state-file');
+		const { applyRecord } = await import('../../gateway/press-counters');
+		const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'gw-journal-'));
+		const file = path.join(dir, 'state.json');
+		try {
+			const s = emptyState();
+			applyRecord(s, { press: 'P1', kind: 'die', die: 'D-1', at: t(0) });
+			applyRecord(s, { press: 'P1', kind: 'counter', counter: 100, at: t(1) });
+			saveState(file, s);
+			// Two messages journalled after the last state write, then the process dies.
+			const j = new Journal(`${file}.journal`);
+			j.append({ press: 'P1', kind: 'counter', counter: 130, at: t(2) });
+			j.append({ press: 'P1', kind: 'counter', counter: 150, at: t(3) });
+			j.close();
+			const restored = loadState(file);
+			expect(Journal.replay(`${file}.journal`, restored)).toBe(2);
+			// Replaying again (a kill after the state write but before the journal was emptied).
+			Journal.replay(`${file}.journal`, restored);
+			closeAllIntervals(restored);
+			// 100 → 150 = 50 shots, once.
+			expect(restored.outbox.map((e) => [e.die, e.counterStart, e.counterEnd, e.shots])).toEqual([
+				['D-1', 100, 150, 50]
+			]);
+		} finally {
+			fs.rmSync(dir, { recursive: true, force: true });
+		}
 	});
 });

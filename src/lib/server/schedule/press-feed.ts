@@ -55,16 +55,26 @@ export async function notePressFeed(
 	);
 	const dieNumbers = [...new Set(entries.map((e) => e.die.trim().toUpperCase()))];
 	const dies = new Map(
-		(await db.selectFrom('dies').select(['id', 'number']).where('number', 'in', dieNumbers).execute()).map(
-			(d) => [d.number, d.id]
-		)
+		(
+			await db
+				.selectFrom('dies')
+				.select(['id', 'number'])
+				.where('number', 'in', dieNumbers)
+				.execute()
+		).map((d) => [d.number, d.id])
 	);
 	const resolved: ResolvedEntry[] = [];
 	for (const e of entries) {
 		const press = presses.get(byName(e.press));
 		const dieId = dies.get(e.die.trim().toUpperCase());
 		if (!press || dieId === undefined) continue;
-		resolved.push({ pressId: press.id, pressName: press.name, dieId, counterEnd: e.counterEnd, countedAt: e.countedAt });
+		resolved.push({
+			pressId: press.id,
+			pressName: press.name,
+			dieId,
+			counterEnd: e.counterEnd,
+			countedAt: e.countedAt
+		});
 	}
 	const latest = new Map<number, ResolvedEntry & { count: number }>();
 	for (const e of resolved) {
@@ -228,7 +238,8 @@ export async function findMountedDie(
 		.where('f.machine_id', '=', press.id)
 		.where('d.status', '=', 'running')
 		.executeTakeFirst();
-	if (fed) return { press: press.name, die: fed.number, source: 'counts', since: fed.last_counted_at };
+	if (fed)
+		return { press: press.name, die: fed.number, source: 'counts', since: fed.last_counted_at };
 	const booking = await db
 		.selectFrom('press_bookings as b')
 		.innerJoin('dies as d', 'd.id', 'b.die_id')
@@ -285,7 +296,10 @@ export async function listPressFeed(db: DB, now = nowIso()): Promise<PressFeedRo
 		lastCounter: r.last_counter,
 		lastCountedAt: r.last_counted_at,
 		lastReceivedAt: r.last_received_at,
-		lagSeconds: Math.max(0, Math.round((Date.parse(r.last_received_at) - Date.parse(r.last_counted_at)) / 1000)),
+		lagSeconds: Math.max(
+			0,
+			Math.round((Date.parse(r.last_received_at) - Date.parse(r.last_counted_at)) / 1000)
+		),
 		quietMinutes: Math.max(0, Math.floor((nowMs - Date.parse(r.last_received_at)) / 60_000)),
 		entries: r.entries
 	}));

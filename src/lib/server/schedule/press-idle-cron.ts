@@ -23,7 +23,9 @@ export function startPressIdleCron(): void {
 			try {
 				const released = await releaseIdleDies(getDb(), minutes);
 				if (released.length) {
-					console.log(`Castellan presses: back to ready after ${minutes} quiet minutes: ${released.join(', ')}`);
+					console.log(
+						`Castellan presses: back to ready after ${minutes} quiet minutes: ${released.join(', ')}`
+					);
 				}
 			} catch (err) {
 				console.error('Castellan presses: idle check failed:', (err as Error).message);
