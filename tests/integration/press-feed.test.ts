@@ -173,3 +173,19 @@ describe('press feed', () => {
 		expect(await findMountedDie(plant.db, 'XX-99', NOW)).toBeNull();
 	});
 });
+
+describe('the board shows dies counting on a press', () => {
+	it('lists the running die with its press in the board answer', async () => {
+		const { loadBoard } = await import('../../src/lib/server/schedule/board');
+		const { boardQuerySchema } = await import('../../src/lib/schemas/schedule');
+		await ingestShotBody(
+			plant.db,
+			{ die: 'Z-0001', press: 'HC-08', shots: 5, countedAt: hoursFromNow(-1) },
+			gateway,
+			NOW
+		);
+		const board = await loadBoard(plant.db, boardQuerySchema.parse({}), { customerId: null }, NOW);
+		const zinc = board.dies.rows.findIndex((r) => r[0] === 'Z-0001');
+		expect(board.live.rows).toEqual([[zinc, 'HC-08', hoursFromNow(-1)]]);
+	});
+});
