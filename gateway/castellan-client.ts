@@ -31,7 +31,7 @@ export function toApiEntry(e: GatewayEntry) {
 		key: e.key,
 		...(e.resetFrom !== null
 			? {
-					counterResetReason: `Press counter reset or rolled over (was ${e.resetFrom}); reported by the press gateway.`
+					resetReason: `Press counter reset or rolled over (was ${e.resetFrom}); reported by the press gateway.`
 				}
 			: {})
 	};

@@ -153,7 +153,7 @@ export const apiShotEntrySchema = z.strictObject({
 	press: z.string().trim().max(40).nullish(),
 	counterStart: z.number().int().nonnegative().nullish(),
 	counterEnd: z.number().int().nonnegative().nullish(),
-	counterResetReason: z.string().trim().max(500).nullish()
+	resetReason: z.string().trim().max(500).nullish()
 });
 export type ApiShotEntry = z.infer<typeof apiShotEntrySchema>;
 

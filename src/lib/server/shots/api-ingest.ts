@@ -92,7 +92,7 @@ export async function ingestShotBody(
 				key: e.key,
 				counterStart: e.counterStart,
 				counterEnd: e.counterEnd,
-				note: e.counterResetReason
+				note: e.resetReason
 			}
 		});
 	});
