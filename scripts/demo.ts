@@ -4,6 +4,8 @@ import { execSync, spawn } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
 import { fakeMailPortsFromEnv, startFakeMail } from '../fakes/mail/server';
+import { startDemoPresses, type DemoPresses } from '../fakes/press/demo-plant';
+import { createApiToken, revokeApiToken } from '../src/lib/server/auth/tokens';
 import { DEMO_PASSWORD, DEMO_PLANT, DEMO_USERS, isEmpty, seedDemo } from './lib/demo-scenario';
 import { databasePath, openMigratedDatabase } from './lib/cli';
 
@@ -33,6 +35,32 @@ if (await isEmpty(db)) {
 		`  ${s.dies} dies, ${s.entries} ledger entries. Demo API token (shots:write, dies:read):\n  ${s.token}`
 	);
 }
+// The demo presses' gateway gets a fresh token each start (the secret is never stored in clear).
+const GATEWAY_TOKEN_NAME = 'Demo press gateway (npm run demo)';
+const demoPressesOn = (process.env.DEMO_PRESSES ?? 'on') !== 'off';
+let gatewayToken: string | null = null;
+if (demoPressesOn) {
+	const old = await db
+		.selectFrom('api_tokens')
+		.select('id')
+		.where('name', '=', GATEWAY_TOKEN_NAME)
+		.where('revoked_at', 'is', null)
+		.execute();
+	for (const t of old) await revokeApiToken(db, t.id);
+	const admin = await db
+		.selectFrom('users')
+		.select('id')
+		.where('role', '=', 'admin')
+		.executeTakeFirst();
+	gatewayToken = (
+		await createApiToken(db, {
+			name: GATEWAY_TOKEN_NAME,
+			scopes: ['shots:write'],
+			customerId: null,
+			createdBy: admin?.id ?? null
+		})
+	).token;
+}
 await db.destroy();
 
 let mail: Awaited<ReturnType<typeof startFakeMail>> | null = null;
@@ -57,7 +85,30 @@ const app = spawn(process.execPath, ['scripts/start.js'], {
 	}
 });
 
+let presses: DemoPresses | null = null;
+if (gatewayToken) {
+	const mqttPort = Number(process.env.DEMO_MQTT_PORT ?? 1884);
+	try {
+		presses = await startDemoPresses({
+			databasePath: databasePath(),
+			castellanUrl: `http://127.0.0.1:${port}`,
+			token: gatewayToken,
+			mqttPort,
+			stateFile: path.join(path.dirname(databasePath()), 'press-gateway.json')
+		});
+	} catch (err) {
+		console.warn(
+			`Demo presses not started (${(err as Error).message}); is port ${mqttPort} in use? Set DEMO_MQTT_PORT or DEMO_PRESSES=off.`
+		);
+	}
+}
+
 console.log(`\nCastellan demo: ${origin}`);
+if (presses) {
+	console.log(
+		`Demo presses on MQTT ${presses.broker.url} (${presses.presses.map((p) => `${p.press}: ${p.die}`).join(', ')}); counts reach the ledger every 30 s.`
+	);
+}
 if (mail)
 	console.log(
 		`Fake mail inbox: http://127.0.0.1:${mail.httpPort} (SMTP on 127.0.0.1:${mail.smtpPort})`
@@ -68,12 +119,14 @@ console.log('Stop with Ctrl+C.\n');
 
 const stop = async () => {
 	app.kill('SIGTERM');
+	await presses?.close();
 	await mail?.close();
 	process.exit(0);
 };
 process.on('SIGINT', stop);
 process.on('SIGTERM', stop);
 app.on('exit', async (code) => {
+	await presses?.close();
 	await mail?.close();
 	process.exit(code ?? 0);
 });

@@ -15,6 +15,7 @@ import {
 } from '$lib/server/http/body-limit';
 import { getUploadDir, UPLOADS_UNAVAILABLE, uploadDirProblem } from '$lib/server/photos/upload-dir';
 import { readTextCapped } from '$lib/server/http/read-capped';
+import { startPressIdleCron } from '$lib/server/schedule/press-idle-cron';
 
 export const init: ServerInit = async () => {
 	if (building) return;
@@ -26,6 +27,8 @@ export const init: ServerInit = async () => {
 		console.error(`Castellan: ${photoProblem} Photo uploads answer 503 until then.`);
 	// The notice job lives in the server process, once per process (NOTICE_CRON=off stops it).
 	if (!building) startNoticeCron();
+	// Running dies whose press has gone quiet go back to ready (PRESS_IDLE_CHECK=off stops it).
+	startPressIdleCron();
 };
 
 const authenticate: Handle = async ({ event, resolve }) => {

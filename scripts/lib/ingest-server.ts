@@ -1,4 +1,4 @@
-// A bare shot-ingest server for the crash-safety scenario (scripts/lib/crash-scenario.ts). The
+// A bare shot-ingest server for the crash-safety and press-gateway scenarios. The
 // built SvelteKit app is not there while `npm run test:unit` runs on a fresh machine, so this
 // wraps the very function `POST /api/v1/shots` calls — ingestShotBody, and through it
 // recordShots — in node:http. Token checks are the access matrix's business, not this one's: every
@@ -11,6 +11,7 @@ import http from 'node:http';
 import { migrateToLatest, openDatabase } from '../../src/lib/server/db/connect';
 import type { LedgerActor } from '../../src/lib/server/shots/ledger';
 import { ingestShotBody } from '../../src/lib/server/shots/api-ingest';
+import { findMountedDie } from '../../src/lib/server/schedule/press-feed';
 
 /** The same limit as the API route. */
 const MAX_BODY_BYTES = 2_000_000;
@@ -56,8 +57,16 @@ async function readBody(req: http.IncomingMessage): Promise<string | null> {
 
 const server = http.createServer(async (req, res) => {
 	try {
-		if (req.method !== 'POST' || req.url !== '/shots') {
-			return answer(res, 404, { error: 'Only POST /shots is served here.' });
+		// The press gateway's other call: which die is on a press (GET /api/v1/presses/{p}/mounted).
+		const mounted = /^\/api\/v1\/presses\/([^/]+)\/mounted$/.exec(req.url ?? '');
+		if (req.method === 'GET' && mounted) {
+			const found = await findMountedDie(db, decodeURIComponent(mounted[1]));
+			return found
+				? answer(res, 200, found)
+				: answer(res, 404, { error: `There is no press called ${mounted[1]}.` });
+		}
+		if (req.method !== 'POST' || (req.url !== '/shots' && req.url !== '/api/v1/shots')) {
+			return answer(res, 404, { error: 'Only POST /shots (or /api/v1/shots) is served here.' });
 		}
 		const text = await readBody(req);
 		if (text === null) return answer(res, 413, { error: 'The body is too large.' });

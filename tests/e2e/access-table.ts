@@ -177,6 +177,7 @@ export const ENDPOINTS: Record<string, Cells> = {
 	'GET /api/v1/dies': api(ALL_ROLES),
 	'GET /api/v1/dies/[number]': api(ALL_ROLES, 'none'),
 	'GET /api/v1/dies/[number]/order-check': api(ALL_ROLES, 'none'),
+	'GET /api/v1/presses/[press]/mounted': api(RECORDERS),
 	'POST /api/v1/shots': api(RECORDERS),
 	'GET /admin/data/export.zip': roles('admin'),
 	'GET /dies/export.csv': roles(...PLANT),

@@ -15,6 +15,7 @@ export function parameters() {
 	const one = <T>(sql: string) => db.prepare(sql).get() as T;
 	const values = {
 		booking: one<{ id: number }>('select id from press_bookings order by id limit 1').id,
+		pressName: one<{ name: string }>('select name from machines order by id limit 1').name,
 		press: one<{ id: number }>(
 			'select machine_id as id from shot_entries where machine_id is not null group by machine_id order by count(*) desc limit 1'
 		).id,
@@ -34,6 +35,7 @@ export function concrete(routeId: string, p: RouteParameters): string {
 		.replace('/photos/[id]', `/photos/${p.photo}`)
 		.replace('/bookings/[id]', `/bookings/${p.booking}`)
 		.replace('/presses/[id]', `/presses/${p.press}`)
+		.replace('[press]', encodeURIComponent(p.pressName))
 		.replace('[number]', 'D-0101')
 		.replace('[job]', p.job)
 		.replace('[token]', 'no-such-invitation')

@@ -40,6 +40,8 @@ export interface BoardRow {
 	family: string;
 	status: string;
 	lifeUsedPct: number;
+	/** The press the die is counting on now, from the press feed. */
+	livePress: string | null;
 	bookings: BoardBooking[];
 	jobs: BoardJob[];
 	service: BoardService[];
@@ -90,6 +92,7 @@ export function buildBoardModel(data: BoardData, nowMs = Date.now()): BoardModel
 			family,
 			status,
 			lifeUsedPct,
+			livePress: null,
 			bookings: [],
 			jobs: [],
 			service: []
@@ -111,6 +114,9 @@ export function buildBoardModel(data: BoardData, nowMs = Date.now()): BoardModel
 	for (const [die, number, kind, status, openedAt] of data.jobs.rows) {
 		rows[die]?.jobs.push({ number, kind, status, openedAt, fromMs: Date.parse(openedAt) });
 	}
+	for (const [die, press] of data.live?.rows ?? []) {
+		if (rows[die]) rows[die].livePress = press;
+	}
 	for (const [die, day, kind, state] of data.service.rows) {
 		rows[die]?.service.push({ day, dayMs: Date.parse(day), kind, state });
 	}
@@ -119,7 +125,10 @@ export function buildBoardModel(data: BoardData, nowMs = Date.now()): BoardModel
 
 /** True when the die has anything in the window (for the phone list, which skips free dies). */
 export const hasActivity = (row: BoardRow) =>
-	row.bookings.length > 0 || row.jobs.length > 0 || row.service.length > 0;
+	row.livePress !== null ||
+	row.bookings.length > 0 ||
+	row.jobs.length > 0 ||
+	row.service.length > 0;
 
 /** A query string from the set values only (empty ones are left out of the URL). */
 export function queryString(params: Record<string, string | number | null | undefined>): string {

@@ -220,6 +220,12 @@ export const apiShotEntrySchema = z
 			.trim()
 			.min(1, 'key must not be empty (leave it out instead).')
 			.max(200, 'key has at most 200 characters.')
+			.nullish(),
+		/** Why the counter went back (a reset or rollover); allows a start below the last reading. */
+		resetReason: z
+			.string({ error: 'resetReason must be a string.' })
+			.trim()
+			.max(500, 'resetReason has at most 500 characters.')
 			.nullish()
 	})
 	.superRefine((v, ctx) => {

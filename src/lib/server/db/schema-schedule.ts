@@ -26,9 +26,23 @@ export interface PressBookingsTable {
 	notes: string | null;
 }
 
+/** What a press last reported through counted shots; one row per press. */
+export interface PressFeedTable {
+	machine_id: number;
+	/** The die the last entry was credited to. */
+	die_id: number | null;
+	last_counter: number | null;
+	/** ISO-8601 UTC, the press's time of the last reading. */
+	last_counted_at: string;
+	/** ISO-8601 UTC, when Castellan received it. */
+	last_received_at: string;
+	entries: Generated<number>;
+}
+
 // Tables of the schedule area; added to the Database interface in schema.ts.
 export interface ScheduleTables {
 	press_bookings: PressBookingsTable;
+	press_feed: PressFeedTable;
 }
 
 export type PressBooking = Selectable<PressBookingsTable>;

@@ -51,6 +51,10 @@ export type BoardJobRow = [number, string, string, string, string];
 export const BOARD_SERVICE_COLUMNS = ['die', 'day', 'kind', 'state'] as const;
 export type BoardServiceRow = [number, string, string, string];
 
+/** Dies counting on a press right now (counts from the press gateway or the API). */
+export const BOARD_LIVE_COLUMNS = ['die', 'press', 'lastCountedAt'] as const;
+export type BoardLiveRow = [number, string, string];
+
 export interface BoardData {
 	from: string;
 	/** Day after the last day shown. */
@@ -63,6 +67,7 @@ export interface BoardData {
 	bookings: { columns: typeof BOARD_BOOKING_COLUMNS; rows: BoardBookingRow[] };
 	jobs: { columns: typeof BOARD_JOB_COLUMNS; rows: BoardJobRow[] };
 	service: { columns: typeof BOARD_SERVICE_COLUMNS; rows: BoardServiceRow[] };
+	live: { columns: typeof BOARD_LIVE_COLUMNS; rows: BoardLiveRow[] };
 }
 
 /** Monday of the plant week holding `iso` — the board's default first day. */
@@ -199,7 +204,14 @@ export async function loadBoard(
 	const index = new Map(dies.map((d, i) => [d.id, i]));
 	const ids = dies.map((d) => d.id);
 
-	const [bookings, jobs, tasks, rates] = await Promise.all([
+	const [live, bookings, jobs, tasks, rates] = await Promise.all([
+		db
+			.selectFrom('press_feed as f')
+			.innerJoin('machines as m', 'm.id', 'f.machine_id')
+			.innerJoin('dies as d', 'd.id', 'f.die_id')
+			.select(['f.die_id', 'm.name', 'f.last_counted_at'])
+			.where('d.status', '=', 'running')
+			.execute(),
 		listBoardBookings(db, start, end),
 		listOpenToolroomJobs(db, ids),
 		ids.length
@@ -280,6 +292,12 @@ export async function loadBoard(
 				.filter((j) => audience === 'plant' || customerMaySeeJob(j))
 				.map((j) => [index.get(j.dieId)!, j.number, j.kind, j.status, j.openedAt])
 		},
-		service: { columns: BOARD_SERVICE_COLUMNS, rows: service }
+		service: { columns: BOARD_SERVICE_COLUMNS, rows: service },
+		live: {
+			columns: BOARD_LIVE_COLUMNS,
+			rows: live
+				.filter((l) => l.die_id !== null && index.has(l.die_id))
+				.map((l) => [index.get(l.die_id!)!, l.name, l.last_counted_at])
+		}
 	};
 }

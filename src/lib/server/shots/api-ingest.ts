@@ -1,9 +1,12 @@
 import { apiShotEntrySchema } from '../../schemas/shots';
 import type { DB } from '../db/connect';
+import { notePressFeed } from '../schedule/press-feed';
+import { nowIso } from '../time';
 import {
 	isCounterOverlapIssue,
 	isUnknownDieIssue,
 	MAX_BATCH,
+	normalizeInstant,
 	recordShots,
 	type LedgerActor,
 	type ShotInput,
@@ -77,7 +80,7 @@ export async function ingestShotBody(
 					i.code === 'unrecognized_keys' ? i.keys.join(',') : String(i.path[0] ?? 'entry');
 				const message =
 					i.code === 'unrecognized_keys'
-						? `Unknown field ${i.keys.map((k) => `"${k}"`).join(', ')}; use die, shots, counterStart, counterEnd, countedAt, press, key.`
+						? `Unknown field ${i.keys.map((k) => `"${k}"`).join(', ')}; use die, shots, counterStart, counterEnd, countedAt, press, key, resetReason.`
 						: i.path.length === 0
 							? 'Each entry must be an object.'
 							: i.message;
@@ -97,7 +100,8 @@ export async function ingestShotBody(
 				counterEnd: e.counterEnd ?? null,
 				countedAt: e.countedAt,
 				machine: e.press || e.machine,
-				key: e.key
+				key: e.key,
+				resetReason: e.resetReason ?? null
 			}
 		});
 	});
@@ -137,6 +141,19 @@ export async function ingestShotBody(
 		};
 	}
 	if (!result || !result.ok) throw new Error('Unreachable: no issues and no result.');
+	const fed = inputs.flatMap((input, i) =>
+		result.outcome[i] === 'counted' && input.machine
+			? [
+					{
+						press: input.machine,
+						die: input.die,
+						counterEnd: input.counterEnd ?? null,
+						countedAt: (input.countedAt && normalizeInstant(input.countedAt)) || now || nowIso()
+					}
+				]
+			: []
+	);
+	await notePressFeed(db, fed, actor.tokenId);
 	return {
 		status: 201,
 		body: {
