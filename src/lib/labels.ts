@@ -152,6 +152,7 @@ export const PHOTO_STAGE_LABELS = {
 	before: { word: 'Before', shape: '◁' },
 	during: { word: 'During', shape: '◇' },
 	after: { word: 'After', shape: '▷' }
+} as const;
 /** What an imported row does, as a word and a mark (die-register import preview). */
 export const IMPORT_ROW_LABELS = {
 	create: { word: 'New', mark: '+' },

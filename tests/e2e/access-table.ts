@@ -120,7 +120,6 @@ export const ACTIONS: Record<string, Cells> = {
 	'/bookings/new?/default': roles(...PLANNERS),
 	'/dies/[number]?/status': roles(...PLANT),
 	'/dies/[number]/cooling?/check': roles(...WORKERS),
-	'/dies/[number]/cooling?/circuit': roles(...LEADS),
 	'/dies/[number]/cooling?/correctCheck': roles(...LEADS),
 	'/dies/[number]/cooling?/voidCheck': roles(...LEADS),
 	'/dies/[number]/cooling?/circuit': roles(...WORKERS),

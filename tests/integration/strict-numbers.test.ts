@@ -237,7 +237,7 @@ describe('cooling check form: decimal readings', () => {
 });
 
 describe('the order-check API reads its query numbers the same way', async () => {
-	const { orderCheckQuerySchema } = await import('../../src/lib/schemas/shots');
+	const { orderCheckQuerySchema } = await import('../../src/lib/schemas/schedule');
 	it('refuses 1e7 parts and 12abc shots per hour, takes a decimal comma for scrap', () => {
 		const bad = orderCheckQuerySchema.safeParse({ parts: '1e7', shotsPerHour: '12abc' });
 		expect(bad.error?.issues.map((i) => i.message)).toEqual([

@@ -182,6 +182,69 @@ describe('zones from the die’s list, and series since the last repair', () => 
 			grade: 1,
 			longestCrackMm: ''
 		});
+		const refused = await recordInspection(plant.db, {
+			dieId: plant.dieId,
+			form,
+			files: [],
+			actor: plant.toolmaker,
+			uploadDir: uploads.dir
+		});
+		expect(refused).toMatchObject({ ok: false, status: 400 });
+		expect(await plant.db.selectFrom('surface_inspections').select('id').execute()).toHaveLength(0);
+		expect(
+			await addDieZone(plant.db, plant.dieId, { half: 'cover', name: 'slide 3' }, plant.toolmaker)
+		).toMatchObject({ ok: false, status: 403 });
+	});
+
+	it('restarts a zone’s series after a weld repair recorded on a closed job', async () => {
+		await inspect({ zone: 'gate', shotsAt: 2000, grade: 1, at: '2026-01-10T08:00:00.000Z' });
+		await inspect({ zone: 'gate', shotsAt: 6000, grade: 2, at: '2026-02-10T08:00:00.000Z' });
+		await inspect({ zone: 'gate', shotsAt: 10_000, grade: 3, at: '2026-03-10T08:00:00.000Z' });
+		const gate = (await findDieZone(plant.db, plant.dieId, 'cover', 'gate'))!;
+		const job = await plant.db
+			.insertInto('toolroom_jobs')
+			.values({
+				number: 'TJ-00090',
+				die_id: plant.dieId,
+				kind: 'repair',
+				half: 'cover',
+				zone: 'gate',
+				description: 'Weld the gate heat checks',
+				source: 'die',
+				status: 'done',
+				die_shots_at_open: 10_000,
+				die_shots_at_close: 10_000,
+				opened_at: '2026-03-12T08:00:00.000Z',
+				updated_at: '2026-03-20T16:00:00.000Z',
+				closed_at: '2026-03-20T16:00:00.000Z'
+			})
+			.returning('id')
+			.executeTakeFirstOrThrow();
+		expect(
+			await recordJobRepairs(plant.db, job.id, [{ zoneId: gate.id, kind: 'weld' }], plant.lead)
+		).toEqual({ ok: true });
+		await inspect({ zone: 'gate', shotsAt: 12_000, grade: 0, at: '2026-04-10T08:00:00.000Z' });
+		await inspect({ zone: 'gate', shotsAt: 16_000, grade: 0, at: '2026-05-10T08:00:00.000Z' });
+		const overview = await getSurfaceOverview(plant.db, { id: plant.dieId, total_shots: 16_000 });
+		const zone = overview.zones.find((z) => z.zone === 'gate')!;
+		expect(
+			zone.series.map((s) => [s.startedBy.kind, s.current, s.points.map((p) => p.shots)])
+		).toEqual([
+			['first', false, [2000, 6000, 10_000]],
+			['repair', true, [12_000, 16_000]]
+		]);
+		// The earlier series rose 1 grade per 4 000 shots (hand: points on grade = 0.5 + x/4000);
+		// the welded zone shows no rise yet, so the projection no longer says "repair now".
+		expect(zone.series[0].trend.slopePerShot).toBeCloseTo(1 / 4000, 12);
+		expect(zone.trend).toEqual({
+			slopePerShot: null,
+			intercept: null,
+			projectedShotsAtRepair: null
+		});
+		expect(zone.rising).toBe(false);
+	});
+});
+
 describe('an inspection completes the plan’s surface-inspection task', () => {
 	it('offers the task with the inspection’s date and shots, and the offer marks it done', async () => {
 		const { findTaskToComplete, markTaskDone } =
@@ -269,61 +332,6 @@ describe('an inspection completes the plan’s surface-inspection task', () => {
 			form,
 			files: [],
 			actor: plant.toolmaker,
-			uploadDir: uploads.dir
-		});
-		expect(refused).toMatchObject({ ok: false, status: 400 });
-		expect(await plant.db.selectFrom('surface_inspections').select('id').execute()).toHaveLength(0);
-		expect(
-			await addDieZone(plant.db, plant.dieId, { half: 'cover', name: 'slide 3' }, plant.toolmaker)
-		).toMatchObject({ ok: false, status: 403 });
-	});
-
-	it('restarts a zone’s series after a weld repair recorded on a closed job', async () => {
-		await inspect({ zone: 'gate', shotsAt: 2000, grade: 1, at: '2026-01-10T08:00:00.000Z' });
-		await inspect({ zone: 'gate', shotsAt: 6000, grade: 2, at: '2026-02-10T08:00:00.000Z' });
-		await inspect({ zone: 'gate', shotsAt: 10_000, grade: 3, at: '2026-03-10T08:00:00.000Z' });
-		const gate = (await findDieZone(plant.db, plant.dieId, 'cover', 'gate'))!;
-		const job = await plant.db
-			.insertInto('toolroom_jobs')
-			.values({
-				number: 'TJ-00090',
-				die_id: plant.dieId,
-				kind: 'repair',
-				half: 'cover',
-				zone: 'gate',
-				description: 'Weld the gate heat checks',
-				source: 'die',
-				status: 'done',
-				die_shots_at_open: 10_000,
-				die_shots_at_close: 10_000,
-				opened_at: '2026-03-12T08:00:00.000Z',
-				updated_at: '2026-03-20T16:00:00.000Z',
-				closed_at: '2026-03-20T16:00:00.000Z'
-			})
-			.returning('id')
-			.executeTakeFirstOrThrow();
-		expect(
-			await recordJobRepairs(plant.db, job.id, [{ zoneId: gate.id, kind: 'weld' }], plant.lead)
-		).toEqual({ ok: true });
-		await inspect({ zone: 'gate', shotsAt: 12_000, grade: 0, at: '2026-04-10T08:00:00.000Z' });
-		await inspect({ zone: 'gate', shotsAt: 16_000, grade: 0, at: '2026-05-10T08:00:00.000Z' });
-		const overview = await getSurfaceOverview(plant.db, { id: plant.dieId, total_shots: 16_000 });
-		const zone = overview.zones.find((z) => z.zone === 'gate')!;
-		expect(
-			zone.series.map((s) => [s.startedBy.kind, s.current, s.points.map((p) => p.shots)])
-		).toEqual([
-			['first', false, [2000, 6000, 10_000]],
-			['repair', true, [12_000, 16_000]]
-		]);
-		// The earlier series rose 1 grade per 4 000 shots (hand: points on grade = 0.5 + x/4000);
-		// the welded zone shows no rise yet, so the projection no longer says "repair now".
-		expect(zone.series[0].trend.slopePerShot).toBeCloseTo(1 / 4000, 12);
-		expect(zone.trend).toEqual({
-			slopePerShot: null,
-			intercept: null,
-			projectedShotsAtRepair: null
-		});
-		expect(zone.rising).toBe(false);
 			uploadDir: uploads.dir,
 			jobId: other.id
 		});

@@ -59,7 +59,7 @@ export const dieFormSchema = z
 		max: [50000, 'More than 50 000 cm² is not plausible for a die-casting die.']
 	}),
 	hasSlides: z.boolean().default(false),
-	metalPressure: optionalDecimalNumber({ gt: [0, 'The metal pressure must be above 0.'] }),
+	metalPressure: optionalDecimalNumber({ gt: [0, 'The metal pressure must be above 0.'] }).optional(),
 	metalPressureUnit: z.enum(PRESSURE_UNITS).optional(),
 	location: optionalText(60),
 	notes: optionalText(2000),

@@ -221,8 +221,12 @@ export interface AuditLogTable {
 }
 
 export interface Database
-	extends ToolroomTables, ScheduleTables, NoticesTables, InvitationsTables, PlantSettingsTables {
-	extends ToolroomTables, ScheduleTables, NoticesTables, InvitationsTables, ImportTables {
+	extends ToolroomTables,
+		ScheduleTables,
+		NoticesTables,
+		InvitationsTables,
+		PlantSettingsTables,
+		ImportTables {
 	customers: CustomersTable;
 	users: UsersTable;
 	sessions: SessionsTable;

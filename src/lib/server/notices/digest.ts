@@ -75,6 +75,8 @@ export function entryLinks(
 			return [
 				{ label: 'Job', url: `${base(origin)}/jobs/${encodeURIComponent(payload.jobNumber)}` }
 			];
+		default:
+			return [{ label: 'Die', url: die }];
 	}
 }
 

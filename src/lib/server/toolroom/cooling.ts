@@ -592,21 +592,7 @@ export async function correctCoolingCheck(
 		);
 		return row.id;
 	});
-	let offer: TaskOffer | null = null;
-	if (form.flushed) {
-		const die = await db
-			.selectFrom('dies')
-			.select('total_shots')
-			.where('id', '=', input.dieId)
-			.executeTakeFirstOrThrow();
-		offer = await findTaskToComplete(db, {
-			dieId: input.dieId,
-			record: 'cooling_flush',
-			at,
-			shots: die.total_shots
-		});
-	}
-	return { ok: true, id, figures, offer };
+	return { ok: true, id, figures };
 }
 
 const CHECK_COLUMNS = [
