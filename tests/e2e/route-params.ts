@@ -44,4 +44,3 @@ export function concrete(routeId: string, p: RouteParameters): string {
 	if (url === '/shots/die-summary') url += '?die=D-0101';
 	return url;
 }
-

@@ -203,14 +203,10 @@ describe('blocking checks, each with its message', () => {
 	});
 
 	test('the clamping force message follows the caller’s unit system', async () => {
-		const ev = await judgeRun(
-			db,
-			draft({ die: 'BIG-1', press: 'CC-40', shotsPerHour: 100 }),
-			{
-				now: NOW,
-				unitSystem: 'us'
-			}
-		);
+		const ev = await judgeRun(db, draft({ die: 'BIG-1', press: 'CC-40', shotsPerHour: 100 }), {
+			now: NOW,
+			unitSystem: 'us'
+		});
 		if (!ev.ok) throw new Error(ev.message);
 		// 3923 kN / 8.896443 = 441 US tons; 9240 kN = 1,039 US tons.
 		expect(ev.blocks[0].message).toContain(

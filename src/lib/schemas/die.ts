@@ -34,43 +34,45 @@ export const dieNumberPattern = /^[A-Z0-9][A-Z0-9-]{1,19}$/;
 
 export const dieFormSchema = z
 	.object({
-	number: z
-		.string()
-		.trim()
-		.toUpperCase()
-		.regex(dieNumberPattern, 'Use 2–20 capital letters, digits or dashes, e.g. D-0147.'),
-	partName: z
-		.string()
-		.trim()
-		.min(1, 'Name the part this die casts.')
-		.max(120, 'Keep it under 120 characters.'),
-	partNumber: optionalText(60),
-	customerId: wholeNumber({ required: 'Choose the owner.', min: [1, 'Choose the owner.'] }),
-	alloyId: wholeNumber({ required: 'Choose the alloy.', min: [1, 'Choose the alloy.'] }),
-	process: z.enum(['hot_chamber', 'cold_chamber'], { error: 'Choose hot or cold chamber.' }),
-	cavities: wholeNumber({
-		required: 'Enter the number of cavities.',
-		min: [1, 'A die has at least one cavity.'],
-		max: [128, 'More than 128 cavities is not plausible.']
-	}),
-	projectedAreaCm2: decimalNumber({
-		required: 'Enter the projected area in cm².',
-		gt: [0, 'The projected area must be greater than 0.'],
-		max: [50000, 'More than 50 000 cm² is not plausible for a die-casting die.']
-	}),
-	hasSlides: z.boolean().default(false),
-	metalPressure: optionalDecimalNumber({ gt: [0, 'The metal pressure must be above 0.'] }).optional(),
-	metalPressureUnit: z.enum(PRESSURE_UNITS).optional(),
-	location: optionalText(60),
-	notes: optionalText(2000),
-	expectedLifeShots: optionalWholeNumber({
-		min: [1, 'Expected life must be above 0.'],
-		max: [10_000_000, 'More than 10 million shots is not plausible.']
-	}),
-	coverSerial: z.string().trim().max(40, 'Keep it under 40 characters.').optional(),
-	ejectorSerial: z.string().trim().max(40, 'Keep it under 40 characters.').optional(),
-	steel: z.string().trim().max(40, 'Keep it under 40 characters.').default('H13')
-})
+		number: z
+			.string()
+			.trim()
+			.toUpperCase()
+			.regex(dieNumberPattern, 'Use 2–20 capital letters, digits or dashes, e.g. D-0147.'),
+		partName: z
+			.string()
+			.trim()
+			.min(1, 'Name the part this die casts.')
+			.max(120, 'Keep it under 120 characters.'),
+		partNumber: optionalText(60),
+		customerId: wholeNumber({ required: 'Choose the owner.', min: [1, 'Choose the owner.'] }),
+		alloyId: wholeNumber({ required: 'Choose the alloy.', min: [1, 'Choose the alloy.'] }),
+		process: z.enum(['hot_chamber', 'cold_chamber'], { error: 'Choose hot or cold chamber.' }),
+		cavities: wholeNumber({
+			required: 'Enter the number of cavities.',
+			min: [1, 'A die has at least one cavity.'],
+			max: [128, 'More than 128 cavities is not plausible.']
+		}),
+		projectedAreaCm2: decimalNumber({
+			required: 'Enter the projected area in cm².',
+			gt: [0, 'The projected area must be greater than 0.'],
+			max: [50000, 'More than 50 000 cm² is not plausible for a die-casting die.']
+		}),
+		hasSlides: z.boolean().default(false),
+		metalPressure: optionalDecimalNumber({
+			gt: [0, 'The metal pressure must be above 0.']
+		}).optional(),
+		metalPressureUnit: z.enum(PRESSURE_UNITS).optional(),
+		location: optionalText(60),
+		notes: optionalText(2000),
+		expectedLifeShots: optionalWholeNumber({
+			min: [1, 'Expected life must be above 0.'],
+			max: [10_000_000, 'More than 10 million shots is not plausible.']
+		}),
+		coverSerial: z.string().trim().max(40, 'Keep it under 40 characters.').optional(),
+		ejectorSerial: z.string().trim().max(40, 'Keep it under 40 characters.').optional(),
+		steel: z.string().trim().max(40, 'Keep it under 40 characters.').default('H13')
+	})
 	.superRefine((form, ctx) => {
 		const bar = metalPressureBarOf(form);
 		const { min, max } = METAL_PRESSURE_RANGE_BAR;

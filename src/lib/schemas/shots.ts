@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { decimalNumber, optionalDecimalNumber, optionalWholeNumber, wholeNumber } from './numbers';
+import { decimalNumber, optionalWholeNumber, wholeNumber } from './numbers';
 
 export const SHOT_SOURCES = ['manual', 'csv', 'api', 'correction', 'seed', 'opening'] as const;
 export const SHOT_SOURCE_LABELS: Record<(typeof SHOT_SOURCES)[number], string> = {

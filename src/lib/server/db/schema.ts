@@ -221,7 +221,8 @@ export interface AuditLogTable {
 }
 
 export interface Database
-	extends ToolroomTables,
+	extends
+		ToolroomTables,
 		ScheduleTables,
 		NoticesTables,
 		InvitationsTables,

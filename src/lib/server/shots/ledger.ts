@@ -1,5 +1,5 @@
 import type SQLite from 'better-sqlite3';
-import { dateInZone, dateTimeInZone, wallClockToMs } from '../../calc/zone';
+import { dateTimeInZone, wallClockToMs } from '../../calc/zone';
 import { rawHandle, type DB } from '../db/connect';
 import type { AlloyFamily, DieProcess, DieStatus, ShotSource } from '../db/schema';
 import { formatShots } from '../../format';

@@ -23,35 +23,37 @@ export const GET = apiRoute(async (event) => {
 		listHalfLives(db, die.id),
 		countToReview(db, [die.id])
 	]);
-	return json(viewFor(audienceOf(principal), 'die', {
-		...dieApiView({
-			id: die.id,
-			number: die.number,
-			partName: die.part_name,
-			customerCode: die.customerCode,
-			customerName: die.customerName,
-			alloyCode: die.alloyCode,
-			family: die.family,
-			status: die.status,
-			totalShots: die.total_shots,
-			expectedLifeShots: die.expectedLifeShots,
-			lifeUsedPct: life.lifeUsedPct,
-			nextService: die.status === 'retired' ? null : (tasks.get(die.id) ?? null)
-		}),
-		shotsRemaining: life.shotsRemaining,
-		...dieMetalPressureView(die),
-		shotsPerDay: life.shotsPerDay,
-		projectedEndOfLife: life.projectedEndOfLife,
-		// Life follows the steel: the figures above are those of the most-worn active half.
-		lifeSide: life.lifeSide,
-		halves: halves.map((h) => ({
-			side: h.side,
-			serial: h.serial,
-			installedAt: h.installedAt,
-			removedAt: h.removedAt,
-			shots: h.shots,
-			lifeUsedPct: Math.round(h.lifeUsedPct * 100) / 100
-		})),
-		toReview: toReview.get(die.id) ?? 0
-	}));
+	return json(
+		viewFor(audienceOf(principal), 'die', {
+			...dieApiView({
+				id: die.id,
+				number: die.number,
+				partName: die.part_name,
+				customerCode: die.customerCode,
+				customerName: die.customerName,
+				alloyCode: die.alloyCode,
+				family: die.family,
+				status: die.status,
+				totalShots: die.total_shots,
+				expectedLifeShots: die.expectedLifeShots,
+				lifeUsedPct: life.lifeUsedPct,
+				nextService: die.status === 'retired' ? null : (tasks.get(die.id) ?? null)
+			}),
+			shotsRemaining: life.shotsRemaining,
+			...dieMetalPressureView(die),
+			shotsPerDay: life.shotsPerDay,
+			projectedEndOfLife: life.projectedEndOfLife,
+			// Life follows the steel: the figures above are those of the most-worn active half.
+			lifeSide: life.lifeSide,
+			halves: halves.map((h) => ({
+				side: h.side,
+				serial: h.serial,
+				installedAt: h.installedAt,
+				removedAt: h.removedAt,
+				shots: h.shots,
+				lifeUsedPct: Math.round(h.lifeUsedPct * 100) / 100
+			})),
+			toReview: toReview.get(die.id) ?? 0
+		})
+	);
 });
