@@ -122,7 +122,14 @@ export const AUDIT_ACTION_LABELS: Record<string, string> = {
 	'booking.create': 'Press booking made',
 	'booking.cancel': 'Press booking cancelled',
 	'photo.add': 'Photos added',
-	'photo.share': 'Photo sharing changed'
+	'photo.share': 'Photo sharing changed',
+	'zone.add': 'Surface zone listed',
+	'job.repairs': 'Repairs recorded on a job',
+	'shots.void': 'Shot entry voided',
+	'shots.correct': 'Shot entry corrected',
+	'shots.confirm': 'Shot entry confirmed',
+	'shots.reset': 'Counter reset',
+	'die.import_update': 'Changed by a register import'
 };
 // Verdicts of the order check and the booking form (one judge: lib/server/schedule/verdict.ts).
 export const VERDICT_LABELS = {

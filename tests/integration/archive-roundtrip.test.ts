@@ -72,7 +72,7 @@ describe('export everything, import into an empty database', () => {
 		const target = await openTestDatabase();
 		const dstUploads = path.join(tmp, 'dst');
 		const res = await restoreArchive(target, zip, dstUploads);
-		expect(res).toMatchObject({ ok: true });
+		expect(res, JSON.stringify(res)).toMatchObject({ ok: true });
 		const after = await figures(target);
 		expect(after).toEqual(before);
 		// Ledger sums per die equal the kept totals on both sides (sum over the ledger vs dies.total_shots).

@@ -371,8 +371,11 @@ describe('warnings, each with its message', () => {
 	test('a calendar interval ending during the run', async () => {
 		await addTask(db, 'Z-1', { kind: 'cooling_flush', intervalDays: 90, daysAgo: 83 });
 		const ev = await checks({ startsAt: at(6, 6), endsAt: at(9, 6) });
+		// Hand count: done 83 days before NOW (2027-03-01 08:00 UTC, a UTC plant) = 2026-12-08 08:00;
+		// 2026-12-08 + 90 calendar days = 2027-03-08, and a day-based task falls due at the start
+		// (plant midnight) of that date: 2027-03-08 00:00.
 		expect(ev.warnings.map((w) => w.message)).toEqual([
-			'Cooling-line flush comes due during this run, around 2027-03-08 08:00 (90-day interval).'
+			'Cooling-line flush comes due during this run, around 2027-03-08 00:00 (90-day interval).'
 		]);
 	});
 

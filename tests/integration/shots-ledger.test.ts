@@ -529,7 +529,7 @@ describe('POST /api/v1/shots body handling', () => {
 					index: 2,
 					field: 'counted_at',
 					message:
-						'Unknown field "counted_at"; use die, shots, counterStart, counterEnd, countedAt, press, key.'
+						'Unknown field "counted_at"; use die, shots, counterStart, counterEnd, countedAt, press, key, resetReason.'
 				},
 				{ index: 3, field: 'entry', message: 'Each entry must be an object.' }
 			]

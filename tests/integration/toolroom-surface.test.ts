@@ -1,3 +1,4 @@
+import { recordShots } from '../../src/lib/server/shots/ledger';
 import { afterAll, afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { crackTrend } from '../../src/lib/calc/crack-trend';
 import { inspectionSchema } from '../../src/lib/schemas/toolroom';
@@ -224,6 +225,15 @@ describe('zones from the die’s list, and series since the last repair', () => 
 			await recordJobRepairs(plant.db, job.id, [{ zoneId: gate.id, kind: 'weld' }], plant.lead)
 		).toEqual({ ok: true });
 		await inspect({ zone: 'gate', shotsAt: 12_000, grade: 0, at: '2026-04-10T08:00:00.000Z' });
+		// The die runs on: 12 000 + 4 000 = 16 000 shots before the next inspection (an inspection
+		// cannot be at more shots than the die has taken).
+		const more = await recordShots(
+			plant.db,
+			[{ die: 'T-0001', shots: 4_000, countedAt: '2026-05-01T22:00:00.000Z' }],
+			{ userId: plant.lead.userId, tokenId: null, customerId: null },
+			{ source: 'manual', now: '2026-05-02T08:00:00.000Z' }
+		);
+		if (!more.ok) throw new Error(JSON.stringify(more.issues));
 		await inspect({ zone: 'gate', shotsAt: 16_000, grade: 0, at: '2026-05-10T08:00:00.000Z' });
 		const overview = await getSurfaceOverview(plant.db, { id: plant.dieId, total_shots: 16_000 });
 		const zone = overview.zones.find((z) => z.zone === 'gate')!;

@@ -54,11 +54,12 @@ describe('die status', () => {
 
 describe('service tasks by shots or by days', () => {
 	test('a day-based task overdue by 14 months is not a fit', async () => {
-		// Cooling flush every 30 days, last done 425 days ago: due 395 days ago.
+		// Cooling flush every 30 days, last done 425 days before NOW (08:00): due at plant midnight of
+		// the done date + 30 days, i.e. 395 days and 8 hours ago — rounded down, -396 days.
 		await addTask(db, 'Z-1', { kind: 'cooling_flush', intervalDays: 30, daysAgo: 425 });
 		const ev = await judge({ die: 'Z-1', parts: 100, scrapPct: 0, press: 'HC-20' });
 		expect(ev.verdict).toBe('warning');
-		expect(ev.reasons).toMatchObject([{ code: 'service_due', level: 'warn', number: -395 }]);
+		expect(ev.reasons).toMatchObject([{ code: 'service_due', level: 'warn', number: -396 }]);
 		expect(ev.reasons[0].message).toMatch(/^Cooling-line flush is due before this run starts/);
 	});
 

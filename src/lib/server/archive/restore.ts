@@ -10,7 +10,7 @@ export type RestoreResult =
 	{ ok: true; tables: Record<string, number>; photos: number } | { ok: false; message: string };
 
 /** Tables the migrations fill with defaults; the archive's rows replace them. */
-const DEFAULTED = ['alloys', 'service_templates'];
+const DEFAULTED = ['alloys', 'service_templates', 'plant_settings'];
 /** A database with a row in any of these is not empty. */
 const MUST_BE_EMPTY = ['customers', 'users', 'dies', 'machines', 'shot_entries'];
 

@@ -17,6 +17,11 @@ export const ARCHIVE_TABLES: ArchiveTable[] = [
 		about: 'Tooling owners: code, name, contact e-mail.'
 	},
 	{
+		table: 'plant_settings',
+		file: 'plant_settings.csv',
+		about: 'The plant: its time zone (IANA name) and other plant-wide settings.'
+	},
+	{
 		table: 'users',
 		file: 'users.csv',
 		about:
@@ -59,6 +64,11 @@ export const ARCHIVE_TABLES: ArchiveTable[] = [
 			'Cover and ejector halves: serial, steel, hardness (HRC), shots on the half, current (active = 1) or removed, installed/removed (UTC), die total at install.'
 	},
 	{
+		table: 'die_zones',
+		file: 'die_zones.csv',
+		about: 'Each die’s surface zones (per half), kept by the toolroom lead; inspections name one.'
+	},
+	{
 		table: 'service_tasks',
 		file: 'service_tasks.csv',
 		about:
@@ -80,6 +90,12 @@ export const ARCHIVE_TABLES: ArchiveTable[] = [
 		file: 'jobs.csv',
 		about:
 			'Toolroom jobs: number, die, kind, half, status, who and when, findings, work done, hours.'
+	},
+	{
+		table: 'job_repairs',
+		file: 'job_repairs.csv',
+		about:
+			'Zones a toolroom job repaired (weld, insert change, re-machining); crack series restart after them.'
 	},
 	{
 		table: 'job_service_tasks',
@@ -118,6 +134,12 @@ export const ARCHIVE_TABLES: ArchiveTable[] = [
 		table: 'audit_log',
 		file: 'audit_log.csv',
 		about: 'Who changed what and when (detail as JSON).'
+	},
+	{
+		table: 'press_feed',
+		file: 'press_feed.csv',
+		about:
+			'What each press last reported through counted shots: die, counter, when counted and received (UTC).'
 	},
 	{
 		table: 'import_mappings',

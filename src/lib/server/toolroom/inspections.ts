@@ -501,6 +501,8 @@ export async function correctInspection(
 				job_id: old.job_id,
 				half: old.half,
 				zone: old.zone,
+				zone_id: old.zone_id,
+				half_id: old.half_id,
 				shots_at: input.values.shotsAt,
 				grade: input.values.grade,
 				longest_crack_mm: input.values.longestCrackMm,
