@@ -6,6 +6,7 @@ import { recordInspection } from '../../src/lib/server/toolroom/inspections';
 import { getJobReport, renderJobReportPdf } from '../../src/lib/server/toolroom/job-report';
 import { closeJob, getJob, openJob } from '../../src/lib/server/toolroom/jobs';
 import { uploadPhotos } from '../../src/lib/server/toolroom/photos';
+import { addDieZone } from '../../src/lib/server/toolroom/zones';
 import {
 	asFile,
 	jobForm,
@@ -51,6 +52,14 @@ describe('the job report PDF', () => {
 			});
 			expect(up.ok).toBe(true);
 		}
+		// Inspections name a zone from the die's list, which the toolroom lead keeps.
+		const zone = await addDieZone(
+			plant.db,
+			plant.dieId,
+			{ half: 'cover', name: 'Gate side' },
+			plant.lead
+		);
+		expect(zone.ok).toBe(true);
 		const inspected = await recordInspection(plant.db, {
 			dieId: plant.dieId,
 			jobId: open.id,
