@@ -257,6 +257,16 @@ describe('processImage', () => {
 			expect(error.message).toMatch(/incomplete/);
 		});
 
+		it('a JPEG with damaged image data, and the decoder still works after it', async () => {
+			const damaged = Buffer.from(largeJpeg);
+			const scan = damaged.indexOf(Buffer.from([0xff, 0xda]));
+			for (let i = scan + 200; i < damaged.length - 200; i += 997) damaged[i] ^= 0x55;
+			const error = await photoError(processImage(damaged));
+			expect(error.code).toBe('corrupt');
+			expect(error.message).toMatch(/JPEG file is damaged/);
+			expect((await processImage(smallJpeg)).sourceType).toBe('jpeg');
+		});
+
 		it('a JPEG cut off inside its headers', async () => {
 			const error = await photoError(processImage(largeJpeg.subarray(0, 30)));
 			expect(error.code).toBe('corrupt');

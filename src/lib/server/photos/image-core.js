@@ -63,7 +63,7 @@ export class PhotoError extends Error {
 /**
  * @typedef {object} ImageDeps
  * @property {typeof import('@jimp/core').createJimp} createJimp
- * @property {ReturnType<typeof import('./jpeg-codec.js').createSharpJpeg>} jpeg the fast codec
+ * @property {ReturnType<typeof import('./jpeg-codec.js').createWasmJpeg>} jpeg the WebAssembly codec
  * @property {typeof import('@jimp/js-png').default} png
  * @property {typeof import('@jimp/plugin-resize').methods} resizeMethods
  */
@@ -314,6 +314,47 @@ function fitWithin(width, height, longSide) {
 }
 
 /**
+ * Shrinks by the largest whole factor that keeps the image at least `target` in both directions,
+ * averaging each k × k block of pixels (a box filter: exact for such a factor, and one pass in
+ * plain loops). Jimp's resize, much slower per source pixel, then only does the remaining
+ * reduction (less than 2×). The ratio of width to height stays within a pixel of the original.
+ * @param {Bitmap} bitmap
+ * @param {{ w: number, h: number } | null} target the size finally wanted, in the bitmap's
+ *   own orientation
+ * @returns {Bitmap}
+ */
+export function preShrink(bitmap, target) {
+	if (!target) return bitmap;
+	const { width: w, height: h, data: src } = bitmap;
+	const k = Math.floor(Math.min(w / target.w, h / target.h));
+	if (k < 2) return bitmap;
+	const outW = Math.floor(w / k);
+	const outH = Math.floor(h / k);
+	const out = Buffer.alloc(outW * outH * 4);
+	const area = k * k;
+	const half = area >> 1;
+	const sums = new Uint32Array(outW * 4);
+	for (let oy = 0; oy < outH; oy++) {
+		sums.fill(0);
+		for (let dy = 0; dy < k; dy++) {
+			let s = (oy * k + dy) * w * 4;
+			for (let ox = 0; ox < outW; ox++) {
+				const o = ox * 4;
+				for (let dx = 0; dx < k; dx++, s += 4) {
+					sums[o] += src[s];
+					sums[o + 1] += src[s + 1];
+					sums[o + 2] += src[s + 2];
+					sums[o + 3] += src[s + 3];
+				}
+			}
+		}
+		let d = oy * outW * 4;
+		for (let i = 0; i < sums.length; i++) out[d++] = ((sums[i] + half) / area) | 0;
+	}
+	return { data: out, width: outW, height: outH };
+}
+
+/**
  * @param {ImageDeps} deps
  * @returns {(input: Buffer | Uint8Array) => Promise<ProcessedImage>}
  */
@@ -337,30 +378,22 @@ export function createImageProcessor(deps) {
 	}
 
 	/**
-	 * A JPEG is decoded straight to the size wanted (long side ≤ `longSide`): libjpeg scales
-	 * while decoding (DCT scaling, as `djpeg -scale` does) and libvips finishes the reduction,
-	 * so a 12 MP photo is never held at full size. The stored orientation is applied after.
+	 * Decodes a JPEG in full (mozjpeg in WebAssembly) and checks it against its header.
 	 * @param {Buffer} buf
 	 * @param {ImageHeader} header
-	 * @param {number} longSide
 	 * @returns {Promise<Bitmap>}
 	 */
-	async function decodeJpeg(buf, header, longSide) {
-		const size = fitWithin(header.width, header.height, longSide);
+	async function decodeJpeg(buf, header) {
 		let decoded;
 		try {
-			decoded = await deps.jpeg.decode(buf, {
-				size: size ?? undefined,
-				maxPixels: MAX_PHOTO_PIXELS
-			});
+			decoded = await deps.jpeg.decode(buf);
 		} catch (error) {
 			throw damaged('jpeg', error);
 		}
-		const want = size ?? { w: header.width, h: header.height };
-		if (decoded.width !== want.w || decoded.height !== want.h) {
+		if (decoded.width !== header.width || decoded.height !== header.height) {
 			throw new PhotoError('corrupt', 'The image data does not match its header.');
 		}
-		return applyOrientation(decoded, header.orientation);
+		return decoded;
 	}
 
 	/**
@@ -382,44 +415,48 @@ export function createImageProcessor(deps) {
 	}
 
 	/**
+	 * Resizes to `size` (a cheap integer box shrink first, then jimp's resize for the rest) and
+	 * encodes as JPEG; `null` keeps the size.
 	 * @param {Bitmap} bitmap
-	 * @param {number} longSide
-	 * @returns {Promise<{ bytes: Buffer, width: number, height: number }>}
+	 * @param {{ w: number, h: number } | null} size
+	 * @returns {Promise<{ bytes: Buffer, bitmap: Bitmap }>}
 	 */
-	async function encodeWithin(bitmap, longSide) {
-		const image = new Jimp(bitmap);
-		const size = fitWithin(image.width, image.height, longSide);
-		if (size) image.resize(size);
+	async function encodeAt(bitmap, size) {
+		const image = new Jimp(preShrink(bitmap, size));
+		if (size && (image.width !== size.w || image.height !== size.h)) image.resize(size);
 		// JPEG has no alpha: the codec flattens transparent PNG areas onto white.
 		const bytes = await image.getBuffer('image/jpeg', { quality: JPEG_QUALITY });
-		return { bytes, width: image.width, height: image.height };
+		return { bytes, bitmap: image.bitmap };
 	}
 
 	return async function processImage(input) {
 		const buf = asBuffer(input);
 		const header = inspectImage(buf);
-		let full;
-		let thumb;
+		// Sizes are worked out once, from the header, for the upright image.
+		const turned = header.orientation >= 5;
+		const uprightW = turned ? header.height : header.width;
+		const uprightH = turned ? header.width : header.height;
+		const fullSize = fitWithin(uprightW, uprightH, FULL_LONG_SIDE);
+		const thumbSize = fitWithin(uprightW, uprightH, THUMB_LONG_SIDE);
+		let bitmap;
 		if (header.type === 'jpeg') {
-			// Two decodes at two sizes cost less than resizing the full image down again.
-			const [fullBitmap, thumbBitmap] = await Promise.all([
-				decodeJpeg(buf, header, FULL_LONG_SIDE),
-				decodeJpeg(buf, header, THUMB_LONG_SIDE)
-			]);
-			[full, thumb] = await Promise.all([
-				encodeWithin(fullBitmap, FULL_LONG_SIDE),
-				encodeWithin(thumbBitmap, THUMB_LONG_SIDE)
-			]);
+			const decoded = await decodeJpeg(buf, header);
+			// Turned upright after the first shrink, so fewer pixels are moved.
+			const storedSize = fullSize && turned ? { w: fullSize.h, h: fullSize.w } : fullSize;
+			bitmap = applyOrientation(preShrink(decoded, storedSize), header.orientation);
 		} else {
-			const bitmap = decodePng(buf, header);
-			full = await encodeWithin(bitmap, FULL_LONG_SIDE);
-			thumb = await encodeWithin(bitmap, THUMB_LONG_SIDE);
+			bitmap = decodePng(buf, header);
 		}
+		const full = await encodeAt(bitmap, fullSize);
+		// Read before the thumbnail is made: jimp resizes the bitmap object it is given in place.
+		const { width, height } = full.bitmap;
+		// The thumbnail comes from the full-size bitmap: far fewer pixels to reduce.
+		const thumb = await encodeAt(full.bitmap, thumbSize);
 		return {
 			full: full.bytes,
 			thumb: thumb.bytes,
-			width: full.width,
-			height: full.height,
+			width,
+			height,
 			originalWidth: header.width,
 			originalHeight: header.height,
 			sourceType: header.type,

@@ -3,7 +3,7 @@
  * Task module of a photo worker thread (tinypool calls the default export once per photo).
  * Never imported by the app: worker-pool.ts hands tinypool this file's text as a data: URL,
  * with the line marked below replaced by the absolute URLs of image-core.js (another data:
- * URL), jpeg-codec.js, sharp and the jimp packages — a data: module cannot resolve bare package
+ * URL), jpeg-codec.js, @jsquash/jpeg and the jimp packages — a data: module cannot resolve bare package
  * names or relative paths itself. See worker-pool.ts for why.
  */
 
@@ -11,7 +11,7 @@
  * @typedef {object} PhotoModuleUrls
  * @property {string} core image-core.js
  * @property {string} codec jpeg-codec.js
- * @property {string} sharp
+ * @property {string} jsquashJpeg entry file of the jSquash JPEG package (its .wasm files lie beside)
  * @property {string} jimpCore
  * @property {string} png the jimp PNG format
  * @property {string} resize the jimp resize plugin
@@ -30,10 +30,9 @@
 /** @type {PhotoModuleUrls} */
 const urls = JSON.parse('__PHOTO_MODULE_URLS__');
 
-const [core, codec, sharp, jimpCore, png, resize] = await Promise.all([
+const [core, codec, jimpCore, png, resize] = await Promise.all([
 	/** @type {Promise<typeof import('./image-core.js')>} */ (import(urls.core)),
 	/** @type {Promise<typeof import('./jpeg-codec.js')>} */ (import(urls.codec)),
-	/** @type {Promise<{ default: typeof import('sharp').default }>} */ (import(urls.sharp)),
 	/** @type {Promise<typeof import('@jimp/core')>} */ (import(urls.jimpCore)),
 	/** @type {Promise<typeof import('@jimp/js-png')>} */ (import(urls.png)),
 	/** @type {Promise<typeof import('@jimp/plugin-resize')>} */ (import(urls.resize))
@@ -41,7 +40,7 @@ const [core, codec, sharp, jimpCore, png, resize] = await Promise.all([
 
 const processImage = core.createImageProcessor({
 	createJimp: jimpCore.createJimp,
-	jpeg: codec.createSharpJpeg(sharp.default),
+	jpeg: await codec.loadWasmJpeg(urls.jsquashJpeg),
 	png: png.default,
 	resizeMethods: resize.methods
 });

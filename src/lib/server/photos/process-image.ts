@@ -1,10 +1,7 @@
 import { createJimp } from '@jimp/core';
 import png from '@jimp/js-png';
 import { methods as resizeMethods } from '@jimp/plugin-resize';
-// Loaded here, on the main thread, before any photo worker loads it: a native addon first
-// loaded by a worker thread can be unloaded when that worker exits, under the others' feet.
-import sharp from 'sharp';
-import { createSharpJpeg } from './jpeg-codec.js';
+import { loadWasmJpeg } from './jpeg-codec.js';
 import { createImageProcessor } from './image-core.js';
 import type { ProcessedImage } from './image-core.js';
 
@@ -18,12 +15,15 @@ export {
 } from './image-core.js';
 export type { ImageHeader, PhotoErrorCode, ProcessedImage } from './image-core.js';
 
-const processInThisThread = createImageProcessor({
-	createJimp,
-	jpeg: createSharpJpeg(sharp),
-	png,
-	resizeMethods
-});
+let processInThisThread: Promise<ReturnType<typeof createImageProcessor>> | undefined;
+
+/** Compiles the WebAssembly JPEG codec on first use (photo workers compile their own). */
+function getProcessor() {
+	processInThisThread ??= loadWasmJpeg(import.meta.resolve('@jsquash/jpeg')).then((jpeg) =>
+		createImageProcessor({ createJimp, jpeg, png, resizeMethods })
+	);
+	return processInThisThread;
+}
 
 /**
  * Checks an uploaded photo by content (JPEG or PNG, ≤ 20 MiB, ≤ 40 MP declared in the header,
@@ -31,9 +31,10 @@ const processInThisThread = createImageProcessor({
  * ≤ 2560 px) and a thumbnail (≤ 400 px), both without metadata. Throws PhotoError for a file
  * the uploader has to fix.
  *
- * Runs on the calling thread, where the pixel work in JavaScript (orientation, PNG) blocks it:
+ * Runs on the calling thread, where the pixel work (decoding, resizing, encoding) blocks it:
  * request handlers use processImageInPool from worker-pool.ts instead.
  */
-export function processImage(buffer: Buffer | Uint8Array): Promise<ProcessedImage> {
-	return processInThisThread(buffer);
+export async function processImage(buffer: Buffer | Uint8Array): Promise<ProcessedImage> {
+	const process = await getProcessor();
+	return process(buffer);
 }

@@ -1,6 +1,7 @@
 /**
  * Runs photo checks and re-encoding on worker threads (a tinypool pool), so the pixel work in
- * JavaScript — orientation, PNG decoding, jimp's bitmap handling — never stalls other requests.
+ * WebAssembly and JavaScript — JPEG (mozjpeg) and PNG decoding, resizing, encoding — never
+ * stalls other requests.
  *
  * How the worker is loaded, and why: the obvious `new URL('./photo-worker.js',
  * import.meta.url)` breaks in production. Vite rewrites that pattern for client code only; in
@@ -8,13 +9,15 @@
  * build/server/chunks/, and no such file is emitted. Pointing the worker at a server chunk
  * instead is not safe either, as a chunk may carry unrelated modules (database, env) that
  * would run inside the worker. So the worker code travels as text:
- *  - photo-worker.js, image-core.js and jpeg-codec.js are plain JS that import nothing;
+ *  - photo-worker.js, image-core.js and jpeg-codec.js are plain JS that import only Node
+ *    built-ins;
  *  - under Vite (dev server, vitest, `vite build`) `import.meta.glob(…, { query: '?raw' })`
  *    inlines the files as strings; under tsx, which has no import.meta.glob, they are read
  *    from disk next to this file (where the sources are, as tsx only runs from the source tree);
  *  - tinypool starts photo-worker.js from a data: URL, with the URLs of image-core.js and
- *    jpeg-codec.js (data: URLs too) and of sharp and the jimp packages (absolute, resolved here
- *    with import.meta.resolve) written into its text.
+ *    jpeg-codec.js (data: URLs too) and of @jsquash/jpeg and the jimp packages (absolute,
+ *    resolved here with import.meta.resolve) written into its text; each worker compiles the
+ *    codec's .wasm files, found beside @jsquash/jpeg's entry, once when it starts.
  * The main thread runs the same image-core.js via process-image.ts, so both paths agree.
  */
 import { readFileSync } from 'node:fs';
@@ -71,7 +74,7 @@ function getWorkerUrl(): string {
 		const urls: PhotoModuleUrls = {
 			core: toDataUrl(sources['./image-core.js']),
 			codec: toDataUrl(sources['./jpeg-codec.js']),
-			sharp: import.meta.resolve('sharp'),
+			jsquashJpeg: import.meta.resolve('@jsquash/jpeg'),
 			jimpCore: import.meta.resolve('@jimp/core'),
 			png: import.meta.resolve('@jimp/js-png'),
 			resize: import.meta.resolve('@jimp/plugin-resize')
