@@ -13,7 +13,7 @@ test('a planner enters a run, then the same counter readings again, and is refus
 	const enter = async (countedAt: string) => {
 		await page.goto('/shots/new?die=D-0133');
 		await page.getByLabel('Press').selectOption('CC-25B');
-		await page.getByLabel('Counted at (UTC)').fill(countedAt);
+		await page.getByLabel('Counted at (plant time)').fill(countedAt);
 		await page.getByLabel('Counter at start').fill('50200');
 		await page.getByLabel('Counter at end').fill('50512');
 		await page.getByRole('button', { name: 'Count shots' }).click();

@@ -26,7 +26,7 @@ test('a scheduler opens the board, books a die on a suitable press and sees why 
 	// Book D-0107 (zinc, 106 cm², hot chamber) on HC-20 (hot chamber, 1 961 kN), well ahead.
 	const day = dayAhead(200);
 	await page.goto(`/bookings/new?die=D-0107&press=HC-20&start=${day}`);
-	await expect(page.getByLabel('Die')).toHaveValue('D-0107');
+	await expect(page.getByLabel('Die', { exact: true })).toHaveValue('D-0107');
 	await expect(page.getByLabel('Press')).toHaveValue('HC-20');
 	await page.getByLabel('Order reference').fill('E2E-SCHED-1');
 	await page.getByLabel('Good parts ordered').fill('2000');
@@ -75,7 +75,7 @@ test('a scheduler opens the board, books a die on a suitable press and sees why 
 test('the die search suggests dies as the planner types', async ({ page }) => {
 	await signIn(page, 'scheduler');
 	await page.goto('/bookings/new');
-	await page.getByLabel('Die').fill('D-013');
+	await page.getByLabel('Die', { exact: true }).fill('D-013');
 	await expect(page.locator('#booking-die-options option[value="D-0135"]')).toHaveCount(1);
 });
 
@@ -84,7 +84,7 @@ test('the order check shows shots, clamping force and the chance the die lasts',
 }, info) => {
 	await signIn(page, 'scheduler');
 	await page.goto('/order-check');
-	await page.getByLabel('Die').fill('D-0135');
+	await page.getByLabel('Die', { exact: true }).fill('D-0135');
 	await page.getByLabel('Good parts').fill('5000');
 	await page.getByLabel('Expected scrap (%)').fill('2');
 	await page.getByLabel('Press').selectOption('CC-160');

@@ -97,6 +97,10 @@ test('a toolmaker opens a job, adds photos, inspects, checks cooling and closes 
 
 	// A cooling check at 70 % of nominal flow is flagged.
 	await page.goto(`/dies/${DIE}/cooling`);
+	// The die has the plant's standard circuits too: check the one the lead just added.
+	const circuit = page.getByLabel('Circuit', { exact: true });
+	const e2eValue = await circuit.locator('option', { hasText: 'C1 e2e' }).getAttribute('value');
+	await circuit.selectOption(e2eValue!);
 	await page.getByLabel('Measured flow, L/min').fill('14');
 	await page.getByLabel('Inlet, °C').fill('30');
 	await page.getByLabel('Outlet, °C').fill('36');
