@@ -3,8 +3,19 @@ import { signIn } from './support';
 
 // Dies used only by this file: D-0133 (cold chamber, runs on CC-25B) and D-0136 (cold chamber).
 
-/** `YYYY-MM-DDTHH:MM` (UTC) some minutes before now, as the datetime-local field takes it. */
-const minutesAgo = (m: number) => new Date(Date.now() - m * 60_000).toISOString().slice(0, 16);
+/** `YYYY-MM-DDTHH:MM` on the demo plant's clock (Vienna) some minutes before now, as typed. */
+const minutesAgo = (m: number) =>
+	new Intl.DateTimeFormat('sv-SE', {
+		timeZone: 'Europe/Vienna',
+		year: 'numeric',
+		month: '2-digit',
+		day: '2-digit',
+		hour: '2-digit',
+		minute: '2-digit',
+		hourCycle: 'h23'
+	})
+		.format(new Date(Date.now() - m * 60_000))
+		.replace(' ', 'T');
 
 test('a planner enters a run, then the same counter readings again, and is refused with the earlier entry named', async ({
 	page
@@ -29,7 +40,7 @@ test('a planner enters a run, then the same counter readings again, and is refus
 	await enter(minutesAgo(30));
 	const refusal = page.getByText(/Counter 50,200 → 50,512 overlaps the entry of/);
 	await expect(refusal).toBeVisible();
-	await expect(refusal).toContainText(`${first.replace('T', ' ')} UTC`);
+	await expect(refusal).toContainText(`${first.replace('T', ' ')} Europe/Vienna`);
 	await expect(refusal).toContainText('by Dev Castellanos');
 	await expect(refusal).toContainText('on CC-25B (counter 50,200 → 50,512, 312 shots)');
 	await page.screenshot({ path: info.outputPath('overlap-refused.png'), fullPage: true });
