@@ -32,3 +32,31 @@ describe('findJobOpenedMeanwhile', () => {
 		).toBeNull();
 	});
 });
+
+describe('findRecentTwin', () => {
+	it('takes the same person’s same kind of job on the die within 15 minutes as the second press', async () => {
+		const { findRecentTwin } = await import('../../src/lib/server/toolroom/resubmit');
+		const first = await openJob(plant.db, {
+			dieId: plant.dieId,
+			form: jobForm(),
+			actor: plant.toolmaker,
+			at: '2026-03-01T10:00:00.000Z'
+		});
+		expect(first).toEqual({ ok: true, number: 'TJ-00001' });
+		const ask = (over: Partial<{ userId: string; kind: string; now: string; dieId: number }>) =>
+			findRecentTwin(plant.db, {
+				dieId: plant.dieId,
+				userId: plant.toolmaker.userId,
+				kind: 'repair',
+				now: '2026-03-01T10:14:00.000Z',
+				...over
+			});
+		// 14 minutes later, same person, same kind, same die: the job the first press opened.
+		expect(await ask({})).toBe('TJ-00001');
+		// 16 minutes later it is a new request; another person, kind or die is not a twin.
+		expect(await ask({ now: '2026-03-01T10:16:00.000Z' })).toBeNull();
+		expect(await ask({ userId: plant.lead.userId })).toBeNull();
+		expect(await ask({ kind: 'modification' })).toBeNull();
+		expect(await ask({ dieId: plant.otherDieId })).toBeNull();
+	});
+});

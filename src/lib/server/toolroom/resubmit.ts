@@ -34,3 +34,30 @@ export function parseKnownOpenJobs(value: FormDataEntryValue | null): string[] |
 		.map((s) => s.trim())
 		.filter((s) => /^[A-Z]{1,4}-\d{1,9}$/i.test(s));
 }
+
+/** How long after opening a job the same person's same request is taken as a second press. */
+export const TWIN_WINDOW_MINUTES = 15;
+
+/**
+ * The open job this person opened on this die for the same kind of work within the last
+ * TWIN_WINDOW_MINUTES, or null. Browser Back re-renders the form with the new job already listed,
+ * so the form's own list cannot tell a second press from a deliberate second job; this can.
+ * A deliberate second job of the same kind is opened with `openAnother` ticked.
+ */
+export async function findRecentTwin(
+	db: DB,
+	input: { dieId: number; userId: string; kind: string; now: string }
+): Promise<string | null> {
+	const since = new Date(Date.parse(input.now) - TWIN_WINDOW_MINUTES * 60_000).toISOString();
+	const row = await db
+		.selectFrom('toolroom_jobs')
+		.select('number')
+		.where('die_id', '=', input.dieId)
+		.where('opened_by', '=', input.userId)
+		.where('kind', '=', input.kind)
+		.where('status', 'in', [...OPEN])
+		.where('opened_at', '>=', since)
+		.orderBy('opened_at', 'desc')
+		.executeTakeFirst();
+	return row?.number ?? null;
+}

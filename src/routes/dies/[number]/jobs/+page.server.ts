@@ -17,7 +17,11 @@ import {
 	listJobsForDie,
 	openJob
 } from '$lib/server/toolroom/jobs';
-import { findJobOpenedMeanwhile, parseKnownOpenJobs } from '$lib/server/toolroom/resubmit';
+import {
+	findJobOpenedMeanwhile,
+	findRecentTwin,
+	parseKnownOpenJobs
+} from '$lib/server/toolroom/resubmit';
 import type { Actions, PageServerLoad } from './$types';
 
 const positiveInt = (value: string | null) => {
@@ -70,11 +74,20 @@ export const actions: Actions = {
 		const form = await superValidate(body, zod4(openJobSchema));
 		if (!form.valid) return fail(400, { form });
 		// Back and submit again: go to the job the first press opened instead of opening a twin.
-		const twin = await findJobOpenedMeanwhile(
-			getDb(),
-			die.id,
-			parseKnownOpenJobs(body.get('knownOpenJobs'))
-		);
+		const twin =
+			(await findJobOpenedMeanwhile(
+				getDb(),
+				die.id,
+				parseKnownOpenJobs(body.get('knownOpenJobs'))
+			)) ??
+			(body.get('openAnother') === 'on'
+				? null
+				: await findRecentTwin(getDb(), {
+						dieId: die.id,
+						userId: user.id,
+						kind: form.data.kind,
+						now: new Date().toISOString()
+					}));
 		if (twin) redirect(303, `/jobs/${twin}?already=1`);
 		const result = await openJob(getDb(), {
 			dieId: die.id,
