@@ -360,7 +360,15 @@ describe('every bad input gets its own message and changes nothing', () => {
 				{
 					index: 0,
 					field: 'key',
-					message: `The key "gw-1" was already used for another die's count.`
+					// hoursFromNow(-3) = 2026-06-10 09:00 UTC (the test plant runs on UTC).
+					message: `The key "gw-1" was already used for a different count (10 shots counted 2026-06-10 09:00 UTC); send a new key for a new count.`,
+					original: {
+						die: null,
+						shots: 10,
+						countedAt: '2026-06-10T09:00:00.000Z',
+						counterStart: null,
+						counterEnd: null
+					}
 				}
 			]
 		});

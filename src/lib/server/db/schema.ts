@@ -159,6 +159,8 @@ export interface ShotEntriesTable {
 	counter_end: number | null;
 	source: ShotSource;
 	idem_key: string | null;
+	/** Whose key it is: 'plant', or 'customer:{id}' for a customer-bound token. */
+	key_scope: Generated<string>;
 	entered_by: string | null;
 	token_id: number | null;
 	note: string | null;

@@ -4,6 +4,7 @@ import { notePressFeed } from '../schedule/press-feed';
 import { nowIso } from '../time';
 import {
 	isCounterOverlapIssue,
+	isKeyConflictIssue,
 	isUnknownDieIssue,
 	MAX_BATCH,
 	normalizeInstant,
@@ -23,7 +24,11 @@ export interface IngestAnswer {
 				/** Plausibility warnings; those entries are counted and marked "to review". */
 				warnings: { index: number; message: string }[];
 		  }
-		| { error: string; issues?: { index: number; field: string; message: string }[] };
+		| {
+				error: string;
+				issues?: { index: number; field: string; message: string }[];
+				original?: ShotIssue['original'];
+		  };
 }
 
 const plain = (i: ShotIssue) => ({ index: i.index, field: i.field, message: i.message });
@@ -126,6 +131,16 @@ export async function ingestShotBody(
 			return { status: 404, body: { error: issues[0].message } };
 		}
 		// A single entry whose counter readings are already in the ledger conflicts with it.
+		if (single && issues.length === 1 && isKeyConflictIssue(issues[0])) {
+			return {
+				status: 409,
+				body: {
+					error: issues[0].message,
+					issues: issues.map(plain),
+					original: issues[0].original
+				}
+			};
+		}
 		if (single && issues.length === 1 && isCounterOverlapIssue(issues[0])) {
 			return { status: 409, body: { error: issues[0].message, issues: issues.map(plain) } };
 		}

@@ -35,12 +35,39 @@ export interface ShotIssue {
 	index: number;
 	field: string;
 	message: string;
+	/** For a key already used for a different count: that count (the API's 409 shows it). */
+	original?: {
+		die: string | null;
+		shots: number;
+		countedAt: string;
+		counterStart: number | null;
+		counterEnd: number | null;
+	};
 }
 
 const UNKNOWN_DIE = 'There is no die ';
 /** True for the issue of a die that does not exist (or belongs to another owner): a 404 alone. */
 export const isUnknownDieIssue = (i: ShotIssue) =>
 	i.field === 'die' && i.message.startsWith(UNKNOWN_DIE);
+
+const KEY_CONFLICT = 'The key ';
+/** True for a key already used for a different count (the API answers a single entry 409). */
+export const isKeyConflictIssue = (i: ShotIssue) =>
+	i.field === 'key' && i.message.startsWith(KEY_CONFLICT) && i.original !== undefined;
+
+/** Whose idempotency keys a caller's keys are: the plant's, or one customer's. */
+export const keyScopeOf = (actor: Pick<LedgerActor, 'customerId'>) =>
+	actor.customerId === null ? 'plant' : `customer:${actor.customerId}`;
+
+interface KeyOwner {
+	id: number;
+	idem_key: string;
+	die_id: number;
+	shots: number;
+	counted_at: string;
+	counter_start: number | null;
+	counter_end: number | null;
+}
 
 /** True for a refusal because the counter readings were already counted (overlap or went back). */
 export const isCounterOverlapIssue = (i: ShotIssue) =>
@@ -164,9 +191,9 @@ function statements(raw: SQLite.Database) {
 			    and e.counted_at < ? and e.counted_at >= ?
 			  order by e.counted_at desc limit 1`
 		),
-		keyOwners: raw.prepare<string[], { idem_key: string; die_id: number }>(
-			`select idem_key, die_id from shot_entries
-			  where idem_key in (select value from json_each(?)) and idem_key is not null`
+		keyOwners: raw.prepare<[string, string], KeyOwner>(
+			`select id, idem_key, die_id, shots, counted_at, counter_start, counter_end from shot_entries
+			  where key_scope = ? and idem_key in (select value from json_each(?)) and idem_key is not null`
 		),
 		// Index seek on (die_id, counted_at), walking back past corrections (they are not readings).
 		previousReading: raw.prepare<[number, string], { counted_at: string }>(
@@ -178,8 +205,8 @@ function statements(raw: SQLite.Database) {
 		insert: raw.prepare(
 			`insert into shot_entries (die_id, machine_id, counted_at, shots, counter_start, counter_end,
 			   source, idem_key, entered_by, token_id, note, created_at, counter_reset, reset_reason,
-			   warning, review_state, reviewed_by, reviewed_at, review_reason, replaces_id)
-			 values (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`
+			   warning, review_state, reviewed_by, reviewed_at, review_reason, replaces_id, key_scope)
+			 values (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)`
 		),
 		daily: raw.prepare(
 			`insert into shot_daily (die_id, day, shots) values (?, ?, ?)
@@ -398,11 +425,12 @@ function checkRows(
 	const nowMs = Date.parse(opts.now);
 	const correction = opts.source === 'correction';
 	// Which of the batch's keys the ledger already holds: one index walk for the whole batch.
-	const keyOwners = new Map<string, number>();
+	const keyOwners = new Map<string, KeyOwner>();
+	const scope = keyScopeOf(actor);
 	const keys = inputs.map((i) => (typeof i?.key === 'string' ? i.key.trim() : '')).filter(Boolean);
 	for (let k = 0; k < keys.length; k += 1000) {
-		for (const r of st.keyOwners.all(JSON.stringify(keys.slice(k, k + 1000)))) {
-			keyOwners.set(r.idem_key, r.die_id);
+		for (const r of st.keyOwners.all(scope, JSON.stringify(keys.slice(k, k + 1000)))) {
+			keyOwners.set(r.idem_key, r);
 		}
 	}
 
@@ -534,8 +562,27 @@ function checkRows(
 			batchKeys.add(key);
 			const owner = keyOwners.get(key);
 			if (owner !== undefined) {
-				if (owner !== die.id) {
-					return issue('key', `The key "${key}" was already used for another die's count.`);
+				// The same key with another count is a different entry, never a silent duplicate.
+				const sameCount =
+					owner.die_id === die.id &&
+					owner.shots === shots &&
+					(input.counterStart ?? null) === owner.counter_start &&
+					(input.counterEnd ?? null) === owner.counter_end &&
+					(input.countedAt == null || input.countedAt === '' || owner.counted_at === countedAt);
+				if (!sameCount) {
+					issues.push({
+						index: current,
+						field: 'key',
+						message: `${KEY_CONFLICT}"${key}" was already used for a different count (${owner.shots} shots counted ${shortTime(Date.parse(owner.counted_at))}); send a new key for a new count.`,
+						original: {
+							die: owner.die_id === die.id ? die.number : null,
+							shots: owner.shots,
+							countedAt: owner.counted_at,
+							counterStart: owner.counter_start,
+							counterEnd: owner.counter_end
+						}
+					});
+					return;
 				}
 				rows.push({
 					index,
@@ -793,7 +840,8 @@ function writeRows(
 			confirmed ? actor.userId : null,
 			confirmed ? now : null,
 			confirmed ? row.input.confirmReason!.trim() : null,
-			replacesId
+			replacesId,
+			keyScopeOf(actor)
 		);
 		entryIds.push(Number(inserted.lastInsertRowid));
 		const day = dayOf(row.countedAt);
