@@ -25,7 +25,14 @@ test('typed job text comes back after a reload, and goes once the job is opened'
 	const text = 'Heat checking on the gate side insert, cavity 2; polish and re-inspect';
 	await page.getByLabel('What is wrong or what to do').fill(text);
 	await page.getByLabel('Zone (optional)').fill('gate side, cavity 2');
-	await page.waitForTimeout(500); // the draft is written 300 ms after typing stops
+	// The draft is written 300 ms after typing stops: wait until it is there, then reload.
+	await expect
+		.poll(() =>
+			page.evaluate(() =>
+				Object.values(localStorage).some((v) => v.includes('gate side, cavity 2'))
+			)
+		)
+		.toBe(true);
 	await page.reload();
 	await expect(page.getByTestId('draft-note')).toContainText('Your draft from');
 	await expect(page.getByLabel('What is wrong or what to do')).toHaveValue(text);

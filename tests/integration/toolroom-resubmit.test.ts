@@ -34,7 +34,7 @@ describe('findJobOpenedMeanwhile', () => {
 });
 
 describe('findRecentTwin', () => {
-	it('takes the same person’s same kind of job on the die within 15 minutes as the second press', async () => {
+	it('takes the same person’s same job (kind and words) on the die within 15 minutes as the second press', async () => {
 		const { findRecentTwin } = await import('../../src/lib/server/toolroom/resubmit');
 		const first = await openJob(plant.db, {
 			dieId: plant.dieId,
@@ -43,11 +43,20 @@ describe('findRecentTwin', () => {
 			at: '2026-03-01T10:00:00.000Z'
 		});
 		expect(first).toEqual({ ok: true, number: 'TJ-00001' });
-		const ask = (over: Partial<{ userId: string; kind: string; now: string; dieId: number }>) =>
+		const ask = (
+			over: Partial<{
+				userId: string;
+				kind: string;
+				description: string;
+				now: string;
+				dieId: number;
+			}>
+		) =>
 			findRecentTwin(plant.db, {
 				dieId: plant.dieId,
 				userId: plant.toolmaker.userId,
 				kind: 'repair',
+				description: jobForm().description,
 				now: '2026-03-01T10:14:00.000Z',
 				...over
 			});
@@ -57,6 +66,8 @@ describe('findRecentTwin', () => {
 		expect(await ask({ now: '2026-03-01T10:16:00.000Z' })).toBeNull();
 		expect(await ask({ userId: plant.lead.userId })).toBeNull();
 		expect(await ask({ kind: 'modification' })).toBeNull();
+		// Other words are another job, opened on purpose.
+		expect(await ask({ description: 'Replace the ejector pins' })).toBeNull();
 		expect(await ask({ dieId: plant.otherDieId })).toBeNull();
 	});
 });

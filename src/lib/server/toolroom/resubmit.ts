@@ -39,14 +39,14 @@ export function parseKnownOpenJobs(value: FormDataEntryValue | null): string[] |
 export const TWIN_WINDOW_MINUTES = 15;
 
 /**
- * The open job this person opened on this die for the same kind of work within the last
- * TWIN_WINDOW_MINUTES, or null. Browser Back re-renders the form with the new job already listed,
+ * The open job this person opened on this die for the same kind of work, with the same words,
+ * within the last TWIN_WINDOW_MINUTES, or null. Browser Back re-renders the form with the new job already listed,
  * so the form's own list cannot tell a second press from a deliberate second job; this can.
  * A deliberate second job of the same kind is opened with `openAnother` ticked.
  */
 export async function findRecentTwin(
 	db: DB,
-	input: { dieId: number; userId: string; kind: string; now: string }
+	input: { dieId: number; userId: string; kind: string; description: string; now: string }
 ): Promise<string | null> {
 	const since = new Date(Date.parse(input.now) - TWIN_WINDOW_MINUTES * 60_000).toISOString();
 	const row = await db
@@ -55,6 +55,7 @@ export async function findRecentTwin(
 		.where('die_id', '=', input.dieId)
 		.where('opened_by', '=', input.userId)
 		.where('kind', '=', input.kind)
+		.where('description', '=', input.description.trim())
 		.where('status', 'in', [...OPEN])
 		.where('opened_at', '>=', since)
 		.orderBy('opened_at', 'desc')

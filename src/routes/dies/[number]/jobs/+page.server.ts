@@ -86,6 +86,7 @@ export const actions: Actions = {
 						dieId: die.id,
 						userId: user.id,
 						kind: form.data.kind,
+						description: form.data.description,
 						now: new Date().toISOString()
 					}));
 		if (twin) redirect(303, `/jobs/${twin}?already=1`);
