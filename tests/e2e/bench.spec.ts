@@ -23,15 +23,17 @@ test('typed job text comes back after a reload, and goes once the job is opened'
 	await signIn(page, 'toolmaker');
 	await page.goto('/dies/D-0139/jobs');
 	const text = 'Heat checking on the gate side insert, cavity 2; polish and re-inspect';
-	await page.getByLabel('What is wrong or what to do').fill(text);
-	await page.getByLabel('Zone (optional)').fill('gate side, cavity 2');
-	// The draft is written 300 ms after typing stops: wait until it is there, then reload.
+	// The draft is written 300 ms after typing stops, by script that starts once the page is
+	// hydrated: type (again, if the first keystrokes came before the script) until it is there.
 	await expect
-		.poll(() =>
-			page.evaluate(() =>
+		.poll(async () => {
+			await page.getByLabel('What is wrong or what to do').fill(text);
+			await page.getByLabel('Zone (optional)').fill('gate side, cavity 2');
+			await page.waitForTimeout(600);
+			return page.evaluate(() =>
 				Object.values(localStorage).some((v) => v.includes('gate side, cavity 2'))
-			)
-		)
+			);
+		})
 		.toBe(true);
 	await page.reload();
 	await expect(page.getByTestId('draft-note')).toContainText('Your draft from');
