@@ -31,6 +31,7 @@ import {
 	voidCoolingCheck
 } from '$lib/server/toolroom/cooling';
 import { getJob } from '$lib/server/toolroom/jobs';
+import { voidRecordAction } from '$lib/server/toolroom/void-action';
 import type { Actions, PageServerLoad } from './$types';
 
 /** The heat-balance inputs from the URL: none given, valid, or field errors to show. */
@@ -179,26 +180,11 @@ export const actions: Actions = {
 		return { checkForm: form, taskOffer: result.offer };
 	},
 
-	voidCheck: async (event) => {
-		const user = requireRole(event, ...TOOLROOM_LEADS);
-		const die = await loadPlantDie(event.params.number);
-		const form = await superValidate(event.request, zod4(voidRecordSchema), { id: 'voidCheck' });
-		if (!form.valid) return fail(400, { voidForm: form });
-		const result = await voidCoolingCheck(getDb(), {
-			dieId: die.id,
-			checkId: form.data.id,
-			reason: form.data.reason,
-			actor: { userId: user.id, role: user.role }
-		});
-		if (!result.ok) {
-			const field = result.field === 'reason' ? 'reason' : 'id';
-			return setError(form, field, result.message, { status: result.status });
-		}
-		return message(
-			form,
-			'Check voided: it stays in the list, struck through, and no longer counts.'
-		);
-	},
+	voidCheck: voidRecordAction(
+		'voidCheck',
+		(db, { id, ...rest }) => voidCoolingCheck(db, { checkId: id, ...rest }),
+		'Check voided: it stays in the list, struck through, and no longer counts.'
+	),
 
 	correctCheck: async (event) => {
 		const user = requireRole(event, ...TOOLROOM_LEADS);

@@ -30,6 +30,7 @@ import {
 	voidInspection
 } from '$lib/server/toolroom/inspections';
 import { getJob } from '$lib/server/toolroom/jobs';
+import { voidRecordAction } from '$lib/server/toolroom/void-action';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -125,28 +126,11 @@ export const actions: Actions = {
 		return { form, taskOffer: result.offer };
 	},
 
-	voidInspection: async (event) => {
-		const user = requireRole(event, ...TOOLROOM_LEADS);
-		const die = await loadPlantDie(event.params.number);
-		const form = await superValidate(event.request, zod4(voidRecordSchema), {
-			id: 'voidInspection'
-		});
-		if (!form.valid) return fail(400, { voidForm: form });
-		const result = await voidInspection(getDb(), {
-			dieId: die.id,
-			inspectionId: form.data.id,
-			reason: form.data.reason,
-			actor: { userId: user.id, role: user.role }
-		});
-		if (!result.ok) {
-			const field = result.field === 'reason' ? 'reason' : 'id';
-			return setError(form, field, result.message, { status: result.status });
-		}
-		return message(
-			form,
-			'Inspection voided: it stays on the timeline, struck through, and leaves grade and trend.'
-		);
-	},
+	voidInspection: voidRecordAction(
+		'voidInspection',
+		(db, { id, ...rest }) => voidInspection(db, { inspectionId: id, ...rest }),
+		'Inspection voided: it stays on the timeline, struck through, and leaves grade and trend.'
+	),
 
 	correctInspection: async (event) => {
 		const user = requireRole(event, ...TOOLROOM_LEADS);
