@@ -8,6 +8,15 @@ export interface PlantSettingsTable {
 	updated_by: string | null;
 }
 
+/** The plant's replacement lead time per alloy family, days (used when a die has none of its own). */
+export interface ReplacementLeadDefaultsTable {
+	family: 'zinc' | 'magnesium' | 'aluminium' | 'copper';
+	lead_days: number;
+	updated_at: string | null;
+	updated_by: string | null;
+}
+
 export interface PlantSettingsTables {
 	plant_settings: PlantSettingsTable;
+	replacement_lead_defaults: ReplacementLeadDefaultsTable;
 }

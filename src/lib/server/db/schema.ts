@@ -128,6 +128,8 @@ export interface DiesTable {
 	retirement_reason: RetirementReason | null;
 	/** 1 when the toolroom lead has locked the die's cooling circuit list against edits. */
 	cooling_locked: Generated<Flag>;
+	/** Days to get a replacement die; null = the plant's default for the alloy family. */
+	replacement_lead_days: number | null;
 }
 
 export interface DieHalvesTable {
