@@ -443,6 +443,14 @@ describe('real answers match the description', () => {
 		expect(both.status).toBe(400);
 		expect(both.body.issues).toEqual([expect.objectContaining({ field: 'machine' })]);
 		expect((await call('POST', t, t, { body: { die: 'D-9999', shots: 5 } })).status).toBe(404);
+		// An unknown press is reported under the name the caller used for it.
+		const noPress = await call('POST', t, t, { body: { die: ownerDie, shots: 5, press: 'NOPE' } });
+		expect(noPress.status).toBe(400);
+		expect(noPress.body.issues).toEqual([expect.objectContaining({ field: 'press' })]);
+		const oldName = await call('POST', t, t, {
+			body: { die: ownerDie, shots: 5, machine: 'NOPE' }
+		});
+		expect(oldName.body.issues).toEqual([expect.objectContaining({ field: 'machine' })]);
 		const batch = await call('POST', t, t, { body: [{ die: ownerDie, shots: -1 }, { die: 7 }] });
 		expect(batch.status).toBe(400);
 		expect((batch.body.issues as { index: number }[]).map((i) => i.index)).toContain(1);
