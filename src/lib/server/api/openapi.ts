@@ -1,4 +1,5 @@
 import { DEFAULT_SCRAP_PCT } from '../../schemas/schedule';
+import { CUSTOMER_FIELDS } from '../owner/customer-fields';
 import { MAX_BATCH } from '../shots/ledger';
 
 /**
@@ -97,19 +98,8 @@ const tableOf = (description: string) => ({
 
 const booking = {
 	type: 'object',
-	required: [
-		'id',
-		'die',
-		'part',
-		'customer',
-		'press',
-		'startsAt',
-		'endsAt',
-		'parts',
-		'shotsPlanned',
-		'status',
-		'cancelledAt'
-	],
+	// What a tooling owner reads is always there; the plant's own fields come on top.
+	required: [...CUSTOMER_FIELDS.booking],
 	properties: {
 		id: { type: 'integer' },
 		die: { type: 'string' },
