@@ -17,6 +17,7 @@ export const NAV: Record<RoleName, NavItem[]> = {
 		{ href: '/fleet', label: 'Fleet life' },
 		{ href: '/admin/users', label: 'Users' },
 		{ href: '/admin/tokens', label: 'API tokens' },
+		{ href: '/admin/api', label: 'API' },
 		{ href: '/admin/invites', label: 'Invitations' },
 		{ href: '/admin/outbox', label: 'Outbox' },
 		{ href: '/admin/audit', label: 'Audit log' },

@@ -240,6 +240,8 @@ test('item 5: a customer session and a customer-bound token get only the custome
 	const DIE = [
 		'number',
 		'part',
+		// Shown in the owner portal and its CSV as well.
+		'partNumber',
 		'customer',
 		'alloy',
 		'family',

@@ -123,7 +123,9 @@ export const dieListQuerySchema = z.object({
 	status: z.enum(['ready', 'running', 'in_toolroom', 'held', 'retired', 'active', '']).catch(''),
 	owner: z.string().trim().max(20).catch(''),
 	family: z.enum(['zinc', 'magnesium', 'aluminium', 'copper', '']).catch(''),
-	sort: z.enum(['number', 'part', 'owner', 'alloy', 'status', 'shots', 'life']).catch('number'),
+	sort: z
+		.enum(['number', 'part', 'partNumber', 'owner', 'alloy', 'status', 'shots', 'life'])
+		.catch('number'),
 	dir: z.enum(['asc', 'desc']).catch('asc'),
 	page: z.coerce.number().int().min(1).max(100000).catch(1),
 	size: z.coerce.number().int().min(10).max(200).catch(50)

@@ -21,16 +21,20 @@ const SESSION_SCOPES: Record<ApiScope, RoleName[]> = {
 
 /**
  * The one check for `/api/v1` routes: a Bearer token with the scope, or a session whose role
- * carries it. 401 for no or bad credentials, 403 for a missing scope.
+ * carries it. 401 for no or bad credentials, 403 for a missing scope. `'any'` admits every valid
+ * token and session whatever its scopes (the API description, which every client needs).
  */
-export async function authorizeApi(event: RequestEvent, scope: ApiScope): Promise<Principal> {
+export async function authorizeApi(
+	event: RequestEvent,
+	scope: ApiScope | 'any'
+): Promise<Principal> {
 	const header = event.request.headers.get('authorization');
 	if (header) {
 		const match = /^Bearer\s+(\S+)$/i.exec(header);
 		if (!match) throw new ApiError(401, 'Use the header "Authorization: Bearer <token>".');
 		const token = await findActiveToken(getDb(), match[1]);
 		if (!token) throw new ApiError(401, 'The API token is unknown, revoked or expired.');
-		if (!token.scopes.includes(scope)) {
+		if (scope !== 'any' && !token.scopes.includes(scope)) {
 			throw new ApiError(403, `The API token lacks the scope ${scope}.`);
 		}
 		return { userId: null, tokenId: token.tokenId, role: null, customerId: token.customerId };
@@ -40,7 +44,7 @@ export async function authorizeApi(event: RequestEvent, scope: ApiScope): Promis
 	if (user.mustChangePassword) {
 		throw new ApiError(403, 'Change the password an admin set for you first (on /account).');
 	}
-	if (!SESSION_SCOPES[scope].includes(user.role)) {
+	if (scope !== 'any' && !SESSION_SCOPES[scope].includes(user.role)) {
 		throw new ApiError(403, `Your role may not use ${scope}.`);
 	}
 	return {

@@ -22,6 +22,7 @@ export function dieApiView(row: DieListRow) {
 	return {
 		number: row.number,
 		part: row.partName,
+		partNumber: row.partNumber,
 		customer: { code: row.customerCode, name: row.customerName },
 		alloy: row.alloyCode,
 		family: row.family,

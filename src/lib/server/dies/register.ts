@@ -15,6 +15,8 @@ export interface DieListRow {
 	id: number;
 	number: string;
 	partName: string;
+	/** The customer's part number, when the plant recorded one. */
+	partNumber: string | null;
 	customerCode: string;
 	customerName: string;
 	alloyCode: string;
@@ -64,6 +66,8 @@ function baseQuery(db: DB, query: Partial<DieListQuery>, scope: DieScope) {
 const SORT_COLUMNS = {
 	number: sql`dies.number`,
 	part: sql`dies.part_name`,
+	// Dies without a part number sort after those with one, whichever the direction.
+	partNumber: sql`dies.part_number is null, dies.part_number collate nocase`,
 	owner: sql`customers.name`,
 	alloy: sql`alloys.code`,
 	status: sql`dies.status`,
@@ -86,6 +90,7 @@ export async function listDies(
 				'dies.id',
 				'dies.number',
 				'dies.part_name as partName',
+				'dies.part_number as partNumber',
 				'customers.code as customerCode',
 				'customers.name as customerName',
 				'alloys.code as alloyCode',

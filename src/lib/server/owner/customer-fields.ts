@@ -24,6 +24,8 @@ export const CUSTOMER_FIELDS = {
 	die: [
 		'number',
 		'part',
+		// The owner portal and its CSV show the part number too.
+		'partNumber',
 		'customer',
 		'alloy',
 		'family',

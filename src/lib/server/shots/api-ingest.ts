@@ -76,7 +76,8 @@ export async function ingestShotBody(
 	}
 
 	const issues: ShotIssue[] = [];
-	const valid: { index: number; input: ShotInput }[] = [];
+	// Which name the caller gave the press: `press`, or `machine`, its old name still read on input.
+	const valid: { index: number; input: ShotInput; pressField: 'press' | 'machine' }[] = [];
 	items.forEach((item, index) => {
 		const parsed = apiShotEntrySchema.safeParse(item);
 		if (!parsed.success) {
@@ -96,6 +97,7 @@ export async function ingestShotBody(
 		const e = parsed.data;
 		valid.push({
 			index,
+			pressField: e.press || !e.machine ? 'press' : 'machine',
 			input: {
 				die: e.die,
 				shots:
@@ -123,7 +125,12 @@ export async function ingestShotBody(
 			})
 		: null;
 	if (result && !result.ok) {
-		for (const i of result.issues) issues.push({ ...i, index: valid[i.index]?.index ?? i.index });
+		for (const i of result.issues) {
+			const row = valid[i.index];
+			// The ledger calls the press `machine` inside; the answer names the field the caller sent.
+			const field = i.field === 'machine' ? (row?.pressField ?? 'press') : i.field;
+			issues.push({ ...i, field, index: row?.index ?? i.index });
+		}
 	}
 	if (issues.length) {
 		issues.sort((a, b) => a.index - b.index);

@@ -18,6 +18,7 @@ export const GET: RequestHandler = async (event) => {
 		[
 			'die',
 			'part',
+			'part_number',
 			'owner',
 			'alloy',
 			'family',
@@ -31,6 +32,7 @@ export const GET: RequestHandler = async (event) => {
 		rows.map((r) => [
 			r.number,
 			r.partName,
+			r.partNumber ?? '',
 			r.customerName,
 			r.alloyCode,
 			r.family,

@@ -29,6 +29,7 @@ export const GET = apiRoute(async (event) => {
 				id: die.id,
 				number: die.number,
 				partName: die.part_name,
+				partNumber: die.part_number,
 				customerCode: die.customerCode,
 				customerName: die.customerName,
 				alloyCode: die.alloyCode,
