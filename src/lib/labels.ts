@@ -168,3 +168,15 @@ export const IMPORT_ROW_LABELS = {
 	skip: { word: 'Skipped', mark: '–' },
 	problem: { word: 'Needs a fix', mark: '✗' }
 } as const;
+/**
+ * A verdict's mark (as on the order check) and the short word a narrow board bar falls back to;
+ * the full word is VERDICT_LABELS. Bars add a fill pattern, so none reads by colour alone.
+ */
+export const VERDICT_MARKS = { fits: '✓', warning: '!', blocked: '✕' } as const;
+export const VERDICT_SHORT = { fits: 'OK', warning: 'Risk', blocked: 'Blocked' } as const;
+/** Where a service window stands. */
+export const SERVICE_WINDOW_LABELS = {
+	reserved: { word: 'Reserved', mark: '◫' },
+	started: { word: 'Job opened', mark: '▶' },
+	problem: { word: 'Not started', mark: '✕' }
+} as const;

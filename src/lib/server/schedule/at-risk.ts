@@ -37,6 +37,8 @@ export type JudgeableBooking = Pick<
 	| 'parts'
 	| 'scrap_pct'
 	| 'shots_per_hour'
+	| 'order_ref'
+	| 'dieCustomerId'
 >;
 
 /**
