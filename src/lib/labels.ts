@@ -129,7 +129,10 @@ export const AUDIT_ACTION_LABELS: Record<string, string> = {
 	'shots.correct': 'Shot entry corrected',
 	'shots.confirm': 'Shot entry confirmed',
 	'shots.reset': 'Counter reset',
-	'die.import_update': 'Changed by a register import'
+	'die.import_update': 'Changed by a register import',
+	'window.reserve': 'Service window set aside for the toolroom',
+	'window.cancel': 'Service window called off',
+	'window.start': 'Toolroom job opened from a service window'
 };
 // Verdicts of the order check and the booking form (one judge: lib/server/schedule/verdict.ts).
 export const VERDICT_LABELS = {

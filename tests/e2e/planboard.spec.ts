@@ -111,3 +111,37 @@ test('a service window shows on the board, a booking over it is refused with the
 	await lead.close();
 	await planner.close();
 });
+
+test('on a 390 px phone the press view, the finder and the windows fit, and a bar opens its text on tap', async ({
+	browser
+}, info) => {
+	const context = await browser.newContext({
+		viewport: { width: 390, height: 844 },
+		hasTouch: true
+	});
+	const page = await context.newPage();
+	await signIn(page, 'scheduler');
+	const tooWide: string[] = [];
+	for (const url of ['/board?by=press', '/board/slots?die=D-0131&parts=500', '/service-windows']) {
+		await page.goto(url);
+		if (url.startsWith('/board?')) await expect(page.getByTestId('board-press-list')).toBeVisible();
+		const { scrollWidth, innerWidth } = await page.evaluate(() => ({
+			scrollWidth: document.documentElement.scrollWidth,
+			innerWidth: window.innerWidth
+		}));
+		if (scrollWidth > innerWidth) tooWide.push(`${url}: ${scrollWidth} px`);
+	}
+	expect(tooWide).toEqual([]);
+
+	// The timeline on the phone: a tap on a bar shows its full text, a link to the booking in it.
+	await page.goto('/board?by=press');
+	await page.getByText('Timeline', { exact: true }).click();
+	const bar = page.getByTestId('board-timeline').getByTestId('board-run').first();
+	await bar.tap();
+	await expect(bar).toHaveAttribute('aria-expanded', 'true');
+	const popover = page.getByTestId('board-run-popover').first();
+	await expect(popover).toBeVisible();
+	await expect(popover.getByRole('link', { name: 'Open the booking' })).toBeVisible();
+	await page.screenshot({ path: info.outputPath('phone-bar-popover.png') });
+	await context.close();
+});

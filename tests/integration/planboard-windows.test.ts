@@ -328,3 +328,27 @@ describe('a window turns into a toolroom job when it starts', () => {
 		expect(jobs).toEqual([]);
 	});
 });
+
+describe('the die’s history words the window entries', () => {
+	test('reserve, start and cancel read as sentences', async () => {
+		const { describeHistoryEntry } = await import('../../src/lib/history');
+		const id = await reserveTuesday('Both halves');
+		await startServiceWindow(db, id, lead, at(1, 7));
+		await cancelServiceWindow(db, id, 'Done early', lead, at(1, 9));
+		const rows = await db
+			.selectFrom('audit_log')
+			.select(['action', 'detail'])
+			.where('action', 'like', 'window.%')
+			.orderBy('id')
+			.execute();
+		const words = rows.map((r) =>
+			describeHistoryEntry({ action: r.action, detail: JSON.parse(r.detail) })
+		);
+		// The test plant runs on UTC: Tuesday 2 March 2027 10:00–18:00.
+		expect(words).toEqual([
+			'Service window set aside for the toolroom (cooling-line flush) 2027-03-02 10:00 – 2027-03-02 18:00: Both halves',
+			expect.stringMatching(/^Toolroom job TJ-\d{5} opened from a service window by hand$/),
+			'Service window called off: Done early'
+		]);
+	});
+});

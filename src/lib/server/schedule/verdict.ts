@@ -370,6 +370,37 @@ export function chamberChecks(die: DieFacts, press: Press): BookingCheck[] {
 	return checks;
 }
 
+type TaskFacts = DieFacts['tasks'][number];
+interface TaskStanding {
+	totalShots: number;
+	now: string;
+	zone: string;
+	view: ReturnType<typeof viewServiceTask>;
+	dayDueMs: number | null;
+}
+// Where a task stands does not depend on the run being judged: the board judges every booking of
+// a die against the same task objects, so the standing is worked out once per task and instant.
+const standings = new WeakMap<TaskFacts, TaskStanding>();
+
+function taskStanding(task: TaskFacts, totalShots: number, now: string): TaskStanding {
+	const zone = plantZone();
+	const known = standings.get(task);
+	if (known && known.totalShots === totalShots && known.now === now && known.zone === zone)
+		return known;
+	const standing: TaskStanding = {
+		totalShots,
+		now,
+		zone,
+		view: viewServiceTask(task, totalShots, now),
+		dayDueMs:
+			task.interval_days !== null
+				? dayIntervalDueMs(task.last_done_at, task.interval_days, zone)
+				: null
+	};
+	standings.set(task, standing);
+	return standing;
+}
+
 function serviceChecks(
 	die: DieFacts,
 	now: string,
@@ -381,7 +412,7 @@ function serviceChecks(
 ): BookingCheck[] {
 	const checks: BookingCheck[] = [];
 	for (const task of die.tasks) {
-		const view = viewServiceTask(task, die.totalShots, now);
+		const { view, dayDueMs } = taskStanding(task, die.totalShots, now);
 		const label = serviceKindLabel(task.kind);
 		let dueBeforeStart: { text: string; number: number } | null = null;
 		let dueDuringMs: number | null = null;
@@ -402,7 +433,7 @@ function serviceChecks(
 			}
 		}
 		if (task.interval_days !== null && dueBeforeStart === null) {
-			const dueMs = dayIntervalDueMs(task.last_done_at, task.interval_days, plantZone());
+			const dueMs = dayDueMs!;
 			// Whole days from the start of the run to the due instant; negative when overdue.
 			const daysLeft = Math.floor((dueMs - startMs) / DAY_MS);
 			if (dueMs <= startMs) {
