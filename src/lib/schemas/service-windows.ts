@@ -1,19 +1,9 @@
 import { z } from 'zod';
 import { JOB_KINDS } from './toolroom';
-import { MAX_BOOKING_DAYS, orderCheckQuerySchema, toUtcIso } from './schedule';
+import { dateTimeField, MAX_BOOKING_DAYS, orderCheckQuerySchema, toUtcIso } from './schedule';
 
 /** Longest service window; a longer overhaul is a toolroom job with an expected release date. */
 export const MAX_WINDOW_DAYS = 30;
-
-const dateTime = (what: string) =>
-	z
-		.string({ error: `Enter the ${what}.` })
-		.trim()
-		.min(1, `Enter the ${what}.`)
-		.refine(
-			(v) => toUtcIso(v) !== null,
-			`Give the ${what} as date and time, e.g. 2026-12-14T06:00.`
-		);
 
 /** Reserve a service window on a die: times as a `datetime-local` field sends them (plant time). */
 export const serviceWindowFormSchema = z
@@ -24,8 +14,8 @@ export const serviceWindowFormSchema = z
 			.toUpperCase()
 			.min(1, 'Enter the die number, e.g. D-0107.')
 			.max(20, 'A die number has at most 20 characters.'),
-		startsAt: dateTime('start'),
-		endsAt: dateTime('end'),
+		startsAt: dateTimeField('start'),
+		endsAt: dateTimeField('end'),
 		kind: z.enum(JOB_KINDS, { error: 'Choose what the toolroom will do.' }),
 		note: z.string().trim().max(300, 'Keep the note under 300 characters.').default('')
 	})

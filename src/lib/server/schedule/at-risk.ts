@@ -1,7 +1,13 @@
 import type { UnitSystem } from '../../calc/units';
 import type { DB } from '../db/connect';
 import { nowIso } from '../time';
-import { assessRun, projectShotsBeforeStart, type Assessment, type BookingCheck } from './verdict';
+import {
+	assessRun,
+	bookingDraft,
+	projectShotsBeforeStart,
+	type Assessment,
+	type BookingCheck
+} from './verdict';
 import { listBookingsInWindow, type BookingRow } from './bookings';
 import { loadDieFactsByIds } from './die-facts';
 import { listOpenToolroomJobs } from './toolroom-hook';
@@ -84,15 +90,7 @@ export async function judgeBookings(
 		results.set(
 			booking.id,
 			assessRun({
-				draft: {
-					die: booking.dieNumber,
-					press: booking.pressName,
-					startsAt: booking.starts_at,
-					endsAt: booking.ends_at,
-					parts: booking.parts,
-					scrapPct: booking.scrap_pct,
-					shotsPerHour: booking.shots_per_hour
-				},
+				draft: bookingDraft(booking),
 				die,
 				press,
 				jobs: jobs.get(die.id) ?? [],

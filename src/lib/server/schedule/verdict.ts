@@ -70,6 +70,27 @@ export interface BookingDraft {
 }
 export type RunRequest = BookingDraft;
 
+/** The question a stored booking asks, for judging it again. */
+export function bookingDraft(b: {
+	dieNumber: string;
+	pressName: string;
+	starts_at: string;
+	ends_at: string;
+	parts: number;
+	scrap_pct: number;
+	shots_per_hour: number | null;
+}): BookingDraft {
+	return {
+		die: b.dieNumber,
+		press: b.pressName,
+		startsAt: b.starts_at,
+		endsAt: b.ends_at,
+		parts: b.parts,
+		scrapPct: b.scrap_pct,
+		shotsPerHour: b.shots_per_hour
+	};
+}
+
 export interface ClampFigures {
 	requiredKn: number;
 	metalPressureBar: number;
