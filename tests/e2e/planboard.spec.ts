@@ -1,3 +1,4 @@
+import AxeBuilder from '@axe-core/playwright';
 import { expect, test } from '@playwright/test';
 import { signIn } from './support';
 
@@ -144,4 +145,18 @@ test('on a 390 px phone the press view, the finder and the windows fit, and a ba
 	await expect(popover.getByRole('link', { name: 'Open the booking' })).toBeVisible();
 	await page.screenshot({ path: info.outputPath('phone-bar-popover.png') });
 	await context.close();
+});
+
+test('the press view, the finder and the windows page have no serious accessibility violations', async ({
+	page
+}) => {
+	await signIn(page, 'toolroom_lead');
+	for (const path of ['/board?by=press', '/board/slots?die=D-0131&parts=500', '/service-windows']) {
+		await page.goto(path);
+		if (path.startsWith('/board?'))
+			await expect(page.getByTestId('board-press-row').first()).toBeVisible();
+		const results = await new AxeBuilder({ page }).analyze();
+		const bad = results.violations.filter((v) => v.impact === 'serious' || v.impact === 'critical');
+		expect(bad.map((v) => `${path}: ${v.id} ${v.help}`)).toEqual([]);
+	}
 });

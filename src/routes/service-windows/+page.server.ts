@@ -45,7 +45,7 @@ export const load: PageServerLoad = async (event) => {
 	};
 };
 
-async function reserve(event: Parameters<Actions[string]>[0]) {
+async function reserveWindow(event: Parameters<Actions[string]>[0]) {
 	const user = requireRole(event, ...WINDOW_EDITORS);
 	const form = await superValidate(event.request, zod4(serviceWindowFormSchema));
 	if (!form.valid) return fail(400, { form });
@@ -67,7 +67,7 @@ async function reserve(event: Parameters<Actions[string]>[0]) {
 	redirect(303, `/service-windows?reserved=${result.id}`);
 }
 
-async function cancel(event: Parameters<Actions[string]>[0]) {
+async function cancelWindow(event: Parameters<Actions[string]>[0]) {
 	const user = requireRole(event, ...WINDOW_EDITORS);
 	const parsed = cancelWindowSchema.safeParse(Object.fromEntries(await event.request.formData()));
 	if (!parsed.success)
@@ -80,7 +80,7 @@ async function cancel(event: Parameters<Actions[string]>[0]) {
 	redirect(303, '/service-windows?cancelled=1');
 }
 
-async function start(event: Parameters<Actions[string]>[0]) {
+async function startWindow(event: Parameters<Actions[string]>[0]) {
 	const user = requireRole(event, ...TOOLROOM_WORKERS);
 	const parsed = startWindowSchema.safeParse(Object.fromEntries(await event.request.formData()));
 	if (!parsed.success) return fail(400, { windowError: 'Choose a service window.' });
@@ -92,4 +92,8 @@ async function start(event: Parameters<Actions[string]>[0]) {
 	redirect(303, `/jobs/${result.jobNumber}`);
 }
 
-export const actions: Actions = { reserve, cancel, start };
+export const actions: Actions = {
+	reserve: reserveWindow,
+	cancel: cancelWindow,
+	start: startWindow
+};
