@@ -4,7 +4,7 @@
  * an action added later without wording reads as its label from AUDIT_ACTION_LABELS or, failing
  * that, "Change recorded" — never a raw code such as "surface inspect".
  */
-import { formatDate, formatShots } from './format';
+import { formatDate, formatDateTime, formatShots } from './format';
 import {
 	AUDIT_ACTION_LABELS,
 	DIE_STATUS_LABELS,
@@ -100,6 +100,12 @@ export function describeHistoryEntry(h: HistoryEntry): string {
 			return `Booking cancelled${reason(d)}`;
 		case 'photo.add':
 			return `${Number(d.count) || 1} photo${Number(d.count) === 1 ? '' : 's'} added${d.to ? ` to ${text(d.to)}` : ''}`;
+		case 'window.reserve':
+			return `Service window set aside for the toolroom${d.kind ? ` (${jobKindLabel(text(d.kind)).toLowerCase()})` : ''} ${formatDateTime(text(d.startsAt))} – ${formatDateTime(text(d.endsAt))}${d.note ? `: ${text(d.note)}` : ''}`;
+		case 'window.cancel':
+			return `Service window called off${reason(d)}`;
+		case 'window.start':
+			return `Toolroom job ${text(d.job)} opened from a service window ${d.automatic ? 'at its start' : 'by hand'}`;
 		case 'photo.share':
 			return d.shared ? 'Photo shared with the owner' : 'Photo no longer shared with the owner';
 		default:

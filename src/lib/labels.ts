@@ -129,7 +129,10 @@ export const AUDIT_ACTION_LABELS: Record<string, string> = {
 	'shots.correct': 'Shot entry corrected',
 	'shots.confirm': 'Shot entry confirmed',
 	'shots.reset': 'Counter reset',
-	'die.import_update': 'Changed by a register import'
+	'die.import_update': 'Changed by a register import',
+	'window.reserve': 'Service window set aside for the toolroom',
+	'window.cancel': 'Service window called off',
+	'window.start': 'Toolroom job opened from a service window'
 };
 // Verdicts of the order check and the booking form (one judge: lib/server/schedule/verdict.ts).
 export const VERDICT_LABELS = {
@@ -167,4 +170,16 @@ export const IMPORT_ROW_LABELS = {
 	unchanged: { word: 'No change', mark: '=' },
 	skip: { word: 'Skipped', mark: '–' },
 	problem: { word: 'Needs a fix', mark: '✗' }
+} as const;
+/**
+ * A verdict's mark (as on the order check) and the short word a narrow board bar falls back to;
+ * the full word is VERDICT_LABELS. Bars add a fill pattern, so none reads by colour alone.
+ */
+export const VERDICT_MARKS = { fits: '✓', warning: '!', blocked: '✕' } as const;
+export const VERDICT_SHORT = { fits: 'OK', warning: 'Risk', blocked: 'Blocked' } as const;
+/** Where a service window stands. */
+export const SERVICE_WINDOW_LABELS = {
+	reserved: { word: 'Reserved', mark: '◫' },
+	started: { word: 'Job opened', mark: '▶' },
+	problem: { word: 'Not started', mark: '✕' }
 } as const;

@@ -62,6 +62,7 @@ export const PAGES: Record<string, Cells> = {
 	'/admin/tokens': roles('admin'),
 	'/admin/users': roles('admin'),
 	'/board': roles(...PLANT),
+	'/board/slots': roles(...PLANT),
 	'/bookings': roles(...PLANT),
 	'/bookings/[id]': roles(...PLANT),
 	'/bookings/new': roles(...PLANNERS),
@@ -97,6 +98,7 @@ export const PAGES: Record<string, Cells> = {
 	'/shots/new': roles(...RECORDERS),
 	'/shots/upload': roles(...RECORDERS),
 	'/sign-in': signedIn('ok', 'home'),
+	'/service-windows': roles(...PLANT),
 	'/sign-out': signedIn('home', 'home'),
 	'/toolroom': roles(...WORKERS)
 };
@@ -118,6 +120,9 @@ export const ACTIONS: Record<string, Cells> = {
 	'/admin/users?/reset': roles('admin'),
 	'/admin/users?/role': roles('admin'),
 	'/bookings/[id]?/cancel': roles(...PLANNERS),
+	'/service-windows?/reserve': roles('admin', 'toolroom_lead', 'scheduler'),
+	'/service-windows?/cancel': roles('admin', 'toolroom_lead', 'scheduler'),
+	'/service-windows?/start': roles(...WORKERS),
 	'/bookings/new?/default': roles(...PLANNERS),
 	'/dies/[number]?/status': roles(...PLANT),
 	'/dies/[number]/cooling?/check': roles(...WORKERS),

@@ -42,9 +42,11 @@ test('a scheduler opens the board, books a die on a suitable press and sees why 
 	await expect(page.getByText('Booked: D-0107 on HC-20 for order E2E-SCHED-1.')).toBeVisible();
 	await page.screenshot({ path: info.outputPath('booked.png'), fullPage: true });
 
-	// The board shows it in its week.
+	// The board shows it in its week, as a bar carrying its verdict (the warnings above).
 	await page.goto(`/board?from=${day}&days=14`);
-	await expect(page.getByRole('link', { name: /^Order E2E-SCHED-1 on HC-20/ })).toBeVisible();
+	const bar = page.getByRole('button', { name: /order E2E-SCHED-1: D-0107 on HC-20/ });
+	await expect(bar).toBeVisible();
+	await expect(bar).toHaveAttribute('data-verdict', 'warning');
 
 	// A die that is in the toolroom is refused, with the reason, and cannot be booked anyway.
 	await page.goto(`/bookings/new?die=D-0119&press=HC-20&start=${dayAhead(203)}`);
@@ -69,7 +71,7 @@ test('a scheduler opens the board, books a die on a suitable press and sees why 
 	);
 	await page.screenshot({ path: info.outputPath('refused-clamp.png'), fullPage: true });
 	await page.goto(`/board?from=${dayAhead(203)}&days=14`);
-	await expect(page.getByRole('link', { name: /^Order E2E-SCHED-[23]/ })).toHaveCount(0);
+	await expect(page.getByRole('button', { name: /order E2E-SCHED-[23]:/ })).toHaveCount(0);
 });
 
 test('the die search suggests dies as the planner types', async ({ page }) => {

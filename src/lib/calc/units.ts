@@ -40,11 +40,19 @@ export const barToPsi = (bar: number): number => (bar * 1e5) / PA_PER_PSI;
 /** psi → bar (1 bar = 100 000 Pa; 1 psi ≈ 6894.757 Pa). */
 export const psiToBar = (psi: number): number => (psi * PA_PER_PSI) / 1e5;
 
+// Building an Intl.NumberFormat costs far more than using one; the board formats thousands.
+const NUMBER_FORMATS = new Map<number, Intl.NumberFormat>();
+
 function formatNumber(value: number, fractionDigits: number): string {
-	return new Intl.NumberFormat('en-US', {
-		minimumFractionDigits: fractionDigits,
-		maximumFractionDigits: fractionDigits
-	}).format(value);
+	let f = NUMBER_FORMATS.get(fractionDigits);
+	if (!f) {
+		f = new Intl.NumberFormat('en-US', {
+			minimumFractionDigits: fractionDigits,
+			maximumFractionDigits: fractionDigits
+		});
+		NUMBER_FORMATS.set(fractionDigits, f);
+	}
+	return f.format(value);
 }
 
 /** Force for display: kN in metric, US short tons-force in US customary. */

@@ -25,8 +25,15 @@ function toMs(value: string | number | Date): number {
 
 /** Wall-clock fields of an instant in `zone`. */
 export function zonedFields(value: string | number | Date, zone: string) {
+	// Keyed by the value as given, so a repeated ISO string is not even parsed again.
+	const key =
+		typeof value === 'string'
+			? `${zone}|s${value}`
+			: `${zone}|n${value instanceof Date ? value.getTime() : value}`;
+	const known = FIELDS_SEEN.get(key);
+	if (known) return { ...known };
 	const d = new TZDate(toMs(value), zone);
-	return {
+	const fields = {
 		year: d.getFullYear(),
 		month: d.getMonth() + 1,
 		day: d.getDate(),
@@ -34,7 +41,16 @@ export function zonedFields(value: string | number | Date, zone: string) {
 		minute: d.getMinutes(),
 		second: d.getSeconds()
 	};
+	// A zone lookup goes through Intl and is slow; a page that shows thousands of times (the
+	// board's verdicts) asks for the same instants again and again. Bounded, then started afresh.
+	if (FIELDS_SEEN.size >= 20_000) FIELDS_SEEN.clear();
+	FIELDS_SEEN.set(key, fields);
+	return { ...fields };
 }
+const FIELDS_SEEN = new Map<
+	string,
+	{ year: number; month: number; day: number; hour: number; minute: number; second: number }
+>();
 
 /** The calendar date (`YYYY-MM-DD`) of an instant in `zone`. */
 export function dateInZone(value: string | number | Date, zone: string): string {
@@ -105,6 +121,9 @@ export function calendarDaysBetween(
 
 /** Epoch ms of midnight starting calendar date `date` (`YYYY-MM-DD`) in `zone`. */
 export function startOfDayInZone(date: string, zone: string): number {
+	const key = `${zone}|${date}`;
+	const known = DAY_STARTS.get(key);
+	if (known !== undefined) return known;
 	const ms = new TZDate(
 		Number(date.slice(0, 4)),
 		Number(date.slice(5, 7)) - 1,
@@ -112,5 +131,8 @@ export function startOfDayInZone(date: string, zone: string): number {
 		zone
 	).getTime();
 	if (!Number.isFinite(ms)) throw new RangeError(`Not a valid date: "${date}".`);
+	if (DAY_STARTS.size >= 20_000) DAY_STARTS.clear();
+	DAY_STARTS.set(key, ms);
 	return ms;
 }
+const DAY_STARTS = new Map<string, number>();

@@ -8,8 +8,12 @@ export type { BoardData };
 const DAY_MS = 86_400_000;
 const WEEKDAYS = ['Su', 'Mo', 'Tu', 'We', 'Th', 'Fr', 'Sa'];
 
+export type BarVerdict = 'fits' | 'warning' | 'blocked';
+
 export interface BoardBooking {
 	id: number;
+	/** The die's number (the press view labels bars by die). */
+	die: string;
 	press: string;
 	start: string;
 	end: string;
@@ -18,6 +22,19 @@ export interface BoardBooking {
 	order: string;
 	parts: number;
 	phase: string;
+	/** The one verdict on the run now; null once it has ended. */
+	verdict: BarVerdict | null;
+	why: string | null;
+}
+export interface BoardWindow {
+	id: number;
+	start: string;
+	end: string;
+	startMs: number;
+	endMs: number;
+	kind: string;
+	note: string | null;
+	job: string | null;
 }
 export interface BoardJob {
 	number: string;
@@ -45,6 +62,15 @@ export interface BoardRow {
 	bookings: BoardBooking[];
 	jobs: BoardJob[];
 	service: BoardService[];
+	windows: BoardWindow[];
+}
+/** A press row of the press view: its bookings, each naming its die. */
+export interface PressRow {
+	index: number;
+	name: string;
+	detail: string;
+	down: boolean;
+	bookings: BoardBooking[];
 }
 export interface BoardDay {
 	iso: string;
@@ -95,12 +121,15 @@ export function buildBoardModel(data: BoardData, nowMs = Date.now()): BoardModel
 			livePress: null,
 			bookings: [],
 			jobs: [],
-			service: []
+			service: [],
+			windows: []
 		})
 	);
-	for (const [id, die, press, start, end, order, parts, phase] of data.bookings.rows) {
+	for (const [id, die, press, start, end, order, parts, phase, verdict, why] of data.bookings
+		.rows) {
 		rows[die]?.bookings.push({
 			id,
+			die: rows[die].number,
 			press,
 			start,
 			end,
@@ -108,7 +137,21 @@ export function buildBoardModel(data: BoardData, nowMs = Date.now()): BoardModel
 			endMs: Date.parse(end),
 			order,
 			parts,
-			phase
+			phase,
+			verdict: verdict ?? null,
+			why: why ?? null
+		});
+	}
+	for (const [die, id, start, end, kind, note, job] of data.windows?.rows ?? []) {
+		rows[die]?.windows.push({
+			id,
+			start,
+			end,
+			startMs: Date.parse(start),
+			endMs: Date.parse(end),
+			kind,
+			note,
+			job
 		});
 	}
 	for (const [die, number, kind, status, openedAt] of data.jobs.rows) {
@@ -123,12 +166,52 @@ export function buildBoardModel(data: BoardData, nowMs = Date.now()): BoardModel
 	return { fromMs, toMs, nowMs, days, rows };
 }
 
+/** True when the die is in a state that stops it (a bar for the state, job or not). */
+export const isStopped = (row: Pick<BoardRow, 'status'>) =>
+	row.status === 'in_toolroom' || row.status === 'held';
+
 /** True when the die has anything in the window (for the phone list, which skips free dies). */
 export const hasActivity = (row: BoardRow) =>
 	row.livePress !== null ||
+	isStopped(row) ||
 	row.bookings.length > 0 ||
 	row.jobs.length > 0 ||
-	row.service.length > 0;
+	row.service.length > 0 ||
+	row.windows.length > 0;
+
+/**
+ * The press view: one row per press (in the order given), holding every booking of the window on
+ * it, soonest first. Presses with nothing booked keep their row — that is where free time shows.
+ */
+export function buildPressRows(
+	model: BoardModel,
+	presses: readonly { name: string; detail: string; down: boolean }[]
+): PressRow[] {
+	const rows: PressRow[] = presses.map((p, index) => ({ index, ...p, bookings: [] }));
+	const byName = new Map(rows.map((r) => [r.name, r]));
+	for (const row of model.rows) {
+		for (const b of row.bookings) {
+			let target = byName.get(b.press);
+			if (!target) {
+				target = { index: rows.length, name: b.press, detail: '', down: false, bookings: [] };
+				rows.push(target);
+				byName.set(b.press, target);
+			}
+			target.bookings.push(b);
+		}
+	}
+	for (const r of rows) r.bookings.sort((a, b) => a.startMs - b.startMs);
+	return rows;
+}
+
+/**
+ * The longest label that fits a bar `px` wide (about 6.5 px a character at the bar's size), the
+ * last one always kept: a bar is never left with nothing on it.
+ */
+export function labelForWidth(px: number, forms: readonly string[]): string {
+	for (const f of forms) if (f.length * 6.5 + 8 <= px) return f;
+	return forms[forms.length - 1];
+}
 
 /** A query string from the set values only (empty ones are left out of the URL). */
 export function queryString(params: Record<string, string | number | null | undefined>): string {

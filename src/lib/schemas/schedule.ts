@@ -83,7 +83,7 @@ export function toLocalInput(iso: string): string {
 }
 
 /** Kept as typed so a form can show it again; read with `toUtcIso` after validation. */
-const dateTimeField = (what: string) =>
+export const dateTimeField = (what: string) =>
 	z
 		.string({ error: `Enter the ${what}.` })
 		.trim()

@@ -8,6 +8,7 @@ import { nowIso } from '../time';
 import { readNoticeConfig, type NoticeConfig } from './config';
 import { runNotices } from './run';
 import { sendPending } from './send';
+import { startDueServiceWindows } from '../schedule/service-windows';
 
 /**
  * Between daily runs, a light tick sends only what is pending and due: retries after their
@@ -39,8 +40,25 @@ function exclusive(state: NoticeCron, label: string, job: () => Promise<string>)
 	return next;
 }
 
+/**
+ * Service windows whose start has come become toolroom jobs before anything is sent, so their
+ * notices leave with the same send. Runs on every tick: a window starts within five minutes.
+ */
+async function startWindows(): Promise<string> {
+	// A failure here is reported and never keeps the mail from going out.
+	const w = await startDueServiceWindows(getDb(), nowIso()).catch((error: unknown) => {
+		console.error('Castellan service windows failed:', (error as Error)?.message ?? error);
+		return null;
+	});
+	if (!w) return '';
+	if (w.started.length === 0 && w.problems.length === 0) return '';
+	const problems = w.problems.map((p) => `window ${p.windowId}: ${p.message}`).join('; ');
+	return `; service windows started: ${w.started.map((s) => `${s.die} ${s.jobNumber}`).join(', ') || 'none'}${problems ? `; not started: ${problems}` : ''}`;
+}
+
 function runOnce(state: NoticeCron): Promise<void> {
 	return exclusive(state, 'daily run', async () => {
+		const windows = await startWindows();
 		const r = await runNotices(getDb(), {
 			now: nowIso(),
 			mailer: state.mailer,
@@ -48,15 +66,16 @@ function runOnce(state: NoticeCron): Promise<void> {
 			threshold: state.config.threshold
 		});
 		const errors = r.errors.length ? `; last error: ${r.errors.at(-1)}` : '';
-		return `${r.items} items, ${r.written} new, ${r.digests} digests sent, ${r.retrying} to retry, ${r.failed} failed${errors}`;
+		return `${r.items} items, ${r.written} new, ${r.digests} digests sent, ${r.retrying} to retry, ${r.failed} failed${errors}${windows}`;
 	});
 }
 
 function deliverOnce(state: NoticeCron): Promise<void> {
 	return exclusive(state, 'delivery', async () => {
+		const windows = await startWindows();
 		const r = await sendPending(getDb(), state.mailer, nowIso(), { origin: state.config.origin });
-		if (r.digests === 0 && r.retrying === 0 && r.failed === 0) return 'nothing due';
-		return `${r.digests} digests sent, ${r.retrying} to retry, ${r.failed} failed`;
+		if (r.digests === 0 && r.retrying === 0 && r.failed === 0 && !windows) return 'nothing due';
+		return `${r.digests} digests sent, ${r.retrying} to retry, ${r.failed} failed${windows}`;
 	});
 }
 

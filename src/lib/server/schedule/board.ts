@@ -10,7 +10,9 @@ import type { DieScope } from '../dies/register';
 import { audienceOf, customerMaySeeJob } from '../owner/customer-fields';
 import { projectTaskDue, viewServiceTask } from '../dies/service-summary';
 import { nowIso } from '../time';
-import { chamberChecks, dieClampRequirement } from './verdict';
+import { chamberChecks, dieClampRequirement, type Assessment, type Verdict } from './verdict';
+import { judgeBookings } from './at-risk';
+import { listServiceWindows } from './service-windows';
 import { bookingPhase, windowBounds } from './bookings';
 import { MAX_BOOKING_DAYS } from '../../schemas/schedule';
 import { trailingShotsPerDay, type DieFacts } from './die-facts';
@@ -41,9 +43,30 @@ export const BOARD_BOOKING_COLUMNS = [
 	'end',
 	'order',
 	'parts',
-	'phase'
+	'phase',
+	'verdict',
+	'why'
 ] as const;
-export type BoardBookingRow = [number, number, string, string, string, string, number, string];
+/**
+ * `verdict` is the one verdict (assessRun) on the run as it stands now, for bookings not yet
+ * ended (null once ended); `why` is its first reason, shown in the bar's popover.
+ */
+export type BoardBookingRow = [
+	number,
+	number,
+	string,
+	string,
+	string,
+	string,
+	number,
+	string,
+	Verdict | null,
+	string | null
+];
+
+/** Service windows of the dies shown (plant callers only). */
+export const BOARD_WINDOW_COLUMNS = ['die', 'id', 'start', 'end', 'kind', 'note', 'job'] as const;
+export type BoardWindowRow = [number, number, string, string, string, string | null, string | null];
 
 export const BOARD_JOB_COLUMNS = ['die', 'number', 'kind', 'status', 'openedAt'] as const;
 export type BoardJobRow = [number, string, string, string, string];
@@ -68,6 +91,7 @@ export interface BoardData {
 	jobs: { columns: typeof BOARD_JOB_COLUMNS; rows: BoardJobRow[] };
 	service: { columns: typeof BOARD_SERVICE_COLUMNS; rows: BoardServiceRow[] };
 	live: { columns: typeof BOARD_LIVE_COLUMNS; rows: BoardLiveRow[] };
+	windows: { columns: typeof BOARD_WINDOW_COLUMNS; rows: BoardWindowRow[] };
 }
 
 /** Monday of the plant week holding `iso` — the board's default first day. */
@@ -101,14 +125,20 @@ async function listBoardBookings(db: DB, start: string, end: string) {
 	return db
 		.selectFrom('press_bookings as b')
 		.innerJoin('machines', 'machines.id', 'b.machine_id')
+		.innerJoin('dies', 'dies.id', 'b.die_id')
 		.select([
 			'b.id',
 			'b.die_id',
+			'b.machine_id',
+			'dies.number as dieNumber',
+			'dies.customer_id as dieCustomerId',
 			'machines.name as pressName',
 			'b.starts_at',
 			'b.ends_at',
 			'b.order_ref',
 			'b.parts',
+			'b.scrap_pct',
+			'b.shots_per_hour',
 			'b.cancelled_at'
 		])
 		.where('b.starts_at', '>=', earliest)
@@ -204,7 +234,7 @@ export async function loadBoard(
 	const index = new Map(dies.map((d, i) => [d.id, i]));
 	const ids = dies.map((d) => d.id);
 
-	const [live, bookings, jobs, tasks, rates] = await Promise.all([
+	const [live, bookings, jobs, tasks, rates, windows] = await Promise.all([
 		db
 			.selectFrom('press_feed as f')
 			.innerJoin('machines as m', 'm.id', 'f.machine_id')
@@ -234,8 +264,23 @@ export async function loadBoard(
 			db,
 			dies.map((d) => ({ id: d.id, totalShots: d.total_shots, expectedLifeShots: d.expectedLife })),
 			now
-		)
+		),
+		audience === 'plant'
+			? listServiceWindows(db, { start, end }, { dieIds: ids })
+			: Promise.resolve([])
 	]);
+	// The one verdict on every run not yet over; customers never see verdict columns (see
+	// owner/customer-fields), so theirs is not computed.
+	const phases = new Map(bookings.map((b) => [b.id, bookingPhase(b, now)]));
+	const judged =
+		audience === 'plant'
+			? await judgeBookings(
+					db,
+					// Clashes are found among these, so every die's runs go in, not only those shown.
+					bookings.filter((b) => phases.get(b.id) !== 'ended'),
+					now
+				)
+			: new Map<number, Assessment>();
 
 	const totals = new Map(dies.map((d) => [d.id, d.total_shots]));
 	const service: BoardServiceRow[] = [];
@@ -283,8 +328,16 @@ export async function loadBoard(
 					b.ends_at,
 					b.order_ref,
 					b.parts,
-					bookingPhase(b, now)
+					phases.get(b.id)!,
+					judged.get(b.id)?.verdict ?? null,
+					judged.get(b.id)?.reasons[0]?.message ?? null
 				])
+		},
+		windows: {
+			columns: BOARD_WINDOW_COLUMNS,
+			rows: windows
+				.filter((w) => index.has(w.dieId))
+				.map((w) => [index.get(w.dieId)!, w.id, w.startsAt, w.endsAt, w.kind, w.note, w.jobNumber])
 		},
 		jobs: {
 			columns: BOARD_JOB_COLUMNS,

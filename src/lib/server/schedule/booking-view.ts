@@ -2,7 +2,7 @@ import { error } from '@sveltejs/kit';
 import type { UnitSystem } from '../../calc/units';
 import type { DB } from '../db/connect';
 import { nowIso } from '../time';
-import { judgeRun } from './verdict';
+import { bookingDraft, judgeRun } from './verdict';
 import { bookingPhase, getBooking } from './bookings';
 import { shotsNeededFor } from './die-facts';
 
@@ -24,19 +24,11 @@ export async function loadBookingPage(
 	const shotsPlanned = shotsNeededFor(booking.parts, booking.cavities, booking.scrap_pct);
 	let checks = null;
 	if (phase === 'planned' || phase === 'running') {
-		const ev = await judgeRun(
-			db,
-			{
-				die: booking.dieNumber,
-				press: booking.pressName,
-				startsAt: booking.starts_at,
-				endsAt: booking.ends_at,
-				parts: booking.parts,
-				scrapPct: booking.scrap_pct,
-				shotsPerHour: booking.shots_per_hour
-			},
-			{ now, excludeBookingId: booking.id, unitSystem }
-		);
+		const ev = await judgeRun(db, bookingDraft(booking), {
+			now,
+			excludeBookingId: booking.id,
+			unitSystem
+		});
 		if (ev.ok) checks = { blocks: ev.blocks, warnings: ev.warnings };
 	}
 	return {

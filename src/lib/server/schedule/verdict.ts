@@ -9,7 +9,7 @@ import { plantZone } from '../../plant-time';
 import { checkOrder } from '../../calc/order-check';
 import { formatArea, formatForce, formatPressure, type UnitSystem } from '../../calc/units';
 import { formatDate, formatDateTime, formatShots } from '../../format';
-import { ALLOY_FAMILY_LABELS, CLAMP_CAUTION, serviceKindLabel } from '../../labels';
+import { ALLOY_FAMILY_LABELS, CLAMP_CAUTION, jobKindLabel, serviceKindLabel } from '../../labels';
 import type { DB } from '../db/connect';
 import type { DieScope } from '../dies/register';
 import { viewServiceTask } from '../dies/service-summary';
@@ -17,6 +17,7 @@ import { nowIso } from '../time';
 import { defaultShotsPerHour, loadDieFacts, shotsNeededFor, type DieFacts } from './die-facts';
 import { findPressByName, type Press } from './presses';
 import { listOpenToolroomJobs } from './toolroom-hook';
+import { findWindowClashes, type WindowClash } from './window-clashes';
 
 const HOUR_MS = 3_600_000;
 const DAY_MS = 86_400_000;
@@ -34,7 +35,8 @@ export type CheckCode =
 	| 'service_due'
 	| 'end_of_life'
 	| 'rate_unusual'
-	| 'too_short';
+	| 'too_short'
+	| 'service_window';
 
 /**
  * One reason behind a verdict: a block can never be overridden, a warning can be accepted. The
@@ -67,6 +69,27 @@ export interface BookingDraft {
 	shotsPerHour?: number | null;
 }
 export type RunRequest = BookingDraft;
+
+/** The question a stored booking asks, for judging it again. */
+export function bookingDraft(b: {
+	dieNumber: string;
+	pressName: string;
+	starts_at: string;
+	ends_at: string;
+	parts: number;
+	scrap_pct: number;
+	shots_per_hour: number | null;
+}): BookingDraft {
+	return {
+		die: b.dieNumber,
+		press: b.pressName,
+		startsAt: b.starts_at,
+		endsAt: b.ends_at,
+		parts: b.parts,
+		scrapPct: b.scrap_pct,
+		shotsPerHour: b.shots_per_hour
+	};
+}
 
 export interface ClampFigures {
 	requiredKn: number;
@@ -368,6 +391,37 @@ export function chamberChecks(die: DieFacts, press: Press): BookingCheck[] {
 	return checks;
 }
 
+type TaskFacts = DieFacts['tasks'][number];
+interface TaskStanding {
+	totalShots: number;
+	now: string;
+	zone: string;
+	view: ReturnType<typeof viewServiceTask>;
+	dayDueMs: number | null;
+}
+// Where a task stands does not depend on the run being judged: the board judges every booking of
+// a die against the same task objects, so the standing is worked out once per task and instant.
+const standings = new WeakMap<TaskFacts, TaskStanding>();
+
+function taskStanding(task: TaskFacts, totalShots: number, now: string): TaskStanding {
+	const zone = plantZone();
+	const known = standings.get(task);
+	if (known && known.totalShots === totalShots && known.now === now && known.zone === zone)
+		return known;
+	const standing: TaskStanding = {
+		totalShots,
+		now,
+		zone,
+		view: viewServiceTask(task, totalShots, now),
+		dayDueMs:
+			task.interval_days !== null
+				? dayIntervalDueMs(task.last_done_at, task.interval_days, zone)
+				: null
+	};
+	standings.set(task, standing);
+	return standing;
+}
+
 function serviceChecks(
 	die: DieFacts,
 	now: string,
@@ -379,7 +433,7 @@ function serviceChecks(
 ): BookingCheck[] {
 	const checks: BookingCheck[] = [];
 	for (const task of die.tasks) {
-		const view = viewServiceTask(task, die.totalShots, now);
+		const { view, dayDueMs } = taskStanding(task, die.totalShots, now);
 		const label = serviceKindLabel(task.kind);
 		let dueBeforeStart: { text: string; number: number } | null = null;
 		let dueDuringMs: number | null = null;
@@ -400,7 +454,7 @@ function serviceChecks(
 			}
 		}
 		if (task.interval_days !== null && dueBeforeStart === null) {
-			const dueMs = dayIntervalDueMs(task.last_done_at, task.interval_days, plantZone());
+			const dueMs = dayDueMs!;
 			// Whole days from the start of the run to the due instant; negative when overdue.
 			const daysLeft = Math.floor((dueMs - startMs) / DAY_MS);
 			if (dueMs <= startMs) {
@@ -440,6 +494,8 @@ export interface AssessInput {
 	jobs: JobNote[];
 	dieClashes: Clash[];
 	pressClashes: Clash[];
+	/** The die's service windows (not cancelled) overlapping the run. */
+	windowClashes: WindowClash[];
 	shotsBeforeStart: number;
 	now: string;
 	scope: DieScope;
@@ -473,7 +529,8 @@ export function runWindow(
 
 /**
  * THE verdict, from facts already loaded: the one place Castellan judges whether a die can run an
- * order. Blocking: die retired, held or in the toolroom; die or press already booked; press down;
+ * order. Blocking: die retired, held or in the toolroom; die or press already booked; a service
+ * window of the die overlaps the run; press down;
  * clamping force too small at the die's own metal pressure; die or alloy on the wrong chamber
  * type. Warnings: a service task (by shots or by days) comes due before the run ends, the order
  * outruns the die's remaining life, an unusual rate, or a booked window too short for the shots.
@@ -505,6 +562,14 @@ export function assessRun(input: AssessInput): Assessment {
 			level: 'block',
 			message: `${die.number} is already booked on ${c.pressName} ${span(c)} (order ${c.order_ref}).`,
 			number: c.id
+		});
+	}
+	for (const w of input.windowClashes) {
+		checks.push({
+			code: 'service_window',
+			level: 'block',
+			message: `${die.number} is reserved for the toolroom (${jobKindLabel(w.kind).toLowerCase()}) ${span(w)}${w.note ? `: ${w.note}` : ''}. Book around the service window, or move or cancel it first.`,
+			number: w.id
 		});
 	}
 	if (press) {
@@ -635,13 +700,14 @@ export async function judgeRun(
 	const startMs = Date.parse(startsAt);
 	const nowMs = Date.parse(now);
 	const stopped = die.status === 'in_toolroom' || die.status === 'held';
-	const [jobs, dieClashes, pressClashes, runs] = await Promise.all([
+	const [jobs, dieClashes, pressClashes, runs, windowClashes] = await Promise.all([
 		stopped ? listOpenToolroomJobs(db, [die.id]) : Promise.resolve([]),
 		findClashes(db, { dieId: die.id }, startsAt, endsAt, options.excludeBookingId),
 		press
 			? findClashes(db, { machineId: press.id }, startsAt, endsAt, options.excludeBookingId)
 			: Promise.resolve([]),
-		listRunsBetween(db, die.id, nowMs, startMs, options.excludeBookingId)
+		listRunsBetween(db, die.id, nowMs, startMs, options.excludeBookingId),
+		findWindowClashes(db, [die.id], startsAt, endsAt)
 	]);
 	return assessRun({
 		draft,
@@ -650,6 +716,7 @@ export async function judgeRun(
 		jobs: jobs.map((j) => ({ number: j.number, expectedReleaseAt: j.expectedReleaseAt })),
 		dieClashes,
 		pressClashes,
+		windowClashes,
 		shotsBeforeStart: projectShotsBeforeStart(die, startMs, nowMs, runs),
 		now,
 		scope,
