@@ -16,6 +16,7 @@ import type { NoticesTables } from './schema-notices';
 import type { InvitationsTables } from './schema-invitations';
 import type { PlantSettingsTables } from './schema-settings';
 import type { ImportTables } from './schema-import';
+import type { OwnerDecisionTables } from './schema-owner';
 
 export type { AlloyFamily, DieProcess, DieStatus, HalfSide, RetirementReason, Role, ShotSource };
 
@@ -231,7 +232,8 @@ export interface Database
 		NoticesTables,
 		InvitationsTables,
 		PlantSettingsTables,
-		ImportTables {
+		ImportTables,
+		OwnerDecisionTables {
 	customers: CustomersTable;
 	users: UsersTable;
 	sessions: SessionsTable;
