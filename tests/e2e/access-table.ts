@@ -155,6 +155,7 @@ export const ACTIONS: Record<string, Cells> = {
 	'/jobs/[job]?/status': roles(...WORKERS),
 	'/jobs/[job]?/upload': roles(...WORKERS),
 	'/jobs/[job]?/void': roles(...LEADS),
+	'/owner/dies/[number]?/answer': ownTooling(),
 	'/presses/[id]?/delete': roles(...PLANNERS),
 	'/presses/[id]?/save': roles(...PLANNERS),
 	'/presses/new?/default': roles(...PLANNERS),

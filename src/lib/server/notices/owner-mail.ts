@@ -7,6 +7,7 @@
 import { formatPct, formatShots } from '../../format';
 import { plantDate, plantTimeNote } from '../../plant-time';
 import { escapeHtml, layoutEmail } from '../mail/html';
+import { describeQuote } from '../../quote';
 import type { ComposedMail, DigestEntry } from './digest';
 import {
 	NOTICE_LEVEL_LABELS,
@@ -25,17 +26,6 @@ export function ownerDieLink(origin: string, dieNumber: string): string {
 const FOOTER =
 	'You receive this as a contact for tooling you own that this plant runs. Portal users can ' +
 	'switch e-mail notices off under Account; the plant changes the contact address.';
-
-/** Quoted hours and cost in words, or null when the lead gave neither. */
-export function describeQuote(hours: number | null, cost: number | null): string | null {
-	const parts: string[] = [];
-	if (hours !== null) parts.push(`${hours} h`);
-	if (cost !== null)
-		parts.push(
-			`cost ${cost.toLocaleString('en-GB', { minimumFractionDigits: 2, maximumFractionDigits: 2 })}`
-		);
-	return parts.length ? `Quoted repair: ${parts.join(', ')}` : null;
-}
 
 /** The figures of an owner life item, one line. */
 function figures(p: OwnerLifePayload): string {

@@ -7,6 +7,7 @@ import { getDb } from '$lib/server/db';
 import { getDieStory } from '$lib/server/dies/die-detail';
 import { loadPlantDie } from '$lib/server/dies/load-die';
 import { describeStateChanges, moveDieState } from '$lib/server/dies/state-change';
+import { holdForOwnerDecision, loadDecisionCard } from '$lib/server/owner/decisions';
 import { listServicePlan } from '$lib/server/dies/service-plan';
 import { nowIso } from '$lib/server/time';
 import { DIE_EDITORS, PLANT_ROLES } from '$lib/roles';
@@ -33,7 +34,7 @@ export const load: PageServerLoad = async (event) => {
 	const db = getDb();
 	const asOf = nowIso();
 	const statusTargets = allowedTargets(user.role, die.status);
-	const [story, plan, statusForm, stateChoices] = await Promise.all([
+	const [story, plan, statusForm, stateChoices, decisions] = await Promise.all([
 		getDieStory(db, die, asOf),
 		listServicePlan(db, die, life.shotsPerDay, asOf),
 		// Start on "Choose…", not on the schema's first state.
@@ -42,7 +43,8 @@ export const load: PageServerLoad = async (event) => {
 			zod4(dieStatusSchema),
 			{ errors: false }
 		),
-		describeStateChanges(db, die, statusTargets, asOf)
+		describeStateChanges(db, die, statusTargets, asOf),
+		loadDecisionCard(db, die.id)
 	]);
 	const needsService = plan.tasks.filter((t) => t.state !== 'on_track').length;
 	// The soonest projected date, which need not be the worst task now (a short calendar interval
@@ -62,7 +64,10 @@ export const load: PageServerLoad = async (event) => {
 		statusForm,
 		statusTargets,
 		stateChoices,
-		canEdit: DIE_EDITORS.includes(user.role)
+		canEdit: DIE_EDITORS.includes(user.role),
+		decisions,
+		// Only the roles that may hold a die may ask its owner for a decision.
+		canAskOwner: DIE_EDITORS.includes(user.role)
 	};
 };
 
@@ -77,6 +82,28 @@ export const actions: Actions = {
 			return message(form, 'Your role may not move this die to that state.', { status: 403 });
 		}
 		const seen = form.data.seenBlocked >= 0 ? form.data.seenBlocked : null;
+		if (to === 'held' && form.data.holdReason === 'owner_decision') {
+			if (!DIE_EDITORS.includes(user.role)) {
+				return message(form, 'Your role may not ask the owner for a decision.', { status: 403 });
+			}
+			const asked = await holdForOwnerDecision(
+				getDb(),
+				die,
+				{
+					question: form.data.ownerQuestion,
+					quotedHours: form.data.quotedHours ?? null,
+					quotedCost: form.data.quotedCost ?? null
+				},
+				form.data.reason,
+				user.id,
+				seen
+			);
+			if (!asked.ok) return message(form, asked.message, { status: 409 });
+			const owners = asked.ownersTold
+				? " The owner's contacts are asked by e-mail and see the question in the portal."
+				: ' The owner has no contact with e-mail notices on: the question waits in the portal.';
+			return message(form, `State changed.${owners}`);
+		}
 		const result = await moveDieState(
 			getDb(),
 			die,
