@@ -673,20 +673,25 @@ export async function seedToolroomDemo(
 			at: daysAgo(openedAgo, 8)
 		});
 		if (withPhotos) {
-			const files = [
-				photoFile(await drawSurfaceImage(seed++, 2), 'before.jpg'),
-				photoFile(await drawSurfaceImage(seed++, 0), 'after.jpg')
+			// Each photo with its own caption and before/after tag (one upload per photo, as the
+			// phone form sends them).
+			const shots: [number, string, string, 'before' | 'after'][] = [
+				[2, 'before.jpg', 'Parting line before the repair: open heat checking', 'before'],
+				[0, 'after.jpg', 'Parting line after grinding and polishing', 'after']
 			];
-			const uploaded = await uploadPhotos(db, {
-				target: { jobId: jobRow.id },
-				files,
-				actor: maker,
-				uploadDir,
-				caption: 'Parting line, before and after',
-				at: daysAgo(openedAgo - tookDays, 11)
-			});
-			if (!uploaded.ok) throw new Error(`Demo job photos: ${uploaded.message}`);
-			summary.photos += uploaded.count;
+			for (const [grade, name, caption, stage] of shots) {
+				const uploaded = await uploadPhotos(db, {
+					target: { jobId: jobRow.id },
+					files: [photoFile(await drawSurfaceImage(seed++, grade), name)],
+					actor: maker,
+					uploadDir,
+					caption,
+					stage,
+					at: daysAgo(openedAgo - tookDays, 11)
+				});
+				if (!uploaded.ok) throw new Error(`Demo job photos: ${uploaded.message}`);
+				summary.photos += uploaded.count;
+			}
 			const shared = await db
 				.selectFrom('photos')
 				.select('public_id')
