@@ -17,6 +17,7 @@ import { recordInspection } from '../../src/lib/server/toolroom/inspections';
 import { addDieZone, findDieZone, recordJobRepairs } from '../../src/lib/server/toolroom/zones';
 import { closeJob, moveJob, openJob, type Actor } from '../../src/lib/server/toolroom/jobs';
 import { setPhotoShared, uploadPhotos } from '../../src/lib/server/toolroom/photos';
+import { askOwnerDecision } from '../../src/lib/server/owner/decisions';
 
 const Jimp = createJimp({ formats: [jpeg] });
 const DAY = 86_400_000;
@@ -755,6 +756,24 @@ export async function seedToolroomDemo(
 			assignedTo: ''
 		},
 		3
+	);
+	// D-0109 waits for its owner: the question with the quote, as the portal shows it.
+	const held = await db
+		.selectFrom('dies')
+		.select('id')
+		.where('number', '=', 'D-0109')
+		.executeTakeFirstOrThrow();
+	await askOwnerDecision(
+		db,
+		held.id,
+		{
+			question:
+				'Porosity at the far end of cavity 1. May we add an overflow there (a modification to your die), or do you want to keep it as it is?',
+			quotedHours: 14,
+			quotedCost: 2400
+		},
+		lead.userId,
+		daysAgo(3, 10)
 	);
 
 	await closePhotoPool();

@@ -120,6 +120,7 @@ export const ACTIONS: Record<string, Cells> = {
 	'/bookings/[id]?/cancel': roles(...PLANNERS),
 	'/bookings/new?/default': roles(...PLANNERS),
 	'/dies/[number]?/status': roles(...PLANT),
+	'/dies/[number]?/askOwner': roles(...LEADS),
 	'/dies/[number]/cooling?/check': roles(...WORKERS),
 	'/dies/[number]/cooling?/correctCheck': roles(...LEADS),
 	'/dies/[number]/cooling?/voidCheck': roles(...LEADS),

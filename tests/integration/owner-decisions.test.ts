@@ -6,10 +6,10 @@ import { createMailer, type Mailer } from '../../src/lib/server/mail/transport';
 import { sendPending } from '../../src/lib/server/notices/send';
 import {
 	answerOwnerDecision,
-	holdForOwnerDecision,
 	listOpenDecisionsForOwner,
 	loadDecisionCard
 } from '../../src/lib/server/owner/decisions';
+import { holdForOwnerDecision } from '../../src/lib/server/owner/hold';
 import { LEAD, makeShotPlant, type ShotPlant } from './shots-fixture';
 
 // The owner-decision round trip through the outbox and the fake mail server: the toolroom lead

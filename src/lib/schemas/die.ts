@@ -195,3 +195,20 @@ export const ownerAnswerSchema = z
 			});
 		}
 	});
+
+/** Asking the owner of a die that is already held (the die page's "Ask the owner" form). */
+export const askOwnerSchema = z.object({
+	ownerQuestion: z
+		.string()
+		.trim()
+		.min(3, 'Say what the owner is asked to decide (at least 3 characters).')
+		.max(1000, 'Keep it under 1000 characters.'),
+	quotedHours: optionalDecimalNumber({
+		min: [0, 'Hours cannot be negative.'],
+		max: [10_000, 'Give at most 10 000 hours.']
+	}),
+	quotedCost: optionalDecimalNumber({
+		min: [0, 'A cost cannot be negative.'],
+		max: [100_000_000, 'Give at most 100 000 000.']
+	})
+});

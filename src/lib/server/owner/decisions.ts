@@ -8,12 +8,13 @@
  *
  * One answer per question: a second answer is refused (the first stands; the owner writes to
  * the plant or the lead asks a new question). One open question per die at a time.
+ *
+ * Mail is queued in the outbox here; the routes ask for it to go out now (sendNoticesSoon), the
+ * delivery tick sends it otherwise. Holding the die is in hold.ts (it moves the die's state).
  */
 import type { DB } from '../db/connect';
 import type { OwnerAnswer } from '../db/schema-owner';
 import { writeAudit } from '../audit';
-import { moveDieState, type MoveResult, type StateDie } from '../dies/state-change';
-import { sendNoticesSoon } from '../notices/cron';
 import { listOwnerRecipients } from '../notices/owner-life';
 import { toStoredInstant, writeOutbox } from '../notices/outbox';
 import type { NoticeItem, NoticeRecipient } from '../notices/types';
@@ -125,39 +126,6 @@ async function dieFacts(db: DB, dieId: number) {
 		.executeTakeFirstOrThrow();
 }
 
-/**
- * Puts the die on hold waiting for its owner's decision and asks the owner: the move (with its
- * booking consequences, as any hand move), the question row, the audit entry and the owner's
- * e-mail (keyed by the question, so exactly once per hold). Refused, with nothing changed, while
- * an earlier question on the die is still open.
- */
-export async function holdForOwnerDecision(
-	db: DB,
-	die: StateDie,
-	ask: OwnerQuestion,
-	reason: string,
-	actorId: string,
-	seenBlocked: number | null
-): Promise<MoveResult & { ownersTold?: number }> {
-	const open = await db
-		.selectFrom('owner_decisions')
-		.select('id')
-		.where('die_id', '=', die.id)
-		.where('answer', 'is', null)
-		.executeTakeFirst();
-	if (open) {
-		return {
-			ok: false,
-			message:
-				'An earlier question to the owner is still open on this die; wait for the answer before asking again.'
-		};
-	}
-	const moved = await moveDieState(db, die, 'held', reason, actorId, seenBlocked);
-	if (!moved.ok) return moved;
-	const { queued } = await askOwnerDecision(db, die.id, ask, actorId);
-	return { ...moved, ownersTold: queued };
-}
-
 /** Records the question (audited) and queues the owner's e-mail; see holdForOwnerDecision. */
 export async function askOwnerDecision(
 	db: DB,
@@ -222,7 +190,6 @@ export async function askOwnerDecision(
 	};
 	const recipients = (await listOwnerRecipients(db, [die.customer_id])).get(die.customer_id) ?? [];
 	const { deliveries } = await writeOutbox(db, [item], recipients, asked);
-	if (deliveries) sendNoticesSoon();
 	return { decisionId, queued: deliveries };
 }
 
@@ -324,7 +291,6 @@ export async function answerOwnerDecision(
 		}
 	};
 	const { deliveries } = await writeOutbox(db, [item], leads, answeredAt);
-	if (deliveries) sendNoticesSoon();
 	return { ok: true, queued: deliveries };
 }
 

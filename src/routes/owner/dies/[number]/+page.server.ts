@@ -2,6 +2,7 @@ import { error, fail } from '@sveltejs/kit';
 import { message, superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
 import { ownerAnswerSchema } from '$lib/schemas/die';
+import { sendNoticesSoon } from '$lib/server/notices/cron';
 import { answerOwnerDecision, loadDecisionCard } from '$lib/server/owner/decisions';
 import { getDb } from '$lib/server/db';
 import { dieLife } from '$lib/server/dies/die-detail';
@@ -64,6 +65,7 @@ export const actions: Actions = {
 			if (result.status === 404) error(404, { message: result.message });
 			return message(form, result.message, { status: result.status });
 		}
+		if (result.queued) sendNoticesSoon();
 		return message(form, 'Your answer is sent to the toolroom.');
 	}
 };
