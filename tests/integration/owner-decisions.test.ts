@@ -1,8 +1,8 @@
-import { afterAll, beforeAll, beforeEach, describe, expect, test } from 'vitest';
-import { startFakeMail, type FakeMail } from '../../fakes/mail/server';
+import { beforeEach, describe, expect, test } from 'vitest';
+import type { FakeMail } from '../../fakes/mail/server';
 import { describeHistoryEntry } from '../../src/lib/history';
 import { getDieStory, findDie } from '../../src/lib/server/dies/die-detail';
-import { createMailer, type Mailer } from '../../src/lib/server/mail/transport';
+import type { Mailer } from '../../src/lib/server/mail/transport';
 import { sendPending } from '../../src/lib/server/notices/send';
 import {
 	answerOwnerDecision,
@@ -10,7 +10,8 @@ import {
 	loadDecisionCard
 } from '../../src/lib/server/owner/decisions';
 import { holdForOwnerDecision } from '../../src/lib/server/owner/hold';
-import { LEAD, makeShotPlant, type ShotPlant } from './shots-fixture';
+import { LEAD, type ShotPlant } from './shots-fixture';
+import { ACME_CONTACT, ACME_USER, makeOwnerPlant, ORIGIN, useFakeMail } from './owner-mail-support';
 
 // The owner-decision round trip through the outbox and the fake mail server: the toolroom lead
 // holds A-0001 (ACME's) waiting for the owner's decision with a quote; ACME's portal user and
@@ -18,56 +19,17 @@ import { LEAD, makeShotPlant, type ShotPlant } from './shots-fixture';
 // "Owner answered" with who and when, and the history keeps both steps. BOLT (another owner)
 // cannot answer; a second answer is refused and the first stands.
 
-const ORIGIN = 'https://castellan.test';
-const ACME_USER = 'buyer@acme.test';
-const ACME_CONTACT = 'tooling@acme.test';
 const LEAD_MAIL = 'lead@plant.test';
-
+const fake = useFakeMail();
+let p: ShotPlant;
 let mail: FakeMail;
 let mailer: Mailer;
-let p: ShotPlant;
-
-beforeAll(async () => {
-	mail = await startFakeMail({ smtpPort: 0, httpPort: 0 });
-	mailer = createMailer({
-		smtpUrl: `smtp://127.0.0.1:${mail.smtpPort}`,
-		from: 'Castellan <castellan@plant.test>'
-	});
-});
-afterAll(async () => {
-	mailer.close();
-	await mail.close();
-});
 
 beforeEach(async () => {
+	mail = fake.mail();
+	mailer = fake.mailer();
 	mail.clear();
-	p = await makeShotPlant();
-	await p.db
-		.updateTable('customers')
-		.set({ contact_email: ACME_CONTACT })
-		.where('id', '=', p.owners.acme)
-		.execute();
-	await p.db
-		.insertInto('users')
-		.values([
-			{
-				id: 'u-acme',
-				email: ACME_USER,
-				name: 'Ada Acme',
-				role: 'customer',
-				customer_id: p.owners.acme,
-				password_hash: 'x'
-			},
-			{
-				id: 'u-bolt',
-				email: 'buyer@bolt.test',
-				name: 'Bob Bolt',
-				role: 'customer',
-				customer_id: p.owners.bolt,
-				password_hash: 'x'
-			}
-		])
-		.execute();
+	p = await makeOwnerPlant();
 });
 
 const deliver = (at: string) => sendPending(p.db, mailer, at, { origin: ORIGIN });

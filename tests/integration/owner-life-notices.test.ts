@@ -1,10 +1,11 @@
-import { afterAll, beforeAll, beforeEach, describe, expect, test } from 'vitest';
-import { startFakeMail, type FakeMail } from '../../fakes/mail/server';
+import { beforeEach, describe, expect, test } from 'vitest';
+import type { FakeMail } from '../../fakes/mail/server';
 import { replaceHalf } from '../../src/lib/server/dies/halves';
-import { createMailer, type Mailer } from '../../src/lib/server/mail/transport';
+import type { Mailer } from '../../src/lib/server/mail/transport';
 import { runNotices } from '../../src/lib/server/notices/run';
 import { recordShots } from '../../src/lib/server/shots/ledger';
-import { hoursFromNow, LEAD, makeShotPlant, NOW, plant, type ShotPlant } from './shots-fixture';
+import { hoursFromNow, LEAD, NOW, plant, type ShotPlant } from './shots-fixture';
+import { ACME_CONTACT, ACME_USER, makeOwnerPlant, ORIGIN, useFakeMail } from './owner-mail-support';
 
 // Near-end-of-life notices to a die's owner, run by the notice job. A-0001 (ACME, aluminium
 // A380, 125 000 shots expected — the alloy's figure, on both halves) takes 14 × 7 500 =
@@ -18,55 +19,16 @@ import { hoursFromNow, LEAD, makeShotPlant, NOW, plant, type ShotPlant } from '.
 //                    → before today, so the reorder-by date has come.
 // B-0001 belongs to BOLT and has run nothing: BOLT hears nothing.
 
-const ORIGIN = 'https://castellan.test';
-const ACME_USER = 'buyer@acme.test';
-const ACME_CONTACT = 'tooling@acme.test';
-
+const fake = useFakeMail();
+let p: ShotPlant;
 let mail: FakeMail;
 let mailer: Mailer;
-let p: ShotPlant;
-
-beforeAll(async () => {
-	mail = await startFakeMail({ smtpPort: 0, httpPort: 0 });
-	mailer = createMailer({
-		smtpUrl: `smtp://127.0.0.1:${mail.smtpPort}`,
-		from: 'Castellan <castellan@plant.test>'
-	});
-});
-afterAll(async () => {
-	mailer.close();
-	await mail.close();
-});
 
 beforeEach(async () => {
+	mail = fake.mail();
+	mailer = fake.mailer();
 	mail.clear();
-	p = await makeShotPlant();
-	await p.db
-		.updateTable('customers')
-		.set({ contact_email: ACME_CONTACT })
-		.where('id', '=', p.owners.acme)
-		.execute();
-	await p.db
-		.insertInto('users')
-		.values([
-			{
-				id: 'u-acme',
-				email: ACME_USER,
-				name: 'Acme buyer',
-				role: 'customer',
-				customer_id: p.owners.acme,
-				password_hash: 'x'
-			},
-			{
-				id: 'u-bolt',
-				email: 'buyer@bolt.test',
-				name: 'Bolt buyer',
-				role: 'customer',
-				customer_id: p.owners.bolt,
-				password_hash: 'x'
-			}
-		])
-		.execute();
+	p = await makeOwnerPlant();
 	for (let day = 1; day <= 14; day++) {
 		const r = await recordShots(
 			p.db,
