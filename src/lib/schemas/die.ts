@@ -180,13 +180,11 @@ export const ownerAnswerSchema = z
 			.enum(['approve_repair', 'order_replacement', 'retire', 'write_back', ''], {
 				error: 'Choose an answer.'
 			})
-			.default(''),
+			.default('')
+			.refine((v) => v !== '', 'Choose an answer.'),
 		text: optionalText(2000)
 	})
 	.superRefine((form, ctx) => {
-		if (form.answer === '') {
-			ctx.addIssue({ code: 'custom', path: ['answer'], message: 'Choose an answer.' });
-		}
 		if (form.answer === 'write_back' && form.text.length < 3) {
 			ctx.addIssue({
 				code: 'custom',

@@ -18,12 +18,17 @@ export const load: PageServerLoad = async (event) => {
 	const die = await findOwnerDie(db, customerId, event.params.number);
 	if (!die) error(404, { message: 'This die is not among your tooling.' });
 	const asOf = nowIso();
-	const [life, story, decisions, answerForm] = await Promise.all([
+	const [life, story, decisions] = await Promise.all([
 		dieLife(db, die, asOf),
 		getOwnerDieStory(db, die, asOf),
-		loadDecisionCard(db, die.id),
-		superValidate(zod4(ownerAnswerSchema), { errors: false })
+		loadDecisionCard(db, die.id)
 	]);
+	// The form answers the open question; its id travels in the form's data, not only the page.
+	const answerForm = await superValidate(
+		{ decision: decisions.open?.id ?? 0, answer: '' as const, text: '' },
+		zod4(ownerAnswerSchema),
+		{ errors: false }
+	);
 	return {
 		die: {
 			number: die.number,
@@ -52,7 +57,7 @@ export const actions: Actions = {
 			error(404, { message: 'This die is not among your tooling.' });
 		}
 		const form = await superValidate(event.request, zod4(ownerAnswerSchema));
-		if (!form.valid || form.data.answer === '') return fail(400, { answerForm: form });
+		if (!form.valid) return fail(400, { answerForm: form });
 		const result = await answerOwnerDecision(getDb(), {
 			customerId,
 			dieNumber: event.params.number,
