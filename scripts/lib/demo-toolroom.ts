@@ -17,6 +17,7 @@ import { recordInspection } from '../../src/lib/server/toolroom/inspections';
 import { addDieZone, findDieZone, recordJobRepairs } from '../../src/lib/server/toolroom/zones';
 import { closeJob, moveJob, openJob, type Actor } from '../../src/lib/server/toolroom/jobs';
 import { setPhotoShared, uploadPhotos } from '../../src/lib/server/toolroom/photos';
+import { askOwnerDecision } from '../../src/lib/server/owner/decisions';
 
 const Jimp = createJimp({ formats: [jpeg] });
 const DAY = 86_400_000;
@@ -673,20 +674,25 @@ export async function seedToolroomDemo(
 			at: daysAgo(openedAgo, 8)
 		});
 		if (withPhotos) {
-			const files = [
-				photoFile(await drawSurfaceImage(seed++, 2), 'before.jpg'),
-				photoFile(await drawSurfaceImage(seed++, 0), 'after.jpg')
+			// Each photo with its own caption and before/after tag (one upload per photo, as the
+			// phone form sends them).
+			const shots: [number, string, string, 'before' | 'after'][] = [
+				[2, 'before.jpg', 'Parting line before the repair: open heat checking', 'before'],
+				[0, 'after.jpg', 'Parting line after grinding and polishing', 'after']
 			];
-			const uploaded = await uploadPhotos(db, {
-				target: { jobId: jobRow.id },
-				files,
-				actor: maker,
-				uploadDir,
-				caption: 'Parting line, before and after',
-				at: daysAgo(openedAgo - tookDays, 11)
-			});
-			if (!uploaded.ok) throw new Error(`Demo job photos: ${uploaded.message}`);
-			summary.photos += uploaded.count;
+			for (const [grade, name, caption, stage] of shots) {
+				const uploaded = await uploadPhotos(db, {
+					target: { jobId: jobRow.id },
+					files: [photoFile(await drawSurfaceImage(seed++, grade), name)],
+					actor: maker,
+					uploadDir,
+					caption,
+					stage,
+					at: daysAgo(openedAgo - tookDays, 11)
+				});
+				if (!uploaded.ok) throw new Error(`Demo job photos: ${uploaded.message}`);
+				summary.photos += uploaded.count;
+			}
 			const shared = await db
 				.selectFrom('photos')
 				.select('public_id')
@@ -750,6 +756,24 @@ export async function seedToolroomDemo(
 			assignedTo: ''
 		},
 		3
+	);
+	// D-0109 waits for its owner: the question with the quote, as the portal shows it.
+	const held = await db
+		.selectFrom('dies')
+		.select('id')
+		.where('number', '=', 'D-0109')
+		.executeTakeFirstOrThrow();
+	await askOwnerDecision(
+		db,
+		held.id,
+		{
+			question:
+				'Porosity at the far end of cavity 1. May we add an overflow there (a modification to your die), or do you want to keep it as it is?',
+			quotedHours: 14,
+			quotedCost: 2400
+		},
+		lead.userId,
+		daysAgo(3, 10)
 	);
 
 	await closePhotoPool();

@@ -11,10 +11,12 @@ import {
 	HALF_LABELS,
 	JOB_HALF_LABELS,
 	LEAK_TEST_LABELS,
+	OWNER_ANSWER_LABELS,
 	jobKindLabel,
 	serviceKindLabel
 } from './labels';
 import type { DieStatus } from './domain';
+import { describeQuote } from './quote';
 
 export interface HistoryEntry {
 	action: string;
@@ -108,6 +110,21 @@ export function describeHistoryEntry(h: HistoryEntry): string {
 			return `Toolroom job ${text(d.job)} opened from a service window ${d.automatic ? 'at its start' : 'by hand'}`;
 		case 'photo.share':
 			return d.shared ? 'Photo shared with the owner' : 'Photo no longer shared with the owner';
+		case 'owner.decision_asked': {
+			const quote = describeQuote(
+				typeof d.quotedHours === 'number' ? d.quotedHours : null,
+				typeof d.quotedCost === 'number' ? d.quotedCost : null
+			);
+			return `Owner's decision asked: ${text(d.question)}${quote ? ` (${quote.toLowerCase()})` : ''}`;
+		}
+		case 'owner.decision_answered': {
+			const answer =
+				(OWNER_ANSWER_LABELS as Record<string, { word: string }>)[text(d.answer)]?.word ??
+				'Answered';
+			return `Owner answered: ${answer}${d.text ? ` — ${text(d.text)}` : ''} (asked: ${text(d.question)})`;
+		}
+		case 'photo.caption':
+			return `Photo caption changed to “${text(d.caption)}”`;
 		default:
 			return `${AUDIT_ACTION_LABELS[h.action] ?? 'Change recorded'}${reason(d)}`;
 	}

@@ -132,7 +132,10 @@ export const AUDIT_ACTION_LABELS: Record<string, string> = {
 	'die.import_update': 'Changed by a register import',
 	'window.reserve': 'Service window set aside for the toolroom',
 	'window.cancel': 'Service window called off',
-	'window.start': 'Toolroom job opened from a service window'
+	'window.start': 'Toolroom job opened from a service window',
+	'owner.decision_asked': "Owner's decision asked",
+	'owner.decision_answered': 'Owner answered',
+	'photo.caption': 'Photo caption changed'
 };
 // Verdicts of the order check and the booking form (one judge: lib/server/schedule/verdict.ts).
 export const VERDICT_LABELS = {
@@ -183,3 +186,18 @@ export const SERVICE_WINDOW_LABELS = {
 	started: { word: 'Job opened', mark: '▶' },
 	problem: { word: 'Not started', mark: '✕' }
 } as const;
+/** Why a die is held, as the toolroom lead picks it; only the owner's decision asks anything. */
+export const HOLD_REASON_LABELS = {
+	owner_decision: "Waiting for the owner's decision",
+	other: 'Other reason (say which)'
+} as const;
+/** What a die's owner may answer when asked for a decision; the shape goes with the word. */
+export const OWNER_ANSWER_LABELS = {
+	approve_repair: { word: 'Approve the repair', shape: '✓' },
+	order_replacement: { word: 'Order a replacement die', shape: '↻' },
+	retire: { word: 'Retire the die', shape: '■' },
+	write_back: { word: 'Written reply', shape: '✎' }
+} as const;
+/** Said on every decision card: the answer is a message to the plant, not a state change. */
+export const OWNER_ANSWER_EFFECT =
+	"The answer does not change the die's state by itself: the toolroom lead acts on it.";

@@ -151,7 +151,8 @@ test('photos and summaries the plant shares reach the owner, and nobody else', a
 			mimeType: 'image/jpeg',
 			buffer: await makeTestJpeg(i)
 		});
-		await lead.getByLabel('Caption (optional)').fill(caption);
+		// Each chosen photo has its own caption field (captions are per photo).
+		await lead.getByLabel(`Caption of owner-${i}.jpg`).fill(caption);
 		await lead.getByRole('button', { name: 'Upload photos' }).click();
 		await expect(lead.getByRole('heading', { name: `Photos (${i})` })).toBeVisible();
 	}

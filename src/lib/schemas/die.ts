@@ -99,9 +99,50 @@ export const dieStatusSchema = z
 		seenBlocked: optionalWholeNumber({
 			min: [-1, 'Reload the page.'],
 			max: [100_000, 'Reload the page.']
-		}).transform((v) => v ?? -1)
+		}).transform((v) => v ?? -1),
+		/** When holding: why. "owner_decision" asks the die's owner (question, optional quote). */
+		holdReason: z.enum(['owner_decision', 'other', '']).default(''),
+		ownerQuestion: optionalText(1000),
+		quotedHours: optionalDecimalNumber({
+			min: [0, 'Hours cannot be negative.'],
+			max: [10_000, 'Give at most 10 000 hours.']
+		}),
+		quotedCost: optionalDecimalNumber({
+			min: [0, 'A cost cannot be negative.'],
+			max: [100_000_000, 'Give at most 100 000 000.']
+		})
 	})
 	.superRefine((form, ctx) => {
+		const asking = form.status === 'held' && form.holdReason === 'owner_decision';
+		if (asking && form.ownerQuestion.length < 3) {
+			ctx.addIssue({
+				code: 'custom',
+				path: ['ownerQuestion'],
+				message: 'Say what the owner is asked to decide (at least 3 characters).'
+			});
+		}
+		if (
+			!asking &&
+			(form.ownerQuestion || form.quotedHours !== undefined || form.quotedCost !== undefined)
+		) {
+			const path = form.ownerQuestion
+				? 'ownerQuestion'
+				: form.quotedHours !== undefined
+					? 'quotedHours'
+					: 'quotedCost';
+			ctx.addIssue({
+				code: 'custom',
+				path: [path],
+				message: "A question and quote go only with holding the die for the owner's decision."
+			});
+		}
+		if (form.status !== 'held' && form.holdReason !== '') {
+			ctx.addIssue({
+				code: 'custom',
+				path: ['holdReason'],
+				message: 'A hold reason goes only with moving the die to held.'
+			});
+		}
 		if (form.status === 'retired' && form.retirementReason === '') {
 			ctx.addIssue({
 				code: 'custom',
@@ -131,3 +172,43 @@ export const dieListQuerySchema = z.object({
 	size: z.coerce.number().int().min(10).max(200).catch(50)
 });
 export type DieListQuery = z.infer<typeof dieListQuerySchema>;
+
+/** The owner's answer to a decision the toolroom lead asked for (owner portal). */
+export const ownerAnswerSchema = z
+	.object({
+		decision: wholeNumber({ required: 'Reload the page.', min: [1, 'Reload the page.'] }),
+		// Starts on no choice ('') so that nothing is answered by leaving the form as it came.
+		answer: z
+			.enum(['approve_repair', 'order_replacement', 'retire', 'write_back', ''], {
+				error: 'Choose an answer.'
+			})
+			.default('')
+			.refine((v) => v !== '', 'Choose an answer.'),
+		text: optionalText(2000)
+	})
+	.superRefine((form, ctx) => {
+		if (form.answer === 'write_back' && form.text.length < 3) {
+			ctx.addIssue({
+				code: 'custom',
+				path: ['text'],
+				message: 'Write your reply (at least 3 characters).'
+			});
+		}
+	});
+
+/** Asking the owner of a die that is already held (the die page's "Ask the owner" form). */
+export const askOwnerSchema = z.object({
+	ownerQuestion: z
+		.string()
+		.trim()
+		.min(3, 'Say what the owner is asked to decide (at least 3 characters).')
+		.max(1000, 'Keep it under 1000 characters.'),
+	quotedHours: optionalDecimalNumber({
+		min: [0, 'Hours cannot be negative.'],
+		max: [10_000, 'Give at most 10 000 hours.']
+	}),
+	quotedCost: optionalDecimalNumber({
+		min: [0, 'A cost cannot be negative.'],
+		max: [100_000_000, 'Give at most 100 000 000.']
+	})
+});

@@ -1,5 +1,6 @@
 import { ownerDieQuerySchema } from '$lib/schemas/owner';
 import { getDb } from '$lib/server/db';
+import { listOpenDecisionsForOwner } from '$lib/server/owner/decisions';
 import { requireOwner } from '$lib/server/owner/guard';
 import {
 	describeLastJob,
@@ -16,15 +17,24 @@ export const load: PageServerLoad = async (event) => {
 	const { customerId } = requireOwner(event);
 	const db = getDb();
 	const query = ownerDieQuerySchema.parse(Object.fromEntries(event.url.searchParams));
-	const [customer, dies] = await Promise.all([
+	const [customer, dies, decisions] = await Promise.all([
 		findOwnerCustomer(db, customerId),
-		loadOwnerDies(db, customerId)
+		loadOwnerDies(db, customerId),
+		listOpenDecisionsForOwner(db, customerId)
 	]);
 	const { rows, total } = pageOwnerDies(dies, query);
 	return {
 		query,
 		customer: { name: customer?.name ?? '', code: customer?.code ?? '' },
 		totals: summariseOwnerDies(dies),
+		decisions: decisions.map((d) => ({
+			dieNumber: d.dieNumber,
+			partName: d.partName,
+			question: d.question,
+			quotedHours: d.quotedHours,
+			quotedCost: d.quotedCost,
+			askedAt: d.askedAt
+		})),
 		total,
 		rows: rows.map((d) => ({
 			number: d.number,

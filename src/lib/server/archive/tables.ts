@@ -131,6 +131,12 @@ export const ARCHIVE_TABLES: ArchiveTable[] = [
 			'Photos: the job or inspection they belong to, file names under photos/ in this archive, size, sha256.'
 	},
 	{
+		table: 'owner_decisions',
+		file: 'owner_decisions.csv',
+		about:
+			"Questions put to a die's owner (quoted repair hours and cost) and the owner's answer, who and when (UTC)."
+	},
+	{
 		table: 'audit_log',
 		file: 'audit_log.csv',
 		about: 'Who changed what and when (detail as JSON).'

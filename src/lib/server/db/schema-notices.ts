@@ -8,15 +8,35 @@
 import type { Generated, Selectable } from 'kysely';
 
 /** What a notice is about. */
-export type NoticeKind = 'service' | 'life' | 'job_completed' | 'die_state';
+export type NoticeKind =
+	| 'service'
+	| 'life'
+	| 'job_completed'
+	| 'die_state'
+	| 'owner_life'
+	| 'owner_decision'
+	| 'owner_answer';
 
 /**
  * How bad it is, the digest's grouping, worst first: service task states, die life thresholds,
  * "ready again" after a toolroom job was closed (or a die moved back by hand), and "not
- * bookable" when a die was moved to a state that blocks its press bookings.
+ * bookable" when a die was moved to a state that blocks its press bookings. The owner's items:
+ * life 80 % / 95 % and reorder due (owner_life), a decision asked (owner_decision), and the
+ * owner's answer told to the toolroom leads (owner_answer, level owner_answered).
  */
 export type NoticeLevel =
-	'overdue' | 'due' | 'coming_up' | 'life_100' | 'life_90' | 'ready_again' | 'not_bookable';
+	| 'overdue'
+	| 'due'
+	| 'coming_up'
+	| 'life_100'
+	| 'life_90'
+	| 'ready_again'
+	| 'not_bookable'
+	| 'life_80'
+	| 'life_95'
+	| 'reorder_due'
+	| 'decision_asked'
+	| 'owner_answered';
 
 /** Delivery state of one item to one recipient. */
 export type DeliveryState = 'pending' | 'sent' | 'failed';

@@ -86,6 +86,8 @@ export interface PhotosTable {
 	uploaded_by: string | null;
 	uploaded_at: string;
 	caption: string | null;
+	/** How many photos of one upload the caption was typed once for; 1 = the photo's own. */
+	caption_batch: Generated<number>;
 	shared_with_owner: Generated<number>;
 	/** Job photos: the die before, during or after the work; null when not said. */
 	stage: PhotoStage | null;

@@ -17,6 +17,7 @@ import type { InvitationsTables } from './schema-invitations';
 import type { PlantSettingsTables } from './schema-settings';
 import type { ImportTables } from './schema-import';
 import type { WindowTables } from './schema-windows';
+import type { OwnerDecisionTables } from './schema-owner';
 
 export type { AlloyFamily, DieProcess, DieStatus, HalfSide, RetirementReason, Role, ShotSource };
 
@@ -233,7 +234,8 @@ export interface Database
 		InvitationsTables,
 		PlantSettingsTables,
 		ImportTables,
-		WindowTables {
+		WindowTables,
+		OwnerDecisionTables {
 	customers: CustomersTable;
 	users: UsersTable;
 	sessions: SessionsTable;

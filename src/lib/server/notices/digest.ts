@@ -3,6 +3,7 @@ import { plantDate, plantTimeNote } from '../../plant-time';
 import { HALF_LABELS, serviceKindLabel } from '../../labels';
 import { escapeHtml, layoutEmail } from '../mail/html';
 import type { DieConcerns } from './concerns';
+import { describeOwnerEntry } from './owner-mail';
 import {
 	NOTICE_LEVEL_COUNT_WORDS,
 	NOTICE_LEVEL_LABELS,
@@ -71,6 +72,8 @@ export function entryLinks(
 			];
 		case 'life':
 			return [{ label: 'Die', url: die }];
+		case 'owner_answer':
+			return [{ label: "The owner's answer", url: `${die}#owner-decision` }];
 		case 'job_completed':
 			return [
 				{ label: 'Job', url: `${base(origin)}/jobs/${encodeURIComponent(payload.jobNumber)}` }
@@ -129,6 +132,11 @@ export function describeEntry(payload: NoticePayload): string {
 			return `${payload.jobNumber} closed${payload.summary ? `: ${payload.summary}` : ''}`;
 		case 'die_state':
 			return `Moved to ${payload.to}: ${payload.reason}. ${payload.consequence}`;
+		case 'owner_answer':
+			return `${payload.answeredBy} answered "${payload.question}": ${payload.answer}${payload.answerText ? ` — ${payload.answerText}` : ''}. The die's state is unchanged until you move it.`;
+		case 'owner_life':
+		case 'owner_decision':
+			return describeOwnerEntry(payload);
 	}
 }
 

@@ -4,7 +4,8 @@ import type { Mailer } from '../mail/transport';
 import { findDieConcerns } from './concerns';
 import { composeDigest, type ComposedMail, type DigestEntry } from './digest';
 import { toStoredInstant } from './outbox';
-import type { NoticeLevel, NoticePayload } from './types';
+import { composeOwnerMail } from './owner-mail';
+import { OWNER_NOTICE_KINDS, type NoticeLevel, type NoticePayload } from './types';
 
 /** Attempts before a delivery is marked failed and left to an admin. */
 export const DEFAULT_MAX_ATTEMPTS = 5;
@@ -56,8 +57,13 @@ interface ClaimedRow {
 interface Claim {
 	digestId: string;
 	recipient: string;
+	/** Items for a die's owner go in their own mail (owner portal links, owner words). */
+	owner: boolean;
 	rows: ClaimedRow[];
 }
+
+/** SQL list of the kinds that go to owners, from OWNER_NOTICE_KINDS. */
+const OWNER_KINDS_SQL = OWNER_NOTICE_KINDS.map((k) => `'${k}'`).join(',');
 
 /**
  * Takes every pending row whose time has come, one digest per recipient, in one IMMEDIATE
@@ -68,13 +74,16 @@ async function claimDue(db: DB, at: string): Promise<Claim[]> {
 	const raw = rawHandle(db);
 	const lease = new Date(Date.parse(at) + CLAIM_LEASE_MS).toISOString();
 	return db.connection().execute(async () => {
-		const recipients = raw.prepare<[string], { recipient: string }>(
-			`select distinct recipient from notice_deliveries
-			  where state = 'pending' and next_attempt_at <= ? order by recipient`
+		const recipients = raw.prepare<[string], { recipient: string; owner: number }>(
+			`select distinct d.recipient, (n.kind in (${OWNER_KINDS_SQL})) as owner
+			   from notice_deliveries d join notices n on n.id = d.notice_id
+			  where d.state = 'pending' and d.next_attempt_at <= ? order by d.recipient, owner`
 		);
 		const claim = raw.prepare(
 			`update notice_deliveries set digest_id = ?, next_attempt_at = ?
-			  where recipient = ? and state = 'pending' and next_attempt_at <= ?`
+			  where recipient = ? and state = 'pending' and next_attempt_at <= ?
+			    and (select n.kind in (${OWNER_KINDS_SQL}) from notices n
+			          where n.id = notice_deliveries.notice_id) = ?`
 		);
 		const claimed = raw.prepare<[string], ClaimedRow>(
 			`select d.id, d.recipient, d.attempts, n.level, n.subject, dies.number as die_number,
@@ -85,10 +94,10 @@ async function claimDue(db: DB, at: string): Promise<Claim[]> {
 			  where d.digest_id = ? and d.state = 'pending' order by d.id`
 		);
 		const run = raw.transaction((): Claim[] =>
-			recipients.all(at).map(({ recipient }) => {
+			recipients.all(at).map(({ recipient, owner }) => {
 				const digestId = randomUUID();
-				claim.run(digestId, lease, recipient, at);
-				return { digestId, recipient, rows: claimed.all(digestId) };
+				claim.run(digestId, lease, recipient, at, owner);
+				return { digestId, recipient, owner: owner === 1, rows: claimed.all(digestId) };
 			})
 		);
 		return run.immediate();
@@ -192,8 +201,13 @@ export async function sendPending(
 		let messageId: string;
 		try {
 			const entries = claim.rows.map(toDigestEntry);
-			const concerns = await findDieConcerns(db, [...new Set(entries.map((e) => e.dieNumber))]);
-			mail = composeDigest(entries, { origin: options.origin, asOf: at, concerns });
+			if (claim.owner) {
+				mail = composeOwnerMail(entries, { origin: options.origin, asOf: at });
+			} else {
+				const dies = [...new Set(entries.map((e) => e.dieNumber))];
+				const concerns = await findDieConcerns(db, dies);
+				mail = composeDigest(entries, { origin: options.origin, asOf: at, concerns });
+			}
 			({ messageId } = await mailer.send({ to: claim.recipient, ...mail }));
 		} catch (error) {
 			const message = error instanceof Error ? error.message : String(error);

@@ -42,6 +42,9 @@ export async function insertPhotoRows(
 	stage: PhotoStage | null = null
 ) {
 	if (files.length === 0) return;
+	// One caption sent with several files (a form without JavaScript) is kept on each, marked as
+	// typed once for the upload, so nobody reads it as that photo's own words.
+	const captionBatch = caption === null ? 1 : files.length;
 	await trx
 		.insertInto('photos')
 		.values(
@@ -61,6 +64,7 @@ export async function insertPhotoRows(
 				uploaded_by: actorId,
 				uploaded_at: at,
 				caption,
+				caption_batch: captionBatch,
 				stage
 			}))
 		)
@@ -250,15 +254,25 @@ export async function setPhotoShared(
 	});
 }
 
+export interface PhotoViewer {
+	role: string;
+	customerId: number | null;
+}
+
+/**
+ * Who may see a photo: plant roles every photo; a tooling owner only a photo marked shared on a
+ * die it owns. The one rule for the photo files and the photo viewer page.
+ */
+function mayViewPhoto(photo: { shared: number; customerId: number }, viewer: PhotoViewer): boolean {
+	if (viewer.role !== 'customer') return true;
+	return !!photo.shared && viewer.customerId !== null && photo.customerId === viewer.customerId;
+}
+
 /**
  * The photo a viewer may see, or undefined (the route answers 404 either way): plant roles see
  * every photo; a tooling owner only a photo marked shared on a die it owns.
  */
-export async function findViewablePhoto(
-	db: DB,
-	publicId: string,
-	viewer: { role: string; customerId: number | null }
-) {
+export async function findViewablePhoto(db: DB, publicId: string, viewer: PhotoViewer) {
 	const photo = await db
 		.selectFrom('photos as p')
 		.innerJoin('dies', 'dies.id', 'p.die_id')
@@ -271,11 +285,82 @@ export async function findViewablePhoto(
 		])
 		.where('p.public_id', '=', publicId)
 		.executeTakeFirst();
-	if (!photo) return undefined;
-	if (viewer.role === 'customer') {
-		if (!photo.shared || viewer.customerId === null || photo.customerId !== viewer.customerId) {
-			return undefined;
-		}
-	}
+	if (!photo || !mayViewPhoto(photo, viewer)) return undefined;
 	return photo;
+}
+
+/**
+ * One photo in its context for the photo viewer: its own caption (and whether that caption was
+ * typed once for several photos of one upload), date, die, job, before/after tag, and the zone
+ * and half of the surface inspection it belongs to. Undefined when the viewer may not see it.
+ */
+export async function loadPhotoView(db: DB, publicId: string, viewer: PhotoViewer) {
+	const photo = await db
+		.selectFrom('photos as p')
+		.innerJoin('dies', 'dies.id', 'p.die_id')
+		.leftJoin('toolroom_jobs as j', 'j.id', 'p.job_id')
+		.leftJoin('surface_inspections as s', 's.id', 'p.inspection_id')
+		.select([
+			'p.public_id as publicId',
+			'p.caption',
+			'p.caption_batch as captionBatch',
+			'p.uploaded_at as uploadedAt',
+			'p.width',
+			'p.height',
+			'p.stage',
+			'p.shared_with_owner as shared',
+			'dies.customer_id as customerId',
+			'dies.number as dieNumber',
+			'j.number as jobNumber',
+			's.zone',
+			's.half'
+		])
+		.where('p.public_id', '=', publicId)
+		.executeTakeFirst();
+	if (!photo || !mayViewPhoto(photo, viewer)) return undefined;
+	const { customerId: _owner, shared: _shared, ...view } = photo;
+	void _owner;
+	void _shared;
+	return view;
+}
+
+/**
+ * Gives one photo its own caption (the plant's roles that share photos). Empty text removes the
+ * caption. Audited on the photo's die; returns false when there is no such photo.
+ */
+export async function setPhotoCaption(
+	db: DB,
+	input: { publicId: string; caption: string; actorId: string; at?: string }
+): Promise<boolean> {
+	const at = input.at ?? nowIso();
+	const caption = input.caption.trim() ? input.caption.trim().slice(0, 200) : null;
+	return db.transaction().execute(async (trx) => {
+		const photo = await trx
+			.selectFrom('photos')
+			.select(['id', 'die_id', 'caption'])
+			.where('public_id', '=', input.publicId)
+			.executeTakeFirst();
+		if (!photo) return false;
+		await trx
+			.updateTable('photos')
+			.set({ caption, caption_batch: 1 })
+			.where('id', '=', photo.id)
+			.execute();
+		await writeAudit(
+			trx,
+			{
+				userId: input.actorId,
+				action: 'photo.caption',
+				dieId: photo.die_id,
+				detail: {
+					photo: input.publicId,
+					caption,
+					before: { caption: photo.caption },
+					after: { caption }
+				}
+			},
+			at
+		);
+		return true;
+	});
 }

@@ -1,0 +1,68 @@
+import { sql, type Kysely } from 'kysely';
+
+// Frozen in time: never edit a migration that has shipped; add a new one instead.
+// The outbox learns what a die's owner is told and what the owner answers:
+// - "owner_life": the die passed 80 % or 95 % of its expected life, or its reorder-by date has
+//   come (levels life_80, life_95, reorder_due), sent to the owner's contacts;
+// - "owner_decision": the toolroom lead holds the die waiting for the owner's decision (level
+//   decision_asked), sent to the owner's contacts;
+// - "owner_answer": the owner answered (level owner_answered), sent to the toolroom leads.
+// SQLite cannot change a CHECK constraint in place, so `notices` is rebuilt the documented way
+// (sqlite.org/lang_altertable.html, "other kinds of table schema changes"), as in
+// 2026_12_03_1401: foreign keys off, new table, copy, drop, rename, check, on. Every existing row
+// keeps its id, so notice_deliveries still point at the same items.
+
+async function rebuild(db: Kysely<any>, kinds: string[], levels: string[]) {
+	const list = (values: string[]) => sql.raw(values.map((v) => `'${v}'`).join(','));
+	await sql`pragma foreign_keys = off`.execute(db);
+	try {
+		await db.transaction().execute(async (trx) => {
+			await trx.schema
+				.createTable('notices_rebuilt')
+				.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+				.addColumn('notice_key', 'text', (c) => c.notNull().unique())
+				.addColumn('kind', 'text', (c) => c.notNull())
+				.addColumn('level', 'text', (c) => c.notNull())
+				.addColumn('die_id', 'integer', (c) => c.notNull().references('dies.id'))
+				.addColumn('subject', 'text', (c) => c.notNull())
+				.addColumn('payload', 'text', (c) => c.notNull().defaultTo('{}'))
+				.addColumn('created_at', 'text', (c) => c.notNull())
+				.addCheckConstraint('notices_kind_check', sql`kind in (${list(kinds)})`)
+				.addCheckConstraint('notices_level_check', sql`level in (${list(levels)})`)
+				.execute();
+			await sql`insert into notices_rebuilt (id, notice_key, kind, level, die_id, subject, payload, created_at)
+				select id, notice_key, kind, level, die_id, subject, payload, created_at from notices`.execute(trx);
+			await sql`drop table notices`.execute(trx);
+			await sql`alter table notices_rebuilt rename to notices`.execute(trx);
+			const broken = await sql`pragma foreign_key_check`.execute(trx);
+			if (broken.rows.length) throw new Error('Rebuilding notices broke a foreign key.');
+		});
+	} finally {
+		await sql`pragma foreign_keys = on`.execute(db);
+	}
+}
+
+const OLD_KINDS = ['service', 'life', 'job_completed', 'die_state'];
+const OLD_LEVELS = [
+	'overdue',
+	'due',
+	'coming_up',
+	'life_100',
+	'life_90',
+	'ready_again',
+	'not_bookable'
+];
+const NEW_KINDS = ['owner_life', 'owner_decision', 'owner_answer'];
+const NEW_LEVELS = ['life_80', 'life_95', 'reorder_due', 'decision_asked', 'owner_answered'];
+
+export async function up(db: Kysely<any>): Promise<void> {
+	await rebuild(db, [...OLD_KINDS, ...NEW_KINDS], [...OLD_LEVELS, ...NEW_LEVELS]);
+}
+
+export async function down(db: Kysely<any>): Promise<void> {
+	await db
+		.deleteFrom('notices')
+		.where((eb) => eb.or([eb('kind', 'in', NEW_KINDS), eb('level', 'in', NEW_LEVELS)]))
+		.execute();
+	await rebuild(db, OLD_KINDS, OLD_LEVELS);
+}
