@@ -152,6 +152,7 @@ export const ACTIONS: Record<string, Cells> = {
 	'/jobs/[job]?/cancel': roles(...WORKERS),
 	'/jobs/[job]?/close': roles(...WORKERS),
 	'/jobs/[job]?/part': roles(...WORKERS),
+	'/jobs/[job]?/repair': roles(...WORKERS),
 	'/jobs/[job]?/share': roles(...WORKERS),
 	'/jobs/[job]?/status': roles(...WORKERS),
 	'/jobs/[job]?/upload': roles(...WORKERS),

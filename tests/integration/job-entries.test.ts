@@ -5,7 +5,13 @@ import { afterAll, afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { extractText, getDocumentProxy } from 'unpdf';
 import { describeHistoryEntry } from '../../src/lib/history';
 import * as createJobEntries from '../../migrations/2026_12_03_2301_create_job_entries';
-import { closeJobSchema, partUsedSchema, workEntrySchema } from '../../src/lib/schemas/toolroom';
+import {
+	closeJobSchema,
+	jobRepairSchema,
+	partUsedSchema,
+	workEntrySchema
+} from '../../src/lib/schemas/toolroom';
+import { addDieZone, recordJobRepairs } from '../../src/lib/server/toolroom/zones';
 import { closePhotoPool } from '../../src/lib/server/photos/worker-pool';
 import {
 	listJobEntries,
@@ -297,5 +303,34 @@ describe('upgrading a plant database', () => {
 		const { work: entries } = await listJobEntries(plant.db, id);
 		expect(entries.map((w) => [w.hours, w.at])).toEqual([[3.5, '2026-02-03T15:00:00.000Z']]);
 		expect(await jobHours()).toBe(3.5);
+	});
+});
+
+describe('repairs recorded on a job', () => {
+	it('are listed on the job page by half and zone, with how they were done', async () => {
+		const zone = await addDieZone(
+			plant.db,
+			plant.dieId,
+			{ half: 'cover', name: 'Slide face A' },
+			plant.lead
+		);
+		if (!zone.ok) throw new Error(zone.message);
+		const job = (await getJob(plant.db, number))!;
+		const recorded = await recordJobRepairs(
+			plant.db,
+			job.id,
+			[{ zoneId: zone.id, kind: 'weld' }],
+			plant.toolmaker
+		);
+		expect(recorded.ok).toBe(true);
+		const page = await getJobPage(plant.db, job, 'toolmaker');
+		expect(page.zones.map((z) => z.name)).toContain('Slide face A');
+		expect(page.repairs.map((r) => [r.half, r.zone, r.kind])).toEqual([
+			['cover', 'Slide face A', 'weld']
+		]);
+		expect(jobRepairSchema.safeParse({ zoneId: '', kind: 'weld' }).error?.issues[0].message).toBe(
+			'Choose the zone.'
+		);
+		expect(jobRepairSchema.safeParse({ zoneId: '3', kind: 'glue' }).success).toBe(false);
 	});
 });

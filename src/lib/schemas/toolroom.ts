@@ -100,6 +100,12 @@ export const workEntrySchema = z.object({
 });
 export type WorkEntryForm = z.infer<typeof workEntrySchema>;
 
+/** A zone of the die repaired by an open job (its crack series restarts after the job). */
+export const jobRepairSchema = z.object({
+	zoneId: wholeNumber({ required: 'Choose the zone.', min: [1, 'Choose the zone.'] }),
+	kind: z.enum(['weld', 'insert_change', 'remachining'], { error: 'Choose what was done.' })
+});
+
 /** A part used on an open job. */
 export const partUsedSchema = z.object({
 	part: z

@@ -9,6 +9,7 @@ import { canLeadToolroom, canWorkToolroom } from './access';
 import { listJobEntries } from './job-entries';
 import { isActiveJob, JOB_MOVES, jobAgeDays, listAssignees, type JobDetail } from './jobs';
 import { listJobPhotos } from './photos';
+import { listDieZones, listJobRepairs } from './zones';
 
 /** Upload limits the photo form states (the server enforces them in any case). */
 export const PHOTO_LIMITS = {
@@ -60,15 +61,19 @@ export async function listJobRecords(db: DB, jobId: number) {
 }
 
 export async function getJobPage(db: DB, job: JobDetail, role: RoleName, asOf = nowIso()) {
-	const [photos, assignees, records, entries] = await Promise.all([
+	const [photos, assignees, records, entries, zones, repairs] = await Promise.all([
 		listJobPhotos(db, job.id),
 		listAssignees(db),
 		listJobRecords(db, job.id),
-		listJobEntries(db, job.id)
+		listJobEntries(db, job.id),
+		listDieZones(db, job.die_id),
+		listJobRepairs(db, job.id)
 	]);
 	return {
 		...records,
 		entries,
+		zones,
+		repairs,
 		job,
 		tasks: job.tasks.map((t) => ({
 			...viewServiceTask(

@@ -5,6 +5,7 @@ import {
 	assignJobSchema,
 	cancelJobSchema,
 	closeJobSchema,
+	jobRepairSchema,
 	jobStatusSchema,
 	partUsedSchema,
 	photoShareSchema,
@@ -21,7 +22,15 @@ import { TOOLROOM_LEADS, TOOLROOM_READERS, TOOLROOM_WORKERS } from '$lib/server/
 import { voidJob } from '$lib/server/toolroom/job-void';
 import { recordPartUsed, recordWorkEntry, voidJobEntry } from '$lib/server/toolroom/job-entries';
 import { getJobPage } from '$lib/server/toolroom/job-page';
-import { assignJob, cancelJob, closeJob, getJob, moveJob } from '$lib/server/toolroom/jobs';
+import {
+	assignJob,
+	cancelJob,
+	closeJob,
+	getJob,
+	isActiveJob,
+	moveJob
+} from '$lib/server/toolroom/jobs';
+import { recordJobRepairs } from '$lib/server/toolroom/zones';
 import { setPhotoShared, uploadPhotos } from '$lib/server/toolroom/photos';
 import { announceJobClosed } from '$lib/server/toolroom/announce';
 import type { Actions, PageServerLoad } from './$types';
@@ -136,6 +145,32 @@ export const actions: Actions = {
 		});
 		if (!result.ok) return message(form, result.message, { status: result.status });
 		return message(form, `Recorded: ${form.data.quantity} × ${form.data.part}.`);
+	},
+
+	repair: async (event) => {
+		const user = requireRole(event, ...TOOLROOM_WORKERS);
+		const job = await loadJob(event.params.job);
+		const parsed = jobRepairSchema.safeParse(Object.fromEntries(await event.request.formData()));
+		if (!parsed.success) {
+			return fail(400, { repair: { ok: false, message: parsed.error.issues[0].message } });
+		}
+		if (!isActiveJob(job.status)) {
+			const message = `${job.number} is no longer open; repairs are recorded while it is.`;
+			return fail(409, { repair: { ok: false, message } });
+		}
+		const result = await recordJobRepairs(
+			getDb(),
+			job.id,
+			[{ zoneId: parsed.data.zoneId, kind: parsed.data.kind }],
+			{ userId: user.id, role: user.role }
+		);
+		if (!result.ok) return fail(result.status, { repair: { ok: false, message: result.message } });
+		return {
+			repair: {
+				ok: true,
+				message: 'Repair recorded: the zone’s crack trend starts again when the job closes.'
+			}
+		};
 	},
 
 	voidEntry: async (event) => {
