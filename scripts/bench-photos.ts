@@ -222,7 +222,7 @@ export async function run(): Promise<BenchFigure[]> {
 				pass: tools
 			},
 			{
-				figure: 'photos: upload path per photo, 12 MP full size',
+				figure: 'photos: upload path per photo, 12 MP full size (stored 2000 px)',
 				value: fullMs,
 				unit: 'ms',
 				target: `≤ ${RATIO_TARGET}× djpeg|cjpeg`,
@@ -230,12 +230,13 @@ export async function run(): Promise<BenchFigure[]> {
 				pass: ratio <= RATIO_TARGET
 			},
 			{
-				figure: 'photos: upload path per photo, after browser-style downscale',
+				// Stores more pixels (2560 px) than the full-size path (decoded at half, 2000 px).
+				figure: 'photos: upload path per photo, after browser-style downscale (stored 2560 px)',
 				value: smallMs,
 				unit: 'ms',
-				target: `≤ full-size path`,
+				target: `≤ ${RATIO_TARGET}× djpeg|cjpeg`,
 				ratio: smallMs / referenceMs,
-				pass: smallMs <= fullMs
+				pass: smallMs / referenceMs <= RATIO_TARGET
 			},
 			{
 				figure: 'photos: p95 simple DB read during 4 uploads',

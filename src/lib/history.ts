@@ -74,6 +74,13 @@ export function describeHistoryEntry(h: HistoryEntry): string {
 			return `Toolroom job ${text(d.job)} cancelled${reason(d)}`;
 		case 'job.void':
 			return `Toolroom job ${text(d.job)} voided${reason(d)}`;
+		case 'job.work':
+			return `Toolroom job ${text(d.job)}: ${text(d.hours)} h recorded (${text((d.after as Record<string, unknown> | undefined)?.hours)} h in all)`;
+		case 'job.part':
+			return `Toolroom job ${text(d.job)}: ${text(d.quantity)} × ${text(d.part)} used`;
+		case 'job.work.void':
+		case 'job.part.void':
+			return `Toolroom job ${text(d.job)}: ${h.action === 'job.work.void' ? 'hours' : 'part'} entry voided${reason(d)}`;
 		case 'job.owner_summary':
 			return `Owner summary of job ${text(d.job)} ${d.shared ? 'shared with the owner' : 'kept internal'}`;
 		case 'surface.inspect':

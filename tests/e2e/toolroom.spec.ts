@@ -112,16 +112,31 @@ test('a toolmaker opens a job, adds photos, inspects, checks cooling and closes 
 	).toBeVisible();
 	await page.screenshot({ path: info.outputPath('cooling-check.png'), fullPage: true });
 
-	// Close the job: the die is ready again and its service task done.
+	// Hours and a part recorded at the bench while the job is open.
 	await page.goto(jobUrl);
+	const hoursForm = page.getByRole('form', { name: 'Record hours' });
+	await hoursForm.getByLabel('Hours', { exact: true }).fill('1,5');
+	await hoursForm.getByLabel('What was done (optional)').fill('Cleaned and inspected the gate');
+	await hoursForm.getByRole('button', { name: 'Add hours' }).click();
+	await expect(page.getByText('1.5 hours recorded; the job has 1.5 h in all.')).toBeVisible();
+	const partForm = page.getByRole('form', { name: 'Record a part' });
+	await partForm.getByLabel('Part').fill('Polishing stone 320 grit');
+	await partForm.getByLabel('Quantity').fill('2');
+	await partForm.getByRole('button', { name: 'Add part' }).click();
+	await expect(page.getByTestId('job-parts')).toContainText('Polishing stone 320 grit');
+	await expect(page.getByTestId('job-hours')).toContainText('1.5 h');
+
+	// Close the job: the die is ready again and its service task done.
 	await page
 		.getByLabel('Findings')
 		.fill('Tight local network at the gate, longest crack about 3 mm');
 	await page.getByLabel('Work done').fill('Inspected, photographed, light polish');
-	await page.getByLabel('Hours worked').fill('1.5');
+	// 1.5 h recorded above, 0.5 h more at close: 2 h in all.
+	await page.getByLabel('Further hours (not yet recorded)').fill('0.5');
 	await page.getByLabel('Summary for the owner').fill('Surface inspected; die back in service.');
 	await page.getByRole('button', { name: 'Close job as done' }).click();
 	await expect(page.getByRole('heading', { name: 'Closed' })).toBeVisible();
+	await expect(page.getByTestId('job-hours')).toContainText('2 h');
 	await expect(page.getByText('Ready', { exact: true })).toBeVisible();
 	const taskLine = page.getByRole('row').filter({ hasText: 'Surface inspection' });
 	await expect(taskLine.getByText(/Done by this job at [\d,]+ shots/)).toBeVisible();

@@ -4,6 +4,7 @@ import { createJimp } from '@jimp/core';
 import jpeg from '@jimp/js-jpeg';
 import png from '@jimp/js-png';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { decodeShrink } from '../../src/lib/server/photos/image-core.js';
 import {
 	MAX_PHOTO_BYTES,
 	PhotoError,
@@ -225,6 +226,53 @@ describe('processImage', () => {
 		expect(red.b).toBeLessThan(60);
 		expect(blue.b).toBeGreaterThan(200);
 		expect(blue.r).toBeLessThan(60);
+	});
+
+	it('decodes a 12 MP JPEG at half size in the DCT domain, turned upright, without EXIF', async () => {
+		// 4000 × 3000, blue with a red block over the left third of the top half, EXIF 6 (the
+		// phone held upright). By hand: 4000 / 2 = 2000 and 3000 / 2 = 1500 (≥ 1920 on the long
+		// side, so half size is allowed; a quarter, 1000, is not); turned 90° clockwise that is
+		// 1500 × 2000, and the red block (stored x < 1333, y < 1500) lands top right:
+		// upright x ≥ 750, y < 667. Thumbnail: 400 / 2000 × 1500 = 300 by 400.
+		const width = 4000;
+		const height = 3000;
+		const data = Buffer.alloc(width * height * 4);
+		for (let y = 0; y < height; y++) {
+			for (let x = 0; x < width; x++) {
+				const i = (y * width + x) * 4;
+				const red = x < width / 3 && y < height / 2;
+				data[i] = red ? 255 : 0;
+				data[i + 2] = red ? 0 : 255;
+				data[i + 3] = 255;
+			}
+		}
+		const stored = await new Jimp({ data, width, height }).getBuffer('image/jpeg', {
+			quality: 90
+		});
+		const result = await processImage(withExifOrientation(stored, 6));
+		expect([result.width, result.height]).toEqual([1500, 2000]);
+		expect([result.originalWidth, result.originalHeight]).toEqual([4000, 3000]);
+		expect(hasExif(result.full)).toBe(false);
+		const full = await Jimp.fromBuffer(result.full);
+		expect([full.width, full.height]).toEqual([1500, 2000]);
+		const red = rgbAt(full, 1125, 333);
+		const blue = rgbAt(full, 375, 333);
+		expect(red.r).toBeGreaterThan(200);
+		expect(red.b).toBeLessThan(60);
+		expect(blue.b).toBeGreaterThan(200);
+		expect(blue.r).toBeLessThan(60);
+		const thumb = await Jimp.fromBuffer(result.thumb);
+		expect([thumb.width, thumb.height]).toEqual([300, 400]);
+	});
+
+	it('picks the decode scale that keeps the long side at least 1920 px', () => {
+		// By hand: ceil(long side / factor) must stay ≥ 1920; factors are 1, 2, 4, 8.
+		expect(decodeShrink({ width: 3000, height: 2000 })).toBe(1); // 1500 < 1920
+		expect(decodeShrink({ width: 3838, height: 2000 })).toBe(1); // 1919 < 1920
+		expect(decodeShrink({ width: 3839, height: 2000 })).toBe(2); // ceil(1919.5) = 1920
+		expect(decodeShrink({ width: 3000, height: 4000 })).toBe(2); // portrait: 2000
+		expect(decodeShrink({ width: 8000, height: 5000 })).toBe(4); // 2000; an eighth is 1000
+		expect(decodeShrink({ width: 2560, height: 1920 })).toBe(1); // a phone's downscaled photo
 	});
 
 	describe('refuses', () => {

@@ -72,8 +72,9 @@ export const closeJobSchema = z
 			.trim()
 			.min(3, 'Record the work done.')
 			.max(4000, 'Keep it under 4000 characters.'),
-		hours: decimalNumber({
-			required: 'Enter the hours worked, e.g. 2.5.',
+		// Hours not yet recorded on the job; added to those recorded while it was open. Required
+		// (by closeJob) only when none were recorded.
+		hours: nullableDecimalNumber({
 			min: [0, 'Hours cannot be negative.'],
 			max: [500, 'More than 500 hours on one job is not plausible; split it.']
 		}),
@@ -87,6 +88,38 @@ export const closeJobSchema = z
 		message: 'Write the summary the owner will see, or untick “share with the owner”.'
 	});
 export type CloseJobForm = z.infer<typeof closeJobSchema>;
+
+/** Hours worked on an open job, recorded as they are worked (any number of entries). */
+export const workEntrySchema = z.object({
+	hours: decimalNumber({
+		required: 'Enter the hours worked, e.g. 1.5.',
+		gt: [0, 'Enter more than 0 hours.'],
+		max: [24, 'One entry covers at most 24 hours; add another for more.']
+	}),
+	note: optionalText(500)
+});
+export type WorkEntryForm = z.infer<typeof workEntrySchema>;
+
+/** A zone of the die repaired by an open job (its crack series restarts after the job). */
+export const jobRepairSchema = z.object({
+	zoneId: wholeNumber({ required: 'Choose the zone.', min: [1, 'Choose the zone.'] }),
+	kind: z.enum(['weld', 'insert_change', 'remachining'], { error: 'Choose what was done.' })
+});
+
+/** A part used on an open job. */
+export const partUsedSchema = z.object({
+	part: z
+		.string()
+		.trim()
+		.min(2, 'Name the part, e.g. “ejector pin 8 × 250”.')
+		.max(120, 'Keep it under 120 characters.'),
+	quantity: decimalNumber({
+		required: 'Enter how many, e.g. 4.',
+		gt: [0, 'Enter a quantity above 0.'],
+		max: [10_000, 'More than 10 000 of one part is not plausible.']
+	})
+});
+export type PartUsedForm = z.infer<typeof partUsedSchema>;
 
 export const cancelJobSchema = z.object({
 	reason: z
@@ -253,6 +286,11 @@ export const voidRecordSchema = z.object({
 	reason: voidReason
 });
 export type VoidRecordForm = z.infer<typeof voidRecordSchema>;
+
+/** Voiding a work entry or a part used on a job (toolroom lead). */
+export const voidJobEntrySchema = voidRecordSchema.extend({
+	entry: z.enum(['work', 'part'], { error: 'Choose the entry.' })
+});
 
 /** Correcting a cooling check: the right reading and why the first one was wrong. */
 export const correctCheckSchema = coolingCheckSchema.omit({ circuitId: true }).extend({

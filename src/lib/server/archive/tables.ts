@@ -103,6 +103,17 @@ export const ARCHIVE_TABLES: ArchiveTable[] = [
 		about: 'Service tasks a job carried out, with the die total when done.'
 	},
 	{
+		table: 'job_work_entries',
+		file: 'job_work_entries.csv',
+		about:
+			'Hours worked on toolroom jobs, entry by entry (a job’s hours are the sum of those not voided).'
+	},
+	{
+		table: 'job_parts_used',
+		file: 'job_parts_used.csv',
+		about: 'Parts used on toolroom jobs: part and quantity, with voids.'
+	},
+	{
 		table: 'surface_inspections',
 		file: 'inspections.csv',
 		about:

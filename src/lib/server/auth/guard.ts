@@ -7,13 +7,25 @@ export type SignedInUser = NonNullable<App.Locals['user']>;
 const PASSWORD_CHANGE_PATHS = ['/account', '/sign-out'];
 
 /**
+ * Where sign-in sends the user back to: the page they were on. A form action's address
+ * (`/dies/D-0136/surface?/inspect`) names the action, not a page, so the action goes and the
+ * page's own query stays.
+ */
+export function returnAddress(url: URL): string {
+	const query = new URLSearchParams(url.search);
+	for (const key of [...query.keys()]) if (key.startsWith('/')) query.delete(key);
+	const search = query.toString();
+	return url.pathname + (search ? `?${search}` : '');
+}
+
+/**
  * The one role check for pages and form actions. Signed-out visitors go to sign-in (coming back
  * afterwards); a signed-in user without the role gets a 403 that names the roles allowed.
  */
 export function requireRole(event: RequestEvent, ...roles: RoleName[]): SignedInUser {
 	const user = event.locals.user;
 	if (!user) {
-		const back = event.url.pathname + event.url.search;
+		const back = returnAddress(event.url);
 		const ended = event.locals.sessionEnded ? '&ended=1' : '';
 		redirect(303, `/sign-in?redirectTo=${encodeURIComponent(back)}${ended}`);
 	}

@@ -138,6 +138,36 @@ export interface JobRepairsTable {
 	kind: 'weld' | 'insert_change' | 'remachining';
 }
 
+/**
+ * Hours worked on a job, recorded at any time while it is open (and at close). The job's
+ * `hours` is the kept sum of its standing (not voided) entries.
+ */
+export interface JobWorkEntriesTable {
+	id: Generated<number>;
+	job_id: number;
+	hours: number;
+	note: string | null;
+	recorded_by: string | null;
+	recorded_at: string;
+	/** Voided by the toolroom lead (with a reason): kept for history, left out of the sum. */
+	voided_at: string | null;
+	voided_by: string | null;
+	void_reason: string | null;
+}
+
+/** A part used on a job (an ejector pin, a core insert …), recorded while the job is open. */
+export interface JobPartsUsedTable {
+	id: Generated<number>;
+	job_id: number;
+	part: string;
+	quantity: number;
+	recorded_by: string | null;
+	recorded_at: string;
+	voided_at: string | null;
+	voided_by: string | null;
+	void_reason: string | null;
+}
+
 export interface CoolingCircuitsTable {
 	id: Generated<number>;
 	die_id: number;
@@ -190,6 +220,8 @@ export interface ToolroomTables {
 	cooling_checks: CoolingChecksTable;
 	die_zones: DieZonesTable;
 	job_repairs: JobRepairsTable;
+	job_work_entries: JobWorkEntriesTable;
+	job_parts_used: JobPartsUsedTable;
 }
 
 export type ToolroomJob = Selectable<ToolroomJobsTable>;

@@ -17,6 +17,11 @@ export const MAX_PHOTO_BYTES = 20 * 1024 * 1024;
 export const MAX_PHOTO_PIXELS = 40_000_000;
 /** Long side of the stored full-size JPEG, in pixels; smaller photos are never enlarged. */
 export const FULL_LONG_SIDE = 2560;
+/**
+ * A JPEG is decoded at 1/2, 1/4 or 1/8 of its size only while its long side stays at least this
+ * (px; 1920 is the long side of a Full HD screen): see decodeShrink.
+ */
+export const FULL_DECODE_MIN_LONG_SIDE = 1920;
 /** Long side of the thumbnail JPEG, in pixels. */
 export const THUMB_LONG_SIDE = 400;
 
@@ -314,6 +319,25 @@ function fitWithin(width, height, longSide) {
 }
 
 /**
+ * The factor (1, 2, 4 or 8) a large JPEG is decoded smaller by, in the DCT domain: the largest
+ * that still leaves the long side at least FULL_DECODE_MIN_LONG_SIDE. Decoding 12 MP at full
+ * size and resampling it was what kept the full-size upload path slow; a 4000 × 3000 photo is
+ * decoded at 2000 × 1500 and stored at that size (still ≤ FULL_LONG_SIDE). Photos that phones
+ * downscale first (≤ 2560 px) are decoded at full size.
+ * @param {{ width: number, height: number }} stored the size in the file
+ * @returns {number}
+ */
+export function decodeShrink(stored) {
+	const longSide = Math.max(stored.width, stored.height);
+	let shrink = 1;
+	for (const next of [2, 4, 8]) {
+		if (Math.ceil(longSide / next) < FULL_DECODE_MIN_LONG_SIDE) break;
+		shrink = next;
+	}
+	return shrink;
+}
+
+/**
  * Shrinks by the largest whole factor that keeps the image at least `target` in both directions,
  * averaging each k × k block of pixels (a box filter: exact for such a factor, and one pass in
  * plain loops). Jimp's resize, much slower per source pixel, then only does the remaining
@@ -378,19 +402,24 @@ export function createImageProcessor(deps) {
 	}
 
 	/**
-	 * Decodes a JPEG in full (mozjpeg in WebAssembly) and checks it against its header.
+	 * Decodes a JPEG at 1/`shrink` of its size (libvips/mozjpeg in WebAssembly, scaled in the DCT
+	 * domain) and checks the result against its header.
 	 * @param {Buffer} buf
 	 * @param {ImageHeader} header
+	 * @param {number} shrink 1, 2, 4 or 8
 	 * @returns {Promise<Bitmap>}
 	 */
-	async function decodeJpeg(buf, header) {
+	async function decodeJpeg(buf, header, shrink) {
 		let decoded;
 		try {
-			decoded = await deps.jpeg.decode(buf);
+			decoded = await deps.jpeg.decode(buf, { shrink });
 		} catch (error) {
 			throw damaged('jpeg', error);
 		}
-		if (decoded.width !== header.width || decoded.height !== header.height) {
+		if (
+			decoded.width !== Math.ceil(header.width / shrink) ||
+			decoded.height !== Math.ceil(header.height / shrink)
+		) {
 			throw new PhotoError('corrupt', 'The image data does not match its header.');
 		}
 		return decoded;
@@ -432,21 +461,20 @@ export function createImageProcessor(deps) {
 	return async function processImage(input) {
 		const buf = asBuffer(input);
 		const header = inspectImage(buf);
-		// Sizes are worked out once, from the header, for the upright image.
-		const turned = header.orientation >= 5;
-		const uprightW = turned ? header.height : header.width;
-		const uprightH = turned ? header.width : header.height;
-		const fullSize = fitWithin(uprightW, uprightH, FULL_LONG_SIDE);
-		const thumbSize = fitWithin(uprightW, uprightH, THUMB_LONG_SIDE);
 		let bitmap;
 		if (header.type === 'jpeg') {
-			const decoded = await decodeJpeg(buf, header);
+			const decoded = await decodeJpeg(buf, header, decodeShrink(header));
+			const target = fitWithin(decoded.width, decoded.height, FULL_LONG_SIDE);
 			// Turned upright after the first shrink, so fewer pixels are moved.
-			const storedSize = fullSize && turned ? { w: fullSize.h, h: fullSize.w } : fullSize;
-			bitmap = applyOrientation(preShrink(decoded, storedSize), header.orientation);
+			bitmap = applyOrientation(preShrink(decoded, target), header.orientation);
 		} else {
 			bitmap = decodePng(buf, header);
 		}
+		// Sizes are worked out for the upright image.
+		const fullSize = fitWithin(bitmap.width, bitmap.height, FULL_LONG_SIDE);
+		const uprightW = fullSize ? fullSize.w : bitmap.width;
+		const uprightH = fullSize ? fullSize.h : bitmap.height;
+		const thumbSize = fitWithin(uprightW, uprightH, THUMB_LONG_SIDE);
 		const full = await encodeAt(bitmap, fullSize);
 		// Read before the thumbnail is made: jimp resizes the bitmap object it is given in place.
 		const { width, height } = full.bitmap;

@@ -1,47 +1,21 @@
 // @ts-check
 /**
- * The JPEG format for jimp: mozjpeg compiled to WebAssembly (@jsquash/jpeg), so decoding and
- * encoding run at near-native speed without a native addon. Jimp stays the image API: it holds
- * the bitmap, resizes, and calls this format's encode from getBuffer('image/jpeg'). The
- * pure-JavaScript codec (jpeg-js) took ~40× the time of libjpeg-turbo's own command-line tools
- * on a 12 MP photo.
+ * The JPEG format for jimp: libvips compiled to WebAssembly (wasm-vips, its JPEG library is
+ * mozjpeg with libjpeg-turbo's SIMD paths), used only as a codec. Jimp stays the image API: it
+ * holds the bitmap, resizes, and calls this format's encode from getBuffer('image/jpeg').
  *
- * Plain JavaScript that imports only Node built-ins: like image-core.js it runs inside photo
- * worker threads loaded from a data: URL, which cannot resolve bare package names, so the caller
- * hands in the absolute URL of @jsquash/jpeg (import.meta.resolve('@jsquash/jpeg')). The .wasm
- * files are read from beside it and compiled here: the Emscripten glue would otherwise fetch
- * them, which Node cannot do from a file: URL.
- */
-import { readFile } from 'node:fs/promises';
-
-/**
- * Fast, plain output: baseline, one scan, 4:2:0 chroma. The slow mozjpeg extras are off as far
- * as the build allows: no progressive scans, no multi-pass or EOB/table trellis search, one
- * trellis loop. Trellis quantisation itself cannot be switched off: the codec's encode() has no
- * option for JBOOLEAN_TRELLIS_QUANT, which mozjpeg's jpeg_set_defaults turns on.
+ * Why this codec: it decodes a JPEG at 1/2, 1/4 or 1/8 of its size in the DCT domain
+ * (libjpeg's scale_num/scale_denom, "shrink-on-load"), so a large photo is never expanded to
+ * full size in memory; and its encoder runs without mozjpeg's trellis search. The earlier
+ * codec (@jsquash/jpeg) could do neither: it always decoded at full size and could not switch
+ * trellis quantisation off, which kept the full-size upload path at ~15× libjpeg-turbo's own
+ * command-line tools (`npm run bench`).
  *
- * optimize_coding stays on, against intuition: with it off (the standard Huffman tables) this
- * build writes 4:2:0 files that libjpeg itself rejects ("Corrupt JPEG data: bad Huffman code"),
- * and with it on encoding was also faster (≈ 320 ms against 410 ms for 2560 × 1920) and the
- * files smaller.
+ * Plain JavaScript that imports nothing: like image-core.js it runs inside photo worker threads
+ * loaded from a data: URL, which cannot resolve bare package names, so the caller hands in the
+ * absolute URL of wasm-vips (import.meta.resolve('wasm-vips')); the package finds its .wasm
+ * beside its own entry file.
  */
-const ENCODE_OPTIONS = {
-	baseline: true,
-	arithmetic: false,
-	progressive: false,
-	optimize_coding: true,
-	smoothing: 0,
-	color_space: 3, // YCbCr
-	quant_table: 3, // mozjpeg's default table
-	trellis_multipass: false,
-	trellis_opt_zero: false,
-	trellis_opt_table: false,
-	trellis_loops: 1,
-	auto_subsample: false,
-	chroma_subsample: 2, // 2 × 2: 4:2:0
-	separate_chroma_quality: false,
-	chroma_quality: 85
-};
 
 /**
  * @typedef {object} RgbaBitmap
@@ -50,91 +24,75 @@ const ENCODE_OPTIONS = {
  * @property {number} height
  */
 
-/**
- * One of the package's decode.js / encode.js modules.
- * @typedef {{
- *   init: (module: WebAssembly.Module, options?: object) => Promise<void>,
- *   default: (input: any, options?: object) => Promise<any>
- * }} JsquashCodec
- */
+/** Scale factors libjpeg can decode at directly (1/1, 1/2, 1/4, 1/8). */
+export const DECODE_SHRINKS = /** @type {const} */ ([1, 2, 4, 8]);
 
 /**
- * Loads @jsquash/jpeg from its absolute URL and compiles its two WebAssembly modules.
- * @param {string} entryUrl URL of the package's entry file (its index.js)
+ * Loads wasm-vips from its absolute URL, without the optional HEIF / JPEG XL / SVG modules, and
+ * with one libvips thread: the photo pool already gives each worker thread one photo at a time.
+ * @param {string} entryUrl URL of the package's Node entry (vips-node.mjs)
  */
 export async function loadWasmJpeg(entryUrl) {
-	const base = new URL('./', entryUrl);
-	const [decoder, encoder, decoderWasm, encoderWasm] = await Promise.all([
-		/** @type {Promise<JsquashCodec>} */ (import(new URL('decode.js', base).href)),
-		/** @type {Promise<JsquashCodec>} */ (import(new URL('encode.js', base).href)),
-		readFile(new URL('codec/dec/mozjpeg_dec.wasm', base)).then((b) => WebAssembly.compile(b)),
-		readFile(new URL('codec/enc/mozjpeg_enc.wasm', base)).then((b) => WebAssembly.compile(b))
-	]);
-	return createWasmJpeg({ decoder, encoder, decoderWasm, encoderWasm });
+	const { default: Vips } = await import(entryUrl);
+	const vips = await Vips({ dynamicLibraries: [], print: () => {}, printErr: () => {} });
+	vips.concurrency(1);
+	// No operation cache: every upload is a different file, and the cache would only hold memory.
+	vips.Cache.max(0);
+	return createWasmJpeg(vips);
 }
 
 /**
- * @param {{ decoder: JsquashCodec, encoder: JsquashCodec,
- *   decoderWasm: WebAssembly.Module, encoderWasm: WebAssembly.Module }} parts
+ * @param {any} vips an initialised wasm-vips module
  */
-export function createWasmJpeg({ decoder, encoder, decoderWasm, encoderWasm }) {
-	/** libjpeg's warnings ("Corrupt JPEG data: …") arrive on stderr, i.e. printErr. */
-	/** @type {string[]} */
-	let messages = [];
-	const moduleOptions = {
-		printErr: (/** @type {string} */ line) => messages.push(String(line)),
-		print: () => {}
-	};
-	let decoderReady = decoder.init(decoderWasm, moduleOptions);
-	let encoderReady = encoder.init(encoderWasm, moduleOptions);
-
-	// The codecs are synchronous inside WebAssembly, but their JS wrappers await: one call at a
-	// time per thread, so the messages collected belong to the call that reads them.
-	/** @type {Promise<unknown>} */
-	let queue = Promise.resolve();
+export function createWasmJpeg(vips) {
 	/**
-	 * @template T
-	 * @param {() => Promise<T>} task
-	 * @returns {Promise<T>}
+	 * @param {unknown} error
 	 */
-	function serial(task) {
-		const run = queue.then(task, task);
-		queue = run.catch(() => {});
-		return run;
+	function reasonOf(error) {
+		const message = error instanceof Error ? error.message : String(error);
+		// libvips prefixes its messages with the operation ("VipsJpeg: "); keep the first line.
+		return message.split('\n').find((line) => line.trim()) ?? message;
 	}
 
 	/**
-	 * Decodes to RGBA at full size. A file damaged anywhere is refused (any libjpeg warning is an
-	 * error), not shown half grey. After a failure the decoder is instantiated afresh: libjpeg
-	 * leaves it by exit(), which frees nothing it had allocated.
+	 * Decodes to RGBA, at 1/`shrink` of the stored size when asked (1, 2, 4 or 8; the result is
+	 * ceil(width / shrink) × ceil(height / shrink)). A file damaged anywhere is refused (any
+	 * libjpeg warning is an error), not shown half grey. EXIF orientation is left to the caller.
 	 * @param {Buffer | Uint8Array} data
+	 * @param {{ shrink?: number }} [options]
 	 * @returns {Promise<RgbaBitmap>}
 	 */
-	function decode(data) {
-		return serial(async () => {
-			await decoderReady;
-			messages = [];
-			let image;
-			try {
-				image = await decoder.default(data, { preserveOrientation: false });
-			} catch (error) {
-				decoderReady = decoder.init(decoderWasm, moduleOptions);
-				const reason = messages[0] ?? (error instanceof Error ? error.message : String(error));
-				throw new Error(reason, { cause: error });
-			}
-			if (messages.length > 0) throw new Error(messages[0]);
-			const pixels = /** @type {Uint8ClampedArray} */ (image.data);
+	async function decode(data, { shrink = 1 } = {}) {
+		if (!DECODE_SHRINKS.includes(/** @type {1} */ (shrink))) {
+			throw new Error(`A JPEG can only be decoded at 1/1, 1/2, 1/4 or 1/8, not 1/${shrink}.`);
+		}
+		/** @type {any[]} */
+		const made = [];
+		const keep = (/** @type {any} */ image) => (made.push(image), image);
+		try {
+			let image = keep(
+				vips.Image.jpegloadBuffer(data, { shrink, autorotate: false, fail_on: 'warning' })
+			);
+			// CMYK and greyscale files come out as sRGB like any other.
+			if (image.interpretation !== 'srgb') image = keep(image.colourspace('srgb'));
+			if (image.bands === 3) image = keep(image.bandjoin(255));
+			if (image.bands !== 4) throw new Error(`unexpected ${image.bands} colour channels`);
+			const pixels = /** @type {Uint8Array} */ (image.writeToMemory());
 			return {
 				data: Buffer.from(pixels.buffer, pixels.byteOffset, pixels.byteLength),
 				width: image.width,
 				height: image.height
 			};
-		});
+		} catch (error) {
+			throw new Error(reasonOf(error), { cause: error });
+		} finally {
+			for (const image of made) image.delete();
+		}
 	}
 
 	/**
-	 * JPEG has no alpha and the encoder ignores it: transparent areas (PNG) are put onto white
-	 * first, in a copy, and only when there are any.
+	 * JPEG has no alpha: transparent areas (PNG) are put onto white first, in a copy, and only
+	 * when there are any.
 	 * @param {{ data: Buffer | Uint8Array, width: number, height: number }} bitmap
 	 */
 	function flattenOntoWhite(bitmap) {
@@ -157,33 +115,37 @@ export function createWasmJpeg({ decoder, encoder, decoderWasm, encoderWasm }) {
 	}
 
 	/**
-	 * Writes no metadata: mozjpeg's encoder is handed pixels only.
+	 * Baseline JPEG, 4:2:0 chroma, optimised Huffman tables, no trellis search, and no metadata
+	 * (the encoder is handed pixels only, and told to keep nothing).
 	 * @param {{ data: Buffer | Uint8Array, width: number, height: number }} bitmap RGBA
 	 * @param {{ quality?: number }} [options]
 	 * @returns {Promise<Buffer>}
 	 */
-	function encode(bitmap, { quality = 85 } = {}) {
+	async function encode(bitmap, { quality = 85 } = {}) {
 		const data = flattenOntoWhite(bitmap);
-		return serial(async () => {
-			await encoderReady;
-			messages = [];
-			/** @type {ArrayBuffer | undefined} */
-			let out;
-			try {
-				out = await encoder.default(
-					{ data, width: bitmap.width, height: bitmap.height },
-					{ ...ENCODE_OPTIONS, quality, chroma_quality: quality }
-				);
-			} catch (error) {
-				encoderReady = encoder.init(encoderWasm, moduleOptions);
-				throw error;
-			}
-			// On a libjpeg error the codec returns the message, a string, whose .buffer is undefined.
-			if (!(out instanceof ArrayBuffer)) {
-				throw new Error(`JPEG encoding failed${messages[0] ? ` (${messages[0]})` : ''}.`);
-			}
-			return Buffer.from(out);
-		});
+		const length = bitmap.width * bitmap.height * 4;
+		/** @type {any[]} */
+		const made = [];
+		const keep = (/** @type {any} */ image) => (made.push(image), image);
+		try {
+			const rgba = keep(
+				vips.Image.newFromMemory(data.subarray(0, length), bitmap.width, bitmap.height, 4, 'uchar')
+			);
+			const rgb = keep(rgba.extractBand(0, { n: 3 }));
+			const out = rgb.jpegsaveBuffer({
+				Q: quality,
+				optimize_coding: true,
+				interlace: false,
+				trellis_quant: false,
+				subsample_mode: 'on',
+				keep: 'none'
+			});
+			return Buffer.from(out.buffer, out.byteOffset, out.byteLength);
+		} catch (error) {
+			throw new Error(`JPEG encoding failed (${reasonOf(error)}).`, { cause: error });
+		} finally {
+			for (const image of made) image.delete();
+		}
 	}
 
 	/** The jimp format plugin (createJimp({ formats: [jpegFormat] })). */
@@ -192,7 +154,7 @@ export function createWasmJpeg({ decoder, encoder, decoderWasm, encoderWasm }) {
 		// Alpha is handled in encode; jimp would otherwise composite every pixel itself first.
 		hasAlpha: true,
 		encode,
-		decode
+		decode: (/** @type {Buffer} */ data) => decode(data)
 	});
 	return { jpegFormat, decode, encode };
 }

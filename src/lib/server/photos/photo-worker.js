@@ -3,7 +3,7 @@
  * Task module of a photo worker thread (tinypool calls the default export once per photo).
  * Never imported by the app: worker-pool.ts hands tinypool this file's text as a data: URL,
  * with the line marked below replaced by the absolute URLs of image-core.js (another data:
- * URL), jpeg-codec.js, @jsquash/jpeg and the jimp packages — a data: module cannot resolve bare package
+ * URL), jpeg-codec.js, wasm-vips and the jimp packages — a data: module cannot resolve bare package
  * names or relative paths itself. See worker-pool.ts for why.
  */
 
@@ -11,7 +11,7 @@
  * @typedef {object} PhotoModuleUrls
  * @property {string} core image-core.js
  * @property {string} codec jpeg-codec.js
- * @property {string} jsquashJpeg entry file of the jSquash JPEG package (its .wasm files lie beside)
+ * @property {string} vips Node entry file of wasm-vips (its .wasm file lies beside)
  * @property {string} jimpCore
  * @property {string} png the jimp PNG format
  * @property {string} resize the jimp resize plugin
@@ -40,7 +40,7 @@ const [core, codec, jimpCore, png, resize] = await Promise.all([
 
 const processImage = core.createImageProcessor({
 	createJimp: jimpCore.createJimp,
-	jpeg: await codec.loadWasmJpeg(urls.jsquashJpeg),
+	jpeg: await codec.loadWasmJpeg(urls.vips),
 	png: png.default,
 	resizeMethods: resize.methods
 });

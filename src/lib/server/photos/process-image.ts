@@ -19,7 +19,7 @@ let processInThisThread: Promise<ReturnType<typeof createImageProcessor>> | unde
 
 /** Compiles the WebAssembly JPEG codec on first use (photo workers compile their own). */
 function getProcessor() {
-	processInThisThread ??= loadWasmJpeg(import.meta.resolve('@jsquash/jpeg')).then((jpeg) =>
+	processInThisThread ??= loadWasmJpeg(import.meta.resolve('wasm-vips')).then((jpeg) =>
 		createImageProcessor({ createJimp, jpeg, png, resizeMethods })
 	);
 	return processInThisThread;

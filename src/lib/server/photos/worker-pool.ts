@@ -15,9 +15,9 @@
  *    inlines the files as strings; under tsx, which has no import.meta.glob, they are read
  *    from disk next to this file (where the sources are, as tsx only runs from the source tree);
  *  - tinypool starts photo-worker.js from a data: URL, with the URLs of image-core.js and
- *    jpeg-codec.js (data: URLs too) and of @jsquash/jpeg and the jimp packages (absolute,
+ *    jpeg-codec.js (data: URLs too) and of wasm-vips and the jimp packages (absolute,
  *    resolved here with import.meta.resolve) written into its text; each worker compiles the
- *    codec's .wasm files, found beside @jsquash/jpeg's entry, once when it starts.
+ *    codec's .wasm file, found beside wasm-vips's entry, once when it starts.
  * The main thread runs the same image-core.js via process-image.ts, so both paths agree.
  */
 import { readFileSync } from 'node:fs';
@@ -74,7 +74,7 @@ function getWorkerUrl(): string {
 		const urls: PhotoModuleUrls = {
 			core: toDataUrl(sources['./image-core.js']),
 			codec: toDataUrl(sources['./jpeg-codec.js']),
-			jsquashJpeg: import.meta.resolve('@jsquash/jpeg'),
+			vips: import.meta.resolve('wasm-vips'),
 			jimpCore: import.meta.resolve('@jimp/core'),
 			png: import.meta.resolve('@jimp/js-png'),
 			resize: import.meta.resolve('@jimp/plugin-resize')

@@ -6,8 +6,10 @@ import { viewServiceTask } from '../dies/service-summary';
 import { MAX_PHOTO_BYTES, MAX_PHOTO_PIXELS } from '../photos/process-image';
 import { nowIso } from '../time';
 import { canLeadToolroom, canWorkToolroom } from './access';
+import { listJobEntries } from './job-entries';
 import { isActiveJob, JOB_MOVES, jobAgeDays, listAssignees, type JobDetail } from './jobs';
 import { listJobPhotos } from './photos';
+import { listDieZones, listJobRepairs } from './zones';
 
 /** Upload limits the photo form states (the server enforces them in any case). */
 export const PHOTO_LIMITS = {
@@ -59,13 +61,19 @@ export async function listJobRecords(db: DB, jobId: number) {
 }
 
 export async function getJobPage(db: DB, job: JobDetail, role: RoleName, asOf = nowIso()) {
-	const [photos, assignees, records] = await Promise.all([
+	const [photos, assignees, records, entries, zones, repairs] = await Promise.all([
 		listJobPhotos(db, job.id),
 		listAssignees(db),
-		listJobRecords(db, job.id)
+		listJobRecords(db, job.id),
+		listJobEntries(db, job.id),
+		listDieZones(db, job.die_id),
+		listJobRepairs(db, job.id)
 	]);
 	return {
 		...records,
+		entries,
+		zones,
+		repairs,
 		job,
 		tasks: job.tasks.map((t) => ({
 			...viewServiceTask(

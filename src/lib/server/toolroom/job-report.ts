@@ -5,11 +5,12 @@
  * fonts, like the owner statement (statement-pdf.ts), whose font setup and text filter it uses.
  */
 import pdfmake from 'pdfmake';
-import { formatShots } from '../../format';
+import { formatDate, formatShots } from '../../format';
 import { HALF_LABELS, JOB_HALF_LABELS, JOB_STATUS_LABELS, jobKindLabel } from '../../labels';
 import type { DB } from '../db/connect';
 import { toWinAnsi } from '../owner/statement-pdf';
 import { readPhotoFile } from '../photos/store';
+import { listJobEntries } from './job-entries';
 import { listJobRecords } from './job-page';
 import type { JobDetail } from './jobs';
 
@@ -26,6 +27,8 @@ export interface JobReportPhoto {
 export interface JobReport {
 	job: JobDetail;
 	records: Awaited<ReturnType<typeof listJobRecords>>;
+	/** Work entries and parts used; voided ones are left out of the report. */
+	entries: Awaited<ReturnType<typeof listJobEntries>>;
 	photos: JobReportPhoto[];
 }
 
@@ -34,8 +37,9 @@ export interface JobReport {
  * fill in (the earliest as "before", the latest as "after") only when none were tagged.
  */
 export async function getJobReport(db: DB, job: JobDetail, uploadDir: string): Promise<JobReport> {
-	const [records, rows] = await Promise.all([
+	const [records, allEntries, rows] = await Promise.all([
 		listJobRecords(db, job.id),
+		listJobEntries(db, job.id),
 		db
 			.selectFrom('photos')
 			.select(['thumb_file as thumbFile', 'stage', 'caption'])
@@ -59,7 +63,11 @@ export async function getJobReport(db: DB, job: JobDetail, uploadDir: string): P
 			if (jpeg) photos.push({ stage, caption: row.caption, jpeg });
 		}
 	}
-	return { job, records, photos };
+	const entries = {
+		work: allEntries.work.filter((w) => !w.voidedAt),
+		parts: allEntries.parts.filter((p) => !p.voidedAt)
+	};
+	return { job, records, entries, photos };
 }
 
 const t = (text: string | null | undefined) => toWinAnsi(text ?? '');
@@ -88,7 +96,7 @@ function photoColumn(report: JobReport, stage: 'before' | 'after') {
 
 /** The report as PDF bytes; `plantName` heads it. */
 export async function renderJobReportPdf(report: JobReport, plantName: string): Promise<Buffer> {
-	const { job, records } = report;
+	const { job, records, entries } = report;
 	const facts: [string, string][] = [
 		['Die', `${job.dieNumber} · ${job.partName}`],
 		['Owner', job.customerName],
@@ -105,8 +113,16 @@ export async function renderJobReportPdf(report: JobReport, plantName: string): 
 				: 'Not closed'
 		],
 		['Hours', job.hours === null ? '—' : `${job.hours} h`],
-		['Parts used', job.parts_used ?? '—']
+		[
+			'Parts used',
+			entries.parts.length ? entries.parts.map((p) => `${p.quantity} × ${p.part}`).join('; ') : '—'
+		],
+		['Other parts', job.parts_used ?? '—']
 	];
+	const workLines = entries.work.map(
+		(w) =>
+			`${formatDate(w.at)}: ${w.hours} h${w.note ? `, ${w.note}` : ''}${w.by ? ` (${w.by})` : ''}`
+	);
 	const recordLines = [
 		...records.inspections.map(
 			(s) =>
@@ -158,6 +174,9 @@ export async function renderJobReportPdf(report: JobReport, plantName: string): 
 			{ text: t(job.findings ?? 'Not recorded.') },
 			{ text: 'Work done', style: 'h2' },
 			{ text: t(job.work_done ?? 'Not recorded.') },
+			...(workLines.length
+				? [{ text: 'Hours recorded', style: 'h2' }, { ul: workLines.map((line) => t(line)) }]
+				: []),
 			...(recordLines.length
 				? [
 						{ text: 'Inspections and checks under this job', style: 'h2' },

@@ -14,6 +14,7 @@ import type { JobStatus } from '../db/schema-toolroom';
 import { sortWorstFirst, viewServiceTask } from '../dies/service-summary';
 import { nowIso } from '../time';
 import { canLeadToolroom, canWorkToolroom } from './access';
+import { insertWorkEntry, keepJobHours, sumStandingHours } from './job-entries';
 
 export interface Actor {
 	userId: string;
@@ -328,7 +329,7 @@ export async function listJobsForDie(db: DB, dieId: number) {
 		.execute();
 }
 
-async function loadActiveJob(trx: DB, number: string): Promise<ActiveJob | Refusal> {
+export async function loadActiveJob(trx: DB, number: string): Promise<ActiveJob | Refusal> {
 	const job = await findJobRow(trx, number);
 	if (!job) return { ok: false, status: 404, message: `There is no job ${number}.` };
 	if (!isActiveJob(job.status)) {
@@ -341,7 +342,7 @@ async function loadActiveJob(trx: DB, number: string): Promise<ActiveJob | Refus
 	return job;
 }
 type ActiveJob = NonNullable<Awaited<ReturnType<typeof findJobRow>>>;
-const isRefusal = (v: ActiveJob | Refusal): v is Refusal => 'ok' in v && v.ok === false;
+export const isRefusal = (v: ActiveJob | Refusal): v is Refusal => 'ok' in v && v.ok === false;
 
 /** Moves a job between open, in progress and waiting for parts. */
 export async function moveJob(
@@ -416,7 +417,8 @@ export async function assignJob(
 }
 
 /**
- * Closes a job as done: records findings, work, hours, parts and the owner summary; marks its
+ * Closes a job as done: records findings, work, parts and the owner summary, adds the hours typed
+ * at close (if any) to those recorded while the job was open, and keeps their sum; marks its
  * service tasks done at the die's current total; returns the die to `ready` when no other open
  * job holds it.
  */
@@ -432,6 +434,26 @@ export async function closeJob(
 	return db.transaction().execute(async (trx) => {
 		const job = await loadActiveJob(trx, input.number);
 		if (isRefusal(job)) return job;
+		// Hours typed at close join those recorded while the job was open; the job's hours are
+		// their sum. With none recorded, the close must give them.
+		if (form.hours === null && (await sumStandingHours(trx, job.id)) === null) {
+			return {
+				ok: false,
+				status: 400,
+				field: 'hours',
+				message: 'Enter the hours worked, e.g. 2.5: no hours are recorded on this job yet.'
+			} as const;
+		}
+		if (form.hours !== null) {
+			await insertWorkEntry(trx, {
+				jobId: job.id,
+				hours: form.hours,
+				note: 'Recorded when the job was closed',
+				actor,
+				at
+			});
+		}
+		const hours = await keepJobHours(trx, job.id, at);
 		const die = await trx
 			.selectFrom('dies')
 			.select(['total_shots'])
@@ -446,7 +468,7 @@ export async function closeJob(
 				die_shots_at_close: die.total_shots,
 				findings: form.findings,
 				work_done: form.workDone,
-				hours: form.hours,
+				hours,
 				parts_used: form.partsUsed,
 				billable_to_owner: form.billableToOwner ? 1 : 0,
 				owner_summary: form.ownerSummary,
@@ -492,7 +514,7 @@ export async function closeJob(
 				dieId: job.die_id,
 				detail: {
 					job: job.number,
-					hours: form.hours,
+					hours,
 					billable: form.billableToOwner,
 					shots: die.total_shots
 				}

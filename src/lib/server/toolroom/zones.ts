@@ -132,3 +132,15 @@ export async function listZoneRepairs(db: DB, dieId: number) {
 		.where('j.closed_at', 'is not', null)
 		.execute();
 }
+
+/** The zones a job repaired, with how, by half and zone name. */
+export async function listJobRepairs(db: DB, jobId: number) {
+	return db
+		.selectFrom('job_repairs as r')
+		.innerJoin('die_zones as z', 'z.id', 'r.zone_id')
+		.select(['r.id', 'r.kind', 'z.half', 'z.name as zone'])
+		.where('r.job_id', '=', jobId)
+		.orderBy('z.half')
+		.orderBy('z.name')
+		.execute();
+}

@@ -5,8 +5,12 @@ import {
 	assignJobSchema,
 	cancelJobSchema,
 	closeJobSchema,
+	jobRepairSchema,
 	jobStatusSchema,
+	partUsedSchema,
 	photoShareSchema,
+	voidJobEntrySchema,
+	workEntrySchema,
 	voidJobSchema,
 	photoStageSchema
 } from '$lib/schemas/toolroom';
@@ -16,8 +20,17 @@ import { selectedFiles } from '$lib/server/photos/store';
 import { getUploadDir } from '$lib/server/photos/upload-dir';
 import { TOOLROOM_LEADS, TOOLROOM_READERS, TOOLROOM_WORKERS } from '$lib/server/toolroom/access';
 import { voidJob } from '$lib/server/toolroom/job-void';
+import { recordPartUsed, recordWorkEntry, voidJobEntry } from '$lib/server/toolroom/job-entries';
 import { getJobPage } from '$lib/server/toolroom/job-page';
-import { assignJob, cancelJob, closeJob, getJob, moveJob } from '$lib/server/toolroom/jobs';
+import {
+	assignJob,
+	cancelJob,
+	closeJob,
+	getJob,
+	isActiveJob,
+	moveJob
+} from '$lib/server/toolroom/jobs';
+import { recordJobRepairs } from '$lib/server/toolroom/zones';
 import { setPhotoShared, uploadPhotos } from '$lib/server/toolroom/photos';
 import { announceJobClosed } from '$lib/server/toolroom/announce';
 import type { Actions, PageServerLoad } from './$types';
@@ -31,14 +44,18 @@ async function loadJob(number: string) {
 export const load: PageServerLoad = async (event) => {
 	const user = requireRole(event, ...TOOLROOM_READERS);
 	const job = await loadJob(event.params.job);
-	const [page, closeForm, cancelForm, assignForm, voidForm] = await Promise.all([
-		getJobPage(getDb(), job, user.role),
-		superValidate(zod4(closeJobSchema), { id: 'close' }),
-		superValidate(zod4(cancelJobSchema), { id: 'cancel' }),
-		superValidate({ assignedTo: job.assigned_to ?? '' }, zod4(assignJobSchema), { id: 'assign' }),
-		superValidate(zod4(voidJobSchema), { id: 'void' })
-	]);
-	return { ...page, closeForm, cancelForm, assignForm, voidForm };
+	const [page, closeForm, cancelForm, assignForm, voidForm, workForm, partForm] = await Promise.all(
+		[
+			getJobPage(getDb(), job, user.role),
+			superValidate(zod4(closeJobSchema), { id: 'close' }),
+			superValidate(zod4(cancelJobSchema), { id: 'cancel' }),
+			superValidate({ assignedTo: job.assigned_to ?? '' }, zod4(assignJobSchema), { id: 'assign' }),
+			superValidate(zod4(voidJobSchema), { id: 'void' }),
+			superValidate(zod4(workEntrySchema), { id: 'work' }),
+			superValidate(zod4(partUsedSchema), { id: 'part' })
+		]
+	);
+	return { ...page, closeForm, cancelForm, assignForm, voidForm, workForm, partForm };
 };
 
 export const actions: Actions = {
@@ -90,9 +107,94 @@ export const actions: Actions = {
 			form: form.data,
 			actor: { userId: user.id, role: user.role }
 		});
-		if (!result.ok) return message(form, result.message, { status: result.status });
+		if (!result.ok) {
+			if (result.field === 'hours') {
+				return setError(form, 'hours', result.message, { status: result.status });
+			}
+			return message(form, result.message, { status: result.status });
+		}
 		await announceJobClosed(getDb(), event.params.job);
 		redirect(303, `/jobs/${event.params.job.toUpperCase()}`);
+	},
+
+	work: async (event) => {
+		const user = requireRole(event, ...TOOLROOM_WORKERS);
+		const form = await superValidate(event.request, zod4(workEntrySchema), { id: 'work' });
+		if (!form.valid) return fail(400, { workForm: form });
+		const result = await recordWorkEntry(getDb(), {
+			number: event.params.job,
+			form: form.data,
+			actor: { userId: user.id, role: user.role }
+		});
+		if (!result.ok) return message(form, result.message, { status: result.status });
+		const h = form.data.hours;
+		return message(
+			form,
+			`${h} hour${h === 1 ? '' : 's'} recorded; the job has ${result.jobHours} h in all.`
+		);
+	},
+
+	part: async (event) => {
+		const user = requireRole(event, ...TOOLROOM_WORKERS);
+		const form = await superValidate(event.request, zod4(partUsedSchema), { id: 'part' });
+		if (!form.valid) return fail(400, { partForm: form });
+		const result = await recordPartUsed(getDb(), {
+			number: event.params.job,
+			form: form.data,
+			actor: { userId: user.id, role: user.role }
+		});
+		if (!result.ok) return message(form, result.message, { status: result.status });
+		return message(form, `Recorded: ${form.data.quantity} × ${form.data.part}.`);
+	},
+
+	repair: async (event) => {
+		const user = requireRole(event, ...TOOLROOM_WORKERS);
+		const job = await loadJob(event.params.job);
+		const parsed = jobRepairSchema.safeParse(Object.fromEntries(await event.request.formData()));
+		if (!parsed.success) {
+			return fail(400, { repair: { ok: false, message: parsed.error.issues[0].message } });
+		}
+		if (!isActiveJob(job.status)) {
+			const message = `${job.number} is no longer open; repairs are recorded while it is.`;
+			return fail(409, { repair: { ok: false, message } });
+		}
+		const result = await recordJobRepairs(
+			getDb(),
+			job.id,
+			[{ zoneId: parsed.data.zoneId, kind: parsed.data.kind }],
+			{ userId: user.id, role: user.role }
+		);
+		if (!result.ok) return fail(result.status, { repair: { ok: false, message: result.message } });
+		return {
+			repair: {
+				ok: true,
+				message: 'Repair recorded: the zone’s crack trend starts again when the job closes.'
+			}
+		};
+	},
+
+	voidEntry: async (event) => {
+		const user = requireRole(event, ...TOOLROOM_LEADS);
+		const parsed = voidJobEntrySchema.safeParse(Object.fromEntries(await event.request.formData()));
+		if (!parsed.success) {
+			return fail(400, { entryVoid: { ok: false, message: parsed.error.issues[0].message } });
+		}
+		const result = await voidJobEntry(getDb(), {
+			number: event.params.job,
+			entry: parsed.data.entry,
+			id: parsed.data.id,
+			reason: parsed.data.reason,
+			actor: { userId: user.id, role: user.role }
+		});
+		if (!result.ok) {
+			return fail(result.status, { entryVoid: { ok: false, message: result.message } });
+		}
+		return {
+			entryVoid: {
+				ok: true,
+				message: 'Entry voided: it stays on the job, struck through, and leaves the totals.'
+			}
+		};
 	},
 
 	cancel: async (event) => {
