@@ -18,6 +18,7 @@ import * as createImportTables from './2026_12_03_1701_create_import_tables';
 import * as createPressFeed from './2026_12_03_1800_create_press_feed';
 import * as scopeIdempotencyKeys from './2026_12_03_1900_scope_idempotency_keys';
 import * as addReplacementLeadTime from './2026_12_03_1950_add_replacement_lead_time';
+import * as addPlantIdentity from './2026_12_04_0101_add_plant_identity';
 
 // Every migration is listed here by name so the same list works in the built app, in Vitest and
 // in tsx scripts (none of which share a way to glob the folder). Add new ones at the end.
@@ -40,5 +41,6 @@ export const migrations: Record<string, Migration> = {
 	'2026_12_03_1701_create_import_tables': createImportTables,
 	'2026_12_03_1800_create_press_feed': createPressFeed,
 	'2026_12_03_1900_scope_idempotency_keys': scopeIdempotencyKeys,
-	'2026_12_03_1950_add_replacement_lead_time': addReplacementLeadTime
+	'2026_12_03_1950_add_replacement_lead_time': addReplacementLeadTime,
+	'2026_12_04_0101_add_plant_identity': addPlantIdentity
 };

@@ -60,14 +60,15 @@ test('a tooling owner sees exactly its dies and downloads the CSV and the PDF st
 	).toEqual(BROOKMERE_DIES);
 	expect(csv).not.toMatch(/D-01(1[2-9]|[2-4]\d)|Lumenfold|Tollard|Ashcombe/);
 
-	// The PDF statement: a real PDF naming every die of the owner and no other.
+	// The PDF statement (this quarter, the form's default): a real PDF naming every die of the
+	// owner and no other.
+	await page.getByRole('link', { name: 'Statements (PDF, CSV)' }).click();
+	await expect(page.getByRole('heading', { name: 'Statements' })).toBeVisible();
 	const [pdfDownload] = await Promise.all([
 		page.waitForEvent('download'),
-		page.getByRole('link', { name: 'Tooling statement (PDF)' }).click()
+		page.getByRole('button', { name: 'Download PDF' }).click()
 	]);
-	expect(pdfDownload.suggestedFilename()).toMatch(
-		/^tooling-statement-BRKPUMP-\d{4}-\d{2}-\d{2}\.pdf$/
-	);
+	expect(pdfDownload.suggestedFilename()).toMatch(/^ST-BRKPUMP-\d{8}-\d{2}\.pdf$/);
 	const pdf = (await import('node:fs')).readFileSync((await pdfDownload.path())!);
 	expect(pdf.subarray(0, 5).toString('latin1')).toBe('%PDF-');
 	expect(pdf.subarray(-8).toString('latin1')).toContain('%%EOF');
@@ -179,7 +180,7 @@ test('photos and summaries the plant shares reach the owner, and nobody else', a
 
 	const owner = await pageAs(browser, 'customer');
 	await owner.goto('/owner/dies/D-0103');
-	const history = owner.getByRole('row').filter({ hasText: jobNumber });
+	const history = owner.getByRole('listitem').filter({ hasText: jobNumber });
 	await expect(history).toContainText('Cavity polished; ready for production.');
 	await expect(history).toContainText('In progress');
 	await expect(owner.locator('body')).not.toContainText('internal note');

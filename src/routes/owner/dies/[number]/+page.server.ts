@@ -3,6 +3,7 @@ import { getDb } from '$lib/server/db';
 import { dieLife } from '$lib/server/dies/die-detail';
 import { findOwnerDie, getOwnerDieStory } from '$lib/server/owner/die-page';
 import { requireOwner } from '$lib/server/owner/guard';
+import { lastServiceText } from '$lib/server/owner/service-history';
 import { nowIso } from '$lib/server/time';
 import type { PageServerLoad } from './$types';
 
@@ -30,6 +31,8 @@ export const load: PageServerLoad = async (event) => {
 			retiredAt: die.retired_at
 		},
 		life,
-		...story
+		...story,
+		// The same words as the statement PDF and CSV (service-history.ts).
+		lastService: lastServiceText(story.history.last)
 	};
 };
