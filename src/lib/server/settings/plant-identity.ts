@@ -168,3 +168,41 @@ export async function savePlantLogo(
 		return before.logoFile;
 	});
 }
+
+export type LeadFamily = 'zinc' | 'magnesium' | 'aluminium' | 'copper';
+
+/** The plant's replacement lead time per alloy family, days. */
+export async function listLeadDefaults(db: DB): Promise<Record<LeadFamily, number>> {
+	const rows = await db.selectFrom('replacement_lead_defaults').selectAll().execute();
+	const result = { zinc: 84, magnesium: 84, aluminium: 84, copper: 84 };
+	for (const r of rows) result[r.family] = r.lead_days;
+	return result;
+}
+
+/** Saves the family lead times, audited with before and after. */
+export async function saveLeadDefaults(
+	db: DB,
+	input: Record<LeadFamily, number>,
+	actorId: string,
+	now = nowIso()
+): Promise<void> {
+	await db.transaction().execute(async (trx) => {
+		const before = await listLeadDefaults(trx);
+		for (const family of Object.keys(input) as LeadFamily[]) {
+			await trx
+				.insertInto('replacement_lead_defaults')
+				.values({ family, lead_days: input[family], updated_at: now, updated_by: actorId })
+				.onConflict((oc) =>
+					oc
+						.column('family')
+						.doUpdateSet({ lead_days: input[family], updated_at: now, updated_by: actorId })
+				)
+				.execute();
+		}
+		await writeAudit(
+			trx,
+			{ userId: actorId, action: 'plant.lead_defaults', detail: { before, after: input } },
+			now
+		);
+	});
+}
