@@ -3,6 +3,7 @@ import { rawHandle, type DB } from '../db/connect';
 import type { Mailer } from '../mail/transport';
 import { findDieConcerns } from './concerns';
 import { composeDigest, type ComposedMail, type DigestEntry } from './digest';
+import { mailFooterFor, plantIdentity } from '../settings/plant-identity';
 import { toStoredInstant } from './outbox';
 import type { NoticeLevel, NoticePayload } from './types';
 
@@ -186,6 +187,7 @@ export async function sendPending(
 	const maxAttempts = options.maxAttempts ?? DEFAULT_MAX_ATTEMPTS;
 	const result: SendResult = { digests: 0, sent: 0, retrying: 0, failed: 0, errors: [] };
 	const claims = await claimDue(db, at);
+	const plant = claims.length ? await plantIdentity(db) : null;
 
 	for (const claim of claims) {
 		let mail: ComposedMail;
@@ -193,8 +195,17 @@ export async function sendPending(
 		try {
 			const entries = claim.rows.map(toDigestEntry);
 			const concerns = await findDieConcerns(db, [...new Set(entries.map((e) => e.dieNumber))]);
-			mail = composeDigest(entries, { origin: options.origin, asOf: at, concerns });
-			({ messageId } = await mailer.send({ to: claim.recipient, ...mail }));
+			mail = composeDigest(entries, {
+				origin: options.origin,
+				asOf: at,
+				concerns,
+				plantFooter: plant ? mailFooterFor(plant) : undefined
+			});
+			({ messageId } = await mailer.send({
+				fromName: plant?.name,
+				to: claim.recipient,
+				...mail
+			}));
 		} catch (error) {
 			const message = error instanceof Error ? error.message : String(error);
 			const outcome = await markFailed(db, claim, message, at, maxAttempts);

@@ -2,6 +2,7 @@
 // statement footer and the hourly rate of billable toolroom work. The one place every PDF,
 // e-mail, the sign-in page and the browser title read the plant's name from.
 import { writeAudit } from '../audit';
+import { withDisplayName } from '../mail/transport';
 import type { DB } from '../db/connect';
 import { nowIso } from '../time';
 
@@ -81,9 +82,7 @@ export function plantContactLine(identity: PlantIdentity): string {
  * (`"Castellan" <castellan@plant.example>` becomes `"Kestrel Works" <castellan@plant.example>`).
  */
 export function mailFromFor(identity: PlantIdentity, from: string): string {
-	const address = /<([^>]+)>/.exec(from)?.[1] ?? from.trim();
-	const display = identity.name.replace(/["\\\r\n]/g, '').trim();
-	return `"${display}" <${address}>`;
+	return withDisplayName(from, identity.name);
 }
 
 /** The footer line every e-mail carries: the plant's name and contact. */
