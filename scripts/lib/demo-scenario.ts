@@ -1,7 +1,8 @@
 // The demo plant: an invented scenario. Every company, person, part and number here is made up
 // for the demo; none describes a real business.
 import { sql } from 'kysely';
-import type { DB } from '../../src/lib/server/db/connect';
+import { rawHandle, type DB } from '../../src/lib/server/db/connect';
+import { writeOpeningBalance } from '../../src/lib/server/shots/opening-balance';
 import type { AlloyFamily, DieProcess, DieStatus } from '../../src/lib/domain';
 import { recordShots, type ShotInput } from '../../src/lib/server/shots/ledger';
 import { setPlantZone } from '../../src/lib/plant-time';
@@ -367,16 +368,19 @@ export async function seedDemo(
 				.execute();
 		}
 
-		// Daily counter readings on working days, at the end of the second shift.
-		const rows: ShotInput[] = [
-			{
-				die: number,
+		// The shots made before Castellan come in as an opening balance (not a day's production),
+		// so shots-by-month and statements show them as the balance brought forward.
+		await db.connection().execute(async () =>
+			writeOpeningBalance(rawHandle(db), {
+				dieId: die.id,
 				shots: opening,
-				countedAt: createdAt,
-				note: 'Opening balance carried over from the previous register',
-				key: `demo-${number}-open`
-			}
-		];
+				at: createdAt,
+				userId: null,
+				note: 'Opening balance carried over from the previous register'
+			})
+		);
+		// Daily counter readings on working days, at the end of the second shift.
+		const rows: ShotInput[] = [];
 		const workDays: Date[] = [];
 		for (let d = startDay + 1; d < endDay; d++) {
 			const day = new Date(now.getTime() - (HISTORY_DAYS - d) * DAY);

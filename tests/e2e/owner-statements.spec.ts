@@ -16,7 +16,7 @@ test('an owner downloads a quarter statement on a phone, as PDF and CSV with one
 }) => {
 	await signIn(page, 'customer');
 	await page.getByRole('link', { name: 'Statements (PDF, CSV)' }).click();
-	await expect(page.getByRole('heading', { name: 'Statements' })).toBeVisible();
+	await expect(page.getByRole('heading', { name: 'Statements', exact: true })).toBeVisible();
 	await noSidewaysScroll(page);
 
 	// A quarter that is impossible: the field says why, nothing is issued.
@@ -25,9 +25,9 @@ test('an owner downloads a quarter statement on a phone, as PDF and CSV with one
 	await noSidewaysScroll(page);
 
 	await page.goto('/owner/statements');
-	await page.getByLabel('Quarter', { exact: true }).check();
+	await page.getByRole('radio', { name: 'Quarter' }).check();
 	const year = String(new Date().getUTCFullYear() - 1);
-	await page.getByLabel('Year').fill(year);
+	await page.getByRole('textbox', { name: 'Year' }).fill(year);
 	await page.getByRole('combobox', { name: 'Quarter' }).selectOption('4');
 	const [pdfDownload] = await Promise.all([
 		page.waitForEvent('download'),
