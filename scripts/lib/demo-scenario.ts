@@ -244,7 +244,18 @@ export async function seedDemo(
 	// Set before any shot is counted, so the roll-up is keyed by Vienna days from the start.
 	await db
 		.updateTable('plant_settings')
-		.set({ time_zone: DEMO_PLANT_ZONE, updated_at: nowIso })
+		.set({
+			time_zone: DEMO_PLANT_ZONE,
+			// An invented plant: every name, address and number here is made up.
+			plant_name: 'Greywater Die Casting',
+			plant_address: 'Unit 7, Anvil Park\nGreywater',
+			contact_email: 'tooling@greywater.example',
+			contact_phone: '+43 1 000 0000',
+			statement_footer: 'Greywater Die Casting · tooling desk · figures are planning aids',
+			repair_rate_per_hour: 68,
+			currency: 'EUR',
+			updated_at: nowIso
+		})
 		.where('id', '=', 1)
 		.execute();
 	setPlantZone(DEMO_PLANT_ZONE);
