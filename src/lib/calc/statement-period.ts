@@ -22,7 +22,8 @@ export interface StatementPeriod {
 	label: string;
 }
 
-const MONTHS = [
+/** Month names, January first. */
+export const MONTH_NAMES = [
 	'January',
 	'February',
 	'March',
@@ -48,13 +49,13 @@ function monthEnd(year: number, month: number): string {
 /** "5 March 2026" for a `YYYY-MM-DD` date. */
 export function dateInWords(date: string): string {
 	const [y, m, d] = date.split('-').map(Number);
-	return `${d} ${MONTHS[m - 1]} ${y}`;
+	return `${d} ${MONTH_NAMES[m - 1]} ${y}`;
 }
 
 /** "March 2026" for a `YYYY-MM` month. */
 export function monthInWords(month: string): string {
 	const [y, m] = month.split('-').map(Number);
-	return `${MONTHS[m - 1]} ${y}`;
+	return `${MONTH_NAMES[m - 1]} ${y}`;
 }
 
 /** The first and last day of a period and its name; throws RangeError for an impossible one. */
@@ -69,7 +70,7 @@ export function resolvePeriod(spec: PeriodSpec): StatementPeriod {
 				kind: 'month',
 				from: `${year}-${pad(month)}-01`,
 				to: monthEnd(year, month),
-				label: `${MONTHS[month - 1]} ${year}`
+				label: `${MONTH_NAMES[month - 1]} ${year}`
 			};
 		}
 		case 'quarter': {
@@ -82,7 +83,7 @@ export function resolvePeriod(spec: PeriodSpec): StatementPeriod {
 				kind: 'quarter',
 				from: `${year}-${pad(first)}-01`,
 				to: monthEnd(year, first + 2),
-				label: `Q${quarter} ${year} (${MONTHS[first - 1]}–${MONTHS[first + 1]})`
+				label: `Q${quarter} ${year} (${MONTH_NAMES[first - 1]}–${MONTH_NAMES[first + 1]})`
 			};
 		}
 		case 'year':
