@@ -20,6 +20,7 @@ import * as scopeIdempotencyKeys from './2026_12_03_1900_scope_idempotency_keys'
 import * as addReplacementLeadTime from './2026_12_03_1950_add_replacement_lead_time';
 import * as createServiceWindows from './2026_12_03_2101_create_service_windows';
 import * as createJobEntries from './2026_12_03_2301_create_job_entries';
+import * as addPlantIdentity from './2026_12_04_0101_add_plant_identity';
 import * as widenOwnerNoticeKinds from './2026_12_04_0201_widen_owner_notice_kinds';
 import * as createOwnerDecisions from './2026_12_04_0202_create_owner_decisions';
 import * as addPhotoCaptionBatch from './2026_12_04_0203_add_photo_caption_batch';
@@ -48,6 +49,7 @@ export const migrations: Record<string, Migration> = {
 	'2026_12_03_1950_add_replacement_lead_time': addReplacementLeadTime,
 	'2026_12_03_2101_create_service_windows': createServiceWindows,
 	'2026_12_03_2301_create_job_entries': createJobEntries,
+	'2026_12_04_0101_add_plant_identity': addPlantIdentity,
 	'2026_12_04_0201_widen_owner_notice_kinds': widenOwnerNoticeKinds,
 	'2026_12_04_0202_create_owner_decisions': createOwnerDecisions,
 	'2026_12_04_0203_add_photo_caption_batch': addPhotoCaptionBatch

@@ -1,7 +1,8 @@
 // The demo plant: an invented scenario. Every company, person, part and number here is made up
 // for the demo; none describes a real business.
 import { sql } from 'kysely';
-import type { DB } from '../../src/lib/server/db/connect';
+import { rawHandle, type DB } from '../../src/lib/server/db/connect';
+import { writeOpeningBalance } from '../../src/lib/server/shots/opening-balance';
 import type { AlloyFamily, DieProcess, DieStatus } from '../../src/lib/domain';
 import { recordShots, type ShotInput } from '../../src/lib/server/shots/ledger';
 import { setPlantZone } from '../../src/lib/plant-time';
@@ -243,7 +244,18 @@ export async function seedDemo(
 	// Set before any shot is counted, so the roll-up is keyed by Vienna days from the start.
 	await db
 		.updateTable('plant_settings')
-		.set({ time_zone: DEMO_PLANT_ZONE, updated_at: nowIso })
+		.set({
+			time_zone: DEMO_PLANT_ZONE,
+			// An invented plant: every name, address and number here is made up.
+			plant_name: 'Greywater Die Casting',
+			plant_address: 'Unit 7, Anvil Park\nGreywater',
+			contact_email: 'tooling@greywater.example',
+			contact_phone: '+43 1 000 0000',
+			statement_footer: 'Greywater Die Casting · tooling desk · figures are planning aids',
+			repair_rate_per_hour: 68,
+			currency: 'EUR',
+			updated_at: nowIso
+		})
 		.where('id', '=', 1)
 		.execute();
 	setPlantZone(DEMO_PLANT_ZONE);
@@ -367,16 +379,19 @@ export async function seedDemo(
 				.execute();
 		}
 
-		// Daily counter readings on working days, at the end of the second shift.
-		const rows: ShotInput[] = [
-			{
-				die: number,
+		// The shots made before Castellan come in as an opening balance (not a day's production),
+		// so shots-by-month and statements show them as the balance brought forward.
+		await db.connection().execute(async () =>
+			writeOpeningBalance(rawHandle(db), {
+				dieId: die.id,
 				shots: opening,
-				countedAt: createdAt,
-				note: 'Opening balance carried over from the previous register',
-				key: `demo-${number}-open`
-			}
-		];
+				at: createdAt,
+				userId: null,
+				note: 'Opening balance carried over from the previous register'
+			})
+		);
+		// Daily counter readings on working days, at the end of the second shift.
+		const rows: ShotInput[] = [];
 		const workDays: Date[] = [];
 		for (let d = startDay + 1; d < endDay; d++) {
 			const day = new Date(now.getTime() - (HISTORY_DAYS - d) * DAY);

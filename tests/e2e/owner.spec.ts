@@ -60,14 +60,15 @@ test('a tooling owner sees exactly its dies and downloads the CSV and the PDF st
 	).toEqual(BROOKMERE_DIES);
 	expect(csv).not.toMatch(/D-01(1[2-9]|[2-4]\d)|Lumenfold|Tollard|Ashcombe/);
 
-	// The PDF statement: a real PDF naming every die of the owner and no other.
+	// The PDF statement (this quarter, the form's default): a real PDF naming every die of the
+	// owner and no other.
+	await page.getByRole('link', { name: 'Statements (PDF, CSV)' }).click();
+	await expect(page.getByRole('heading', { name: 'Statements', exact: true })).toBeVisible();
 	const [pdfDownload] = await Promise.all([
 		page.waitForEvent('download'),
-		page.getByRole('link', { name: 'Tooling statement (PDF)' }).click()
+		page.getByRole('button', { name: 'Download PDF' }).click()
 	]);
-	expect(pdfDownload.suggestedFilename()).toMatch(
-		/^tooling-statement-BRKPUMP-\d{4}-\d{2}-\d{2}\.pdf$/
-	);
+	expect(pdfDownload.suggestedFilename()).toMatch(/^ST-BRKPUMP-\d{8}-\d{2}\.pdf$/);
 	const pdf = (await import('node:fs')).readFileSync((await pdfDownload.path())!);
 	expect(pdf.subarray(0, 5).toString('latin1')).toBe('%PDF-');
 	expect(pdf.subarray(-8).toString('latin1')).toContain('%%EOF');
@@ -99,9 +100,16 @@ test('the die page: chart with a table alternative, halves, history and the mont
 	expect(ledger.status()).toBe(200);
 	expect(ledger.headers()['content-type']).toContain('text/csv');
 	const lines = (await ledger.text()).trim().split(/\r\n/);
-	expect(lines[0]).toContain('die,month,shots,days_run,total_shots_at_month_end');
+	expect(lines[0]).toContain('die,month,shots,days_run,total_shots_at_month_end,row');
 	expect(lines.length).toBeGreaterThan(6);
-	for (const line of lines.slice(1)) expect(line).toMatch(/^D-0101,\d{4}-\d{2},-?\d+,\d+,\d+$/);
+	// The balance brought forward first, marked as such and not as a month's shots.
+	expect(lines[1]).toMatch(/^D-0101,Opening balance \(before \d{4}-\d{2}\),,,\d+,opening_balance$/);
+	for (const line of lines.slice(2)) {
+		expect(line).toMatch(/^D-0101,\d{4}-\d{2},-?\d+,\d+,\d+,month$/);
+	}
+	// No month carries the opening balance: the first month's shots are a month's production.
+	const [opening, firstMonth] = [lines[1], lines[2]].map((l) => l.split(','));
+	expect(Number(firstMonth[2])).toBeLessThan(Number(opening[4]));
 	// The last month ends at the total the page shows.
 	const lastTotal = Number(lines.at(-1)!.split(',')[4]);
 	const shown = await page.getByText('Total shots').locator('..').locator('dd').textContent();
@@ -180,7 +188,10 @@ test('photos and summaries the plant shares reach the owner, and nobody else', a
 
 	const owner = await pageAs(browser, 'customer');
 	await owner.goto('/owner/dies/D-0103');
-	const history = owner.getByRole('row').filter({ hasText: jobNumber });
+	const history = owner
+		.getByRole('list', { name: 'Work in progress' })
+		.getByRole('listitem')
+		.filter({ hasText: jobNumber });
 	await expect(history).toContainText('Cavity polished; ready for production.');
 	await expect(history).toContainText('In progress');
 	await expect(owner.locator('body')).not.toContainText('internal note');

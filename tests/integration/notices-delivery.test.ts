@@ -243,3 +243,24 @@ describe('restarts', () => {
 		expect(mail.messages()).toHaveLength(2);
 	});
 });
+
+describe('plant identity on notices', () => {
+	it('the digest comes from the plant’s name at MAIL_FROM’s address and ends with its contact', async () => {
+		const db = await openTestDatabase();
+		await seedPlant(db);
+		await db
+			.updateTable('plant_settings')
+			.set({
+				plant_name: 'Kestrel Casting Works',
+				contact_email: 'tooling@kestrel.test',
+				contact_phone: '+44 1632 960000'
+			})
+			.execute();
+		const r = await runNotices(db, { now: NOW, mailer, origin: ORIGIN });
+		expect(r.digests).toBeGreaterThan(0);
+		for (const m of mail.messages()) {
+			expect(m.from).toBe('"Kestrel Casting Works" <castellan@plant.test>');
+			expect(m.text).toContain('Kestrel Casting Works · tooling@kestrel.test · +44 1632 960000');
+		}
+	});
+});

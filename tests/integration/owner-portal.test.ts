@@ -19,8 +19,9 @@ import {
 	listSharedPhotos,
 	monthlyLedger
 } from '../../src/lib/server/owner/die-page';
-import { getOwnerStatement } from '../../src/lib/server/owner/statement';
-import { renderStatementPdf, toWinAnsi } from '../../src/lib/server/owner/statement-pdf';
+import { buildPeriodStatement } from '../../src/lib/server/owner/period-statement';
+import { renderPeriodStatementPdf, toWinAnsi } from '../../src/lib/server/owner/statement-pdf';
+import { resolvePeriod } from '../../src/lib/calc/statement-period';
 import { setJobSharing, setPhotoSharing } from '../../src/lib/server/owner/sharing';
 
 const AS_OF = '2026-06-30T12:00:00.000Z';
@@ -348,7 +349,11 @@ describe('owner die page', () => {
 });
 
 describe('owner statement', () => {
-	test('holds only the owner’s dies and only shared summaries, newest three', async () => {
+	// The period statement (period-statement.ts) for the quarter of AS_OF: Q2 2026.
+	const Q2 = resolvePeriod({ kind: 'quarter', year: 2026, quarter: 2 });
+	const issue = { reference: 'ST-ACME-20260630-01', issuedAt: AS_OF };
+
+	test('holds only the owner’s dies, and of jobs only shared or billable ones, without internals', async () => {
 		for (let i = 0; i < 5; i++) {
 			await job('D-0001', {
 				closedDaysAgo: 50 - i * 10,
@@ -359,30 +364,32 @@ describe('owner statement', () => {
 		}
 		await job('D-0001', { closedDaysAgo: 2, summary: 'Private words', shared: false });
 		await job('D-0003', { closedDaysAgo: 2, summary: 'Bolt summary', shared: true });
-		const s = (await getOwnerStatement(db, acme, AS_OF))!;
-		expect(s.customer).toEqual({ code: 'ACME', name: 'Acme Pumps' });
+		const s = (await buildPeriodStatement(db, acme, Q2, issue))!;
+		expect(s.customer).toMatchObject({ code: 'ACME', name: 'Acme Pumps' });
 		expect(s.dies.map((d) => d.number)).toEqual(['D-0001', 'D-0002', 'D-0004']);
 		const d1 = s.dies[0];
-		expect(d1.service).toMatchObject({ jobsDone: 6, billable: 3, lastDoneAt: daysAgo(2) });
-		expect(d1.service.summaries.map((m) => m.text)).toEqual([
+		// Five shared jobs closed 50, 40, 30, 20 and 10 days before 30 June: all in Q2; the
+		// private, unbilled one is not the owner's history.
+		expect(d1.services.filter((e) => e.kind === 'job').map((e) => e.detail)).toEqual([
 			'Shared summary 4',
 			'Shared summary 3',
-			'Shared summary 2'
+			'Shared summary 2',
+			'Shared summary 1',
+			'Shared summary 0'
 		]);
-		expect(s.dies[1].service).toEqual({
-			jobsDone: 0,
-			billable: 0,
-			lastDoneAt: null,
-			summaries: []
-		});
+		// Billable: i = 0, 2, 4, each 7.5 h.
+		expect(d1.repairs.map((r) => r.hours)).toEqual([7.5, 7.5, 7.5]);
+		expect(s.totals.repairHours).toBe(22.5);
+		expect(s.dies[1].services).toEqual([]);
 		expect(JSON.stringify(s)).not.toMatch(/Private|Bolt|SECRET|INTERNAL|D-0003/);
-		expect(await getOwnerStatement(db, 9999, AS_OF)).toBeUndefined();
+		expect(await buildPeriodStatement(db, 9999, Q2, issue)).toBeUndefined();
 	});
 
 	test('the PDF is a PDF, names the plant and the owner’s dies, and nothing of others', async () => {
 		await job('D-0001', { closedDaysAgo: 5, summary: 'Ejector pins replaced (x4).', shared: true });
-		const s = (await getOwnerStatement(db, acme, AS_OF))!;
-		const pdf = await renderStatementPdf(s, 'Kestrel Test Works');
+		await db.updateTable('plant_settings').set({ plant_name: 'Kestrel Test Works' }).execute();
+		const s = (await buildPeriodStatement(db, acme, Q2, issue))!;
+		const pdf = await renderPeriodStatementPdf(s);
 		expect(pdf.subarray(0, 5).toString('latin1')).toBe('%PDF-');
 		const text = pdfText(pdf);
 		for (const n of [
@@ -391,7 +398,7 @@ describe('owner statement', () => {
 			'D-0004',
 			'Kestrel Test Works',
 			'Acme Pumps',
-			'2026-06-30'
+			'ST-ACME-20260630-01'
 		]) {
 			expect(text).toContain(n);
 		}

@@ -69,6 +69,11 @@ export const dieFormSchema = z
 			min: [1, 'Expected life must be above 0.'],
 			max: [10_000_000, 'More than 10 million shots is not plausible.']
 		}),
+		/** Days a replacement die takes to arrive; empty = the plant's default for the family. */
+		replacementLeadDays: optionalWholeNumber({
+			min: [1, 'A lead time is at least 1 day.'],
+			max: [3650, 'A lead time is at most 3 650 days (10 years).']
+		}).optional(),
 		coverSerial: z.string().trim().max(40, 'Keep it under 40 characters.').optional(),
 		ejectorSerial: z.string().trim().max(40, 'Keep it under 40 characters.').optional(),
 		steel: z.string().trim().max(40, 'Keep it under 40 characters.').default('H13')

@@ -15,6 +15,12 @@ import { previewAlloyLifeChange } from '$lib/server/settings/alloy-impact';
 import { writeAudit } from '$lib/server/audit';
 import { listCustomers, saveCustomer } from '$lib/server/settings/customers';
 import { loadPlantZoneForm, savePlantZone } from './plant-time';
+import {
+	loadPlantIdentityForms,
+	saveLeadDefaultsAction,
+	savePlantIdentityAction,
+	savePlantLogoAction
+} from './plant-identity';
 import type { Actions, PageServerLoad } from './$types';
 
 export const load: PageServerLoad = async (event) => {
@@ -62,11 +68,22 @@ export const load: PageServerLoad = async (event) => {
 			{ errors: false }
 		)
 	]);
-	return { customers, alloys, templates, customerForm, alloyForm, ...(await loadPlantZoneForm()) };
+	return {
+		customers,
+		alloys,
+		templates,
+		customerForm,
+		alloyForm,
+		...(await loadPlantZoneForm()),
+		...(await loadPlantIdentityForms())
+	};
 };
 
 export const actions: Actions = {
 	zone: savePlantZone,
+	identity: savePlantIdentityAction,
+	leadDefaults: saveLeadDefaultsAction,
+	logo: savePlantLogoAction,
 	customer: async (event) => {
 		requireRole(event, 'admin');
 		const form = await superValidate(event.request, zod4(customerSchema));

@@ -22,6 +22,12 @@ export const ARCHIVE_TABLES: ArchiveTable[] = [
 		about: 'The plant: its time zone (IANA name) and other plant-wide settings.'
 	},
 	{
+		table: 'statements',
+		file: 'statements.csv',
+		about:
+			'Statements issued to tooling owners: reference, owner (customers.id), period (plant dates, both included), issued at (UTC).'
+	},
+	{
 		table: 'users',
 		file: 'users.csv',
 		about:

@@ -47,7 +47,8 @@ function registerColumns(form: DieForm) {
 		metal_pressure_bar: metalPressureBarOf(form),
 		location: form.location || null,
 		notes: form.notes || null,
-		expected_life_shots: form.expectedLifeShots ?? null
+		expected_life_shots: form.expectedLifeShots ?? null,
+		replacement_lead_days: form.replacementLeadDays ?? null
 	};
 }
 
@@ -123,17 +124,30 @@ export async function updateDie(
 	if (problem) return problem;
 	const at = nowIso();
 	await db.transaction().execute(async (trx) => {
+		const before = await trx
+			.selectFrom('dies')
+			.select('replacement_lead_days')
+			.where('id', '=', dieId)
+			.executeTakeFirst();
+		const columns = registerColumns(form);
 		await trx
 			.updateTable('dies')
-			.set({
-				...registerColumns(form),
-				updated_at: at
-			})
+			.set({ ...columns, updated_at: at })
 			.where('id', '=', dieId)
 			.execute();
+		// The lead time is named with before and after, so the audit page shows its change.
 		await writeAudit(
 			trx,
-			{ userId: actorId, action: 'die.edit', dieId, detail: { number: form.number } },
+			{
+				userId: actorId,
+				action: 'die.edit',
+				dieId,
+				detail: {
+					number: form.number,
+					before: { replacementLeadDays: before?.replacement_lead_days ?? null },
+					after: { replacementLeadDays: columns.replacement_lead_days }
+				}
+			},
 			at
 		);
 	});

@@ -8,6 +8,8 @@ export interface MailerOptions {
 }
 
 export interface OutgoingMail {
+	/** Display name for this message's From (the plant's name); the address stays MAIL_FROM's. */
+	fromName?: string;
 	to: string | string[];
 	subject: string;
 	text: string;
@@ -27,6 +29,16 @@ export interface Mailer {
 const CONNECT_TIMEOUT_MS = 5_000;
 const GREETING_TIMEOUT_MS = 5_000;
 const SOCKET_TIMEOUT_MS = 30_000;
+
+/**
+ * A From header with another display name and the same address:
+ * `"Castellan" <castellan@plant.example>` → `"Kestrel Works" <castellan@plant.example>`.
+ */
+export function withDisplayName(from: string, name: string): string {
+	const address = /<([^>]+)>/.exec(from)?.[1] ?? from.trim();
+	const display = name.replace(/["\\\r\n]/g, '').trim();
+	return display ? `"${display}" <${address}>` : from;
+}
 
 /** Where mail goes, for error messages: the URL without user, password or query. */
 function describeRelay(smtpUrl: string): string {
@@ -53,9 +65,15 @@ export function createMailer({ smtpUrl, from }: MailerOptions): Mailer {
 	});
 
 	return {
-		async send({ to, subject, text, html }) {
+		async send({ fromName, to, subject, text, html }) {
 			try {
-				const info = await transport.sendMail({ from, to, subject, text, html });
+				const info = await transport.sendMail({
+					from: fromName ? withDisplayName(from, fromName) : from,
+					to,
+					subject,
+					text,
+					html
+				});
 				return { messageId: info.messageId };
 			} catch (error) {
 				throw new Error(

@@ -28,6 +28,8 @@ export interface DigestOptions {
 	asOf: string;
 	/** Grade-3+ cracks and weak circuits per die number, shown in that die's block. */
 	concerns?: ReadonlyMap<string, DieConcerns>;
+	/** The plant's name and contact line (plant-identity.ts `mailFooterFor`), under the footer. */
+	plantFooter?: string;
 }
 
 export interface ComposedMail {
@@ -258,7 +260,9 @@ export function composeDigest(
 	text.push(zoneNote, '');
 	html.push(`<p style="margin:16px 0 0;color:#6b7280;font-size:13px;">${escapeHtml(zoneNote)}</p>`);
 	const settings = settingsLink(options.origin);
+	const footer = options.plantFooter ? `${FOOTER} — ${options.plantFooter}` : FOOTER;
 	text.push(`Notification settings: ${settings}`, '', '--', FOOTER);
+	if (options.plantFooter) text.push(options.plantFooter);
 	html.push(
 		`<p style="margin:16px 0 0;font-size:13px;">${link(settings, 'Notification settings')}</p>`
 	);
@@ -266,6 +270,6 @@ export function composeDigest(
 	return {
 		subject,
 		text: text.join('\n'),
-		html: layoutEmail({ title, bodyHtml: html.join('\n'), footerText: FOOTER })
+		html: layoutEmail({ title, bodyHtml: html.join('\n'), footerText: footer })
 	};
 }

@@ -53,7 +53,7 @@ export function describeOwnerEntry(p: OwnerLifePayload | OwnerDecisionPayload): 
 /** One e-mail for one owner recipient, one block per die. */
 export function composeOwnerMail(
 	entries: readonly DigestEntry[],
-	options: { origin: string; asOf: string }
+	options: { origin: string; asOf: string; plantFooter?: string }
 ): ComposedMail {
 	if (entries.length === 0) throw new Error('An owner mail needs at least one item.');
 	const rank = (e: DigestEntry) => NOTICE_LEVELS.indexOf(e.level);
@@ -103,12 +103,15 @@ export function composeOwnerMail(
 		'Life figures assume the die keeps the shot rate of the last 28 days: planning figures, not a guarantee of die life.';
 	const zoneNote = plantTimeNote();
 	text.push(note, zoneNote, '', '--', FOOTER);
+	// The plant's name and contact (plant-identity.ts), so an owner knows whom to answer.
+	if (options.plantFooter) text.push(options.plantFooter);
+	const footer = options.plantFooter ? `${FOOTER} — ${options.plantFooter}` : FOOTER;
 	html.push(
 		`<p style="margin:16px 0 0;color:#6b7280;font-size:13px;">${escapeHtml(note)} ${escapeHtml(zoneNote)}</p>`
 	);
 	return {
 		subject,
 		text: text.join('\n'),
-		html: layoutEmail({ title, bodyHtml: html.join('\n'), footerText: FOOTER })
+		html: layoutEmail({ title, bodyHtml: html.join('\n'), footerText: footer })
 	};
 }

@@ -3,6 +3,7 @@ import { rawHandle, type DB } from '../db/connect';
 import type { Mailer } from '../mail/transport';
 import { findDieConcerns } from './concerns';
 import { composeDigest, type ComposedMail, type DigestEntry } from './digest';
+import { mailFooterFor, plantIdentity } from '../settings/plant-identity';
 import { toStoredInstant } from './outbox';
 import { composeOwnerMail } from './owner-mail';
 import { OWNER_NOTICE_KINDS, type NoticeLevel, type NoticePayload } from './types';
@@ -195,20 +196,31 @@ export async function sendPending(
 	const maxAttempts = options.maxAttempts ?? DEFAULT_MAX_ATTEMPTS;
 	const result: SendResult = { digests: 0, sent: 0, retrying: 0, failed: 0, errors: [] };
 	const claims = await claimDue(db, at);
+	const plant = claims.length ? await plantIdentity(db) : null;
 
 	for (const claim of claims) {
 		let mail: ComposedMail;
 		let messageId: string;
 		try {
 			const entries = claim.rows.map(toDigestEntry);
+			const plantFooter = plant ? mailFooterFor(plant) : undefined;
 			if (claim.owner) {
-				mail = composeOwnerMail(entries, { origin: options.origin, asOf: at });
+				mail = composeOwnerMail(entries, { origin: options.origin, asOf: at, plantFooter });
 			} else {
 				const dies = [...new Set(entries.map((e) => e.dieNumber))];
 				const concerns = await findDieConcerns(db, dies);
-				mail = composeDigest(entries, { origin: options.origin, asOf: at, concerns });
+				mail = composeDigest(entries, {
+					origin: options.origin,
+					asOf: at,
+					concerns,
+					plantFooter
+				});
 			}
-			({ messageId } = await mailer.send({ to: claim.recipient, ...mail }));
+			({ messageId } = await mailer.send({
+				fromName: plant?.name,
+				to: claim.recipient,
+				...mail
+			}));
 		} catch (error) {
 			const message = error instanceof Error ? error.message : String(error);
 			const outcome = await markFailed(db, claim, message, at, maxAttempts);

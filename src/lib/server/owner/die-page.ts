@@ -10,6 +10,7 @@ import { cumulativeShotSeries, findDie } from '../dies/die-detail';
 import { sortWorstFirst, viewServiceTask } from '../dies/service-summary';
 import { nowIso } from '../time';
 import { sharedSummary } from './portfolio';
+import { loadServiceHistory } from './service-history';
 
 /** The owner's die or undefined: another owner's die is the same as no die (the route says 404). */
 export function findOwnerDie(db: DB, customerId: number, number: string) {
@@ -151,7 +152,7 @@ export async function monthlyLedger(
 
 /** Everything the owner's die page shows, queried together. */
 export async function getOwnerDieStory(db: DB, die: OwnerDie, asOf = nowIso()) {
-	const [series, months, halves, tasks, jobs, photos, openBookings] = await Promise.all([
+	const [series, months, halves, tasks, jobs, photos, openBookings, history] = await Promise.all([
 		cumulativeShotSeries(db, die.id, die.total_shots),
 		monthlyLedger(db, die.id, die.total_shots),
 		db
@@ -170,7 +171,8 @@ export async function getOwnerDieStory(db: DB, die: OwnerDie, asOf = nowIso()) {
 			.execute(),
 		listOwnerJobs(db, die.id),
 		listSharedPhotos(db, die.id),
-		countOpenBookings(db, die.id, asOf)
+		countOpenBookings(db, die.id, asOf),
+		loadServiceHistory(db, die.id)
 	]);
 	const plan =
 		die.status === 'retired'
@@ -182,5 +184,5 @@ export async function getOwnerDieStory(db: DB, die: OwnerDie, asOf = nowIso()) {
 					shotsRemaining: t.shotsRemaining,
 					daysRemaining: t.daysRemaining
 				}));
-	return { series, months, halves, plan, jobs, photos, openBookings };
+	return { series, months, halves, plan, jobs, photos, openBookings, history };
 }

@@ -15,6 +15,8 @@ export interface InvitationMailInput {
 	email: string;
 	customerName: string;
 	plantName: string;
+	/** The plant's footer line (name and contact), from plant-identity.ts. */
+	footer?: string;
 	link: string;
 	expiresAt: string;
 }
@@ -39,7 +41,8 @@ export function composeInvitationMail(input: InvitationMailInput) {
 		'',
 		`The link expires on ${expiryText(input.expiresAt)} (${INVITATION_TTL_HOURS} hours after it was sent). Your sign-in name will be ${input.email}.`,
 		'',
-		'If you did not expect this e-mail, ignore it: nothing happens without the link.'
+		'If you did not expect this e-mail, ignore it: nothing happens without the link.',
+		...(input.footer ? ['', '--', input.footer] : [])
 	];
 	const html = layoutEmail({
 		title: `Your access to ${input.customerName}'s tooling`,
@@ -50,7 +53,7 @@ export function composeInvitationMail(input: InvitationMailInput) {
 			`<p style="font-size:13px;color:#4b5563;">Or paste this address into your browser: ${escapeHtml(input.link)}</p>`,
 			`<p>The link works once and expires on ${escapeHtml(expiryText(input.expiresAt))}. Your sign-in name will be ${escapeHtml(input.email)}.</p>`
 		].join('\n'),
-		footerText: 'If you did not expect this e-mail, ignore it: nothing happens without the link.'
+		footerText: `If you did not expect this e-mail, ignore it: nothing happens without the link.${input.footer ? ` — ${input.footer}` : ''}`
 	});
 	return { subject, text: lines.join('\n'), html };
 }
@@ -80,6 +83,7 @@ export interface InvitationMailConfig {
 	/** Base of the link, e.g. `https://castellan.plant.example`. */
 	origin: string;
 	plantName: string;
+	footer?: string;
 }
 
 /**
@@ -106,6 +110,7 @@ export async function deliverInvitation(
 			email: invitation.email,
 			customerName: invitation.customerName,
 			plantName: config.plantName,
+			footer: config.footer,
 			link,
 			expiresAt: invitation.expiresAt
 		});

@@ -1,18 +1,15 @@
 /**
- * Lays out the tooling statement as a PDF with pdfmake. Only the standard PDF fonts (Helvetica)
+ * Lays out the period statement (period-statement.ts) as an A4 PDF with pdfmake. Only the standard PDF fonts (Helvetica)
  * are used, so no font file is read or fetched; every value goes in as plain pdfmake text, never
  * markup. Streams are left uncompressed: the statement is small and stays searchable.
  */
 import pdfmake from 'pdfmake';
 import { formatDate, formatShots } from '../../format';
-import { plantDate, plantZone } from '../../plant-time';
-import {
-	DIE_STATUS_FOR_OWNERS,
-	SERVICE_STATE_LABELS,
-	jobKindLabel,
-	serviceKindLabel
-} from '../../labels';
-import type { OwnerStatement, StatementDie } from './statement';
+import { plantDate, plantDateTime, plantZone } from '../../plant-time';
+import { DIE_STATUS_FOR_OWNERS } from '../../labels';
+import { plantContactLine } from '../settings/plant-identity';
+import type { PeriodStatement, PeriodStatementDie } from './period-statement';
+import { lastServiceText } from './service-history';
 
 const STANDARD_FONTS = [
 	'Helvetica',
@@ -59,140 +56,181 @@ export function toWinAnsi(text: string): string {
 
 const t = (text: string) => toWinAnsi(text);
 const pct = (n: number) => `${n.toFixed(1)} %`;
+const money = (n: number | null, currency: string) =>
+	n === null ? '-' : `${n.toFixed(2)} ${currency}`;
+const right = (text: string) => ({ text, alignment: 'right' });
+const th = (text: string, align: 'left' | 'right' = 'left') => ({
+	text,
+	style: 'th',
+	alignment: align
+});
 
-function replacementText(d: StatementDie): string {
-	if (d.status === 'retired') return d.retiredAt ? `Retired ${formatDate(d.retiredAt)}` : 'Retired';
+function endOfLifeText(d: PeriodStatementDie): string {
+	if (d.status === 'retired') return 'Retired';
 	if (d.shotsRemaining <= 0) return 'Expected life reached';
 	return d.projectedEndOfLife ?? 'Not projected (no recent shots)';
 }
 
-function lastServiceText(d: StatementDie): string {
-	if (!d.service.lastDoneAt) return 'None recorded';
-	return formatDate(d.service.lastDoneAt);
+function reorderText(d: PeriodStatementDie): string {
+	if (d.status === 'retired') return '-';
+	if (!d.reorderBy) return 'Not projected';
+	return d.reorderDue ? `${d.reorderBy} (due now)` : d.reorderBy;
 }
 
-function dieTable(dies: StatementDie[]) {
-	const header = [
-		'Die',
-		'Part',
-		'Status',
-		'Shots',
-		'Life used',
-		'Projected replacement',
-		'Last service'
-	].map((h) => ({ text: h, style: 'th' }));
-	const body = dies.map((d) => [
+function shotsTable(s: PeriodStatement) {
+	const body = s.dies.map((d) => [
 		{ text: t(d.number), bold: true },
 		t(d.partNumber ? `${d.partName}\n${d.partNumber}` : d.partName),
 		t(DIE_STATUS_FOR_OWNERS[d.status]),
-		{ text: formatShots(d.totalShots), alignment: 'right' },
-		{ text: pct(d.lifeUsedPct), alignment: 'right' },
-		t(replacementText(d)),
-		t(lastServiceText(d))
+		right(formatShots(d.openingShots)),
+		right(formatShots(d.periodShots)),
+		right(formatShots(d.closingShots))
+	]);
+	const tt = s.totals;
+	return {
+		table: {
+			headerRows: 1,
+			dontBreakRows: true,
+			widths: ['auto', '*', 80, 'auto', 'auto', 'auto'],
+			body: [
+				[
+					th('Die'),
+					th('Part'),
+					th('Status'),
+					th('Opening shots', 'right'),
+					th('Shots in period', 'right'),
+					th('Closing shots', 'right')
+				],
+				...body,
+				[
+					{ text: 'All dies', bold: true },
+					'',
+					'',
+					{ text: formatShots(tt.openingShots), bold: true, alignment: 'right' },
+					{ text: formatShots(tt.periodShots), bold: true, alignment: 'right' },
+					{ text: formatShots(tt.closingShots), bold: true, alignment: 'right' }
+				]
+			]
+		},
+		layout: 'lightHorizontalLines',
+		fontSize: 8.5,
+		margin: [0, 2, 0, 12]
+	};
+}
+
+function lifeTable(s: PeriodStatement) {
+	const body = s.dies.map((d) => [
+		{ text: t(d.number), bold: true },
+		right(pct(d.lifeUsedPct)),
+		right(formatShots(d.shotsRemaining)),
+		t(endOfLifeText(d)),
+		t(reorderText(d)),
+		right(`${d.leadDays} d${d.leadDaysFrom === 'family' ? ' *' : ''}`),
+		t(lastServiceText(d.lastService))
 	]);
 	return {
 		table: {
 			headerRows: 1,
 			dontBreakRows: true,
-			widths: ['auto', '*', 70, 'auto', 'auto', 76, 'auto'],
-			body: [header, ...body]
+			widths: ['auto', 'auto', 'auto', 62, 62, 'auto', '*'],
+			body: [
+				[
+					th('Die'),
+					th('Life used', 'right'),
+					th('Shots remaining', 'right'),
+					th('Projected end of life'),
+					th('Reorder by'),
+					th('Lead time', 'right'),
+					th('Last service')
+				],
+				...body
+			]
 		},
 		layout: 'lightHorizontalLines',
 		fontSize: 8.5,
-		margin: [0, 4, 0, 14]
+		margin: [0, 2, 0, 4]
 	};
 }
 
-function serviceHistory(d: StatementDie) {
-	const s = d.service;
-	const next = d.nextService
-		? ` Next service task: ${serviceKindLabel(d.nextService.kind)}, ${SERVICE_STATE_LABELS[d.nextService.state].toLowerCase()}.`
-		: '';
-	const line =
-		s.jobsDone === 0
-			? `No toolroom work recorded.${next}`
-			: `${s.jobsDone} toolroom job${s.jobsDone === 1 ? '' : 's'} finished, ${s.billable} billable to you; last on ${lastServiceText(d)}.${next}`;
-	return {
-		stack: [
-			{ text: t(`${d.number} · ${d.partName}`), bold: true, fontSize: 9.5 },
-			{ text: t(line), fontSize: 8.5, color: '#374151' },
-			...(s.summaries.length
-				? [
-						{
-							ul: s.summaries.map((m) =>
-								t(
-									`${m.date} · ${jobKindLabel(m.kind)}${m.billable ? ' (billable)' : ''}: ${m.text}`
-								)
-							),
-							fontSize: 8.5,
-							margin: [6, 2, 0, 0]
-						}
-					]
-				: [])
-		],
-		margin: [0, 0, 0, 8],
-		unbreakable: true
-	};
-}
-
-function summaryBlock(s: OwnerStatement) {
-	const cell = (label: string, value: string) => ({
-		stack: [
-			{ text: t(label), fontSize: 8, color: '#4b5563' },
-			{ text: t(value), fontSize: 12, bold: true }
-		]
-	});
-	const tt = s.totals;
-	return {
-		table: {
-			widths: ['*', '*', '*', '*'],
-			body: [
-				[
-					cell('Dies in service', String(tt.inService)),
-					cell('Retired', String(tt.retired)),
-					cell('Shots cast, all dies', formatShots(tt.totalShots)),
-					cell('Shots, last 28 days', formatShots(tt.shotsLast28Days))
-				],
-				[
-					cell('Near replacement (>= 90 % life)', String(tt.nearReplacement)),
-					cell('Service due or overdue', String(tt.serviceDue)),
-					cell(
-						'Next projected replacement',
-						tt.nextReplacement
-							? `${tt.nextReplacement.number} on ${tt.nextReplacement.date}`
-							: 'None projected'
+function dieDetail(s: PeriodStatement, d: PeriodStatementDie) {
+	const lines: unknown[] = [
+		{ text: t(`${d.number} · ${d.partName}`), bold: true, fontSize: 9.5, margin: [0, 6, 0, 2] }
+	];
+	if (s.period.kind !== 'month' || d.months.length > 2) {
+		lines.push({
+			text: t(
+				d.months
+					.map((m) =>
+						m.openingBalance
+							? `${m.label}: ${formatShots(m.closing)}`
+							: `${m.label}: +${formatShots(m.shots)} = ${formatShots(m.closing)}`
+					)
+					.join('  |  ')
+			),
+			fontSize: 8,
+			color: '#374151'
+		});
+	}
+	lines.push(
+		d.services.length
+			? {
+					ul: d.services.map((e) =>
+						t(`${formatDate(e.at)} · ${e.title}${e.detail ? `: ${e.detail}` : ''}`)
 					),
-					cell('Dies on this statement', String(tt.dies))
+					fontSize: 8.5,
+					margin: [6, 2, 0, 0]
+				}
+			: { text: 'No service recorded in this period.', fontSize: 8.5, color: '#374151' }
+	);
+	if (d.repairs.length) {
+		lines.push({
+			table: {
+				headerRows: 1,
+				widths: ['auto', '*', 'auto', 'auto'],
+				body: [
+					[th('Date'), th('Billable repair'), th('Hours', 'right'), th('Cost', 'right')],
+					...d.repairs.map((r) => [
+						formatDate(r.at),
+						t(r.title),
+						right(r.hours === null ? '-' : String(r.hours)),
+						right(t(money(r.cost, s.plant.currency)))
+					])
 				]
-			]
-		},
-		layout: 'noBorders',
-		margin: [0, 8, 0, 12]
-	};
+			},
+			layout: 'lightHorizontalLines',
+			fontSize: 8.5,
+			margin: [6, 4, 0, 0]
+		});
+	}
+	return { stack: lines };
 }
 
-/** The statement as PDF bytes. `plantName` heads it; `asOf` is the statement date. */
-export async function renderStatementPdf(
-	statement: OwnerStatement,
-	plantName: string
+/** The period statement as PDF bytes; `logo` is the plant's logo (a re-encoded JPEG), when it has one. */
+export async function renderPeriodStatementPdf(
+	s: PeriodStatement,
+	logo: Uint8Array | null = null
 ): Promise<Buffer> {
-	const date = plantDate(statement.asOf);
-	const owner = `${statement.customer.name} (${statement.customer.code})`;
+	const plant = s.plant;
+	const owner = `${s.customer.name} (${s.customer.code})`;
+	const contact = plantContactLine(plant);
+	const period = `${s.period.label}, ${s.period.from} to ${s.period.to}`;
+	const footerText = plant.statementFooter || `${plant.name} · prepared with Castellan`;
+	const tt = s.totals;
 	const doc = {
 		compress: false,
 		pageSize: 'A4',
-		pageMargins: [40, 52, 40, 52],
+		pageMargins: [40, 52, 40, 56],
 		info: {
-			title: t(`Tooling statement ${statement.customer.name} ${date}`),
-			author: t(plantName),
-			subject: 'Tooling statement',
+			title: t(`Tooling statement ${s.reference}`),
+			author: t(plant.name),
+			subject: t(`Tooling statement ${s.customer.name}, ${s.period.label}`),
 			creator: 'Castellan'
 		},
 		defaultStyle: { font: 'Helvetica', fontSize: 10, lineHeight: 1.15 },
 		styles: {
-			plant: { fontSize: 11, bold: true, color: '#2b3139' },
-			title: { fontSize: 20, bold: true, margin: [0, 2, 0, 2] },
-			h2: { fontSize: 12, bold: true, margin: [0, 6, 0, 4] },
+			plant: { fontSize: 12, bold: true, color: '#2b3139' },
+			title: { fontSize: 18, bold: true, margin: [0, 6, 0, 2] },
+			h2: { fontSize: 12, bold: true, margin: [0, 8, 0, 4] },
 			th: { bold: true, fontSize: 8.5, color: '#111827' },
 			note: { fontSize: 8, color: '#4b5563' }
 		},
@@ -200,43 +238,79 @@ export async function renderStatementPdf(
 			page === 1
 				? null
 				: {
-						text: t(`${plantName} · Tooling statement · ${owner} · ${date}`),
+						text: t(`${plant.name} · ${s.reference} · ${owner} · ${s.period.label}`),
 						style: 'note',
 						margin: [40, 24, 40, 0]
 					},
 		footer: (page: number, pages: number) => ({
 			columns: [
-				{ text: t(`${plantName} · prepared with Castellan`), style: 'note' },
-				{ text: `Page ${page} of ${pages}`, style: 'note', alignment: 'right' }
+				{ text: t(footerText), style: 'note', width: '*' },
+				{
+					text: t(`${s.reference} · Page ${page} of ${pages}`),
+					style: 'note',
+					alignment: 'right',
+					width: 'auto'
+				}
 			],
 			margin: [40, 16, 40, 0]
 		}),
 		content: [
-			{ text: t(plantName), style: 'plant' },
-			{ text: 'Tooling statement', style: 'title' },
 			{
 				columns: [
-					{ text: t(`Tooling owner: ${owner}`) },
-					{ text: `Statement date: ${date} (${plantZone()})`, alignment: 'right' }
+					...(logo
+						? [
+								{
+									image: `data:image/jpeg;base64,${Buffer.from(logo).toString('base64')}`,
+									fit: [64, 48],
+									width: 72
+								}
+							]
+						: []),
+					{
+						stack: [
+							{ text: t(plant.name), style: 'plant' },
+							...(contact ? [{ text: t(contact), style: 'note' }] : [])
+						],
+						width: '*'
+					}
 				]
 			},
-			summaryBlock(statement),
-			{ text: 'Dies', style: 'h2' },
-			statement.dies.length
-				? dieTable(statement.dies)
-				: { text: 'No dies are registered for you.', margin: [0, 0, 0, 12] },
-			{ text: 'Service history', style: 'h2' },
+			{ text: 'Tooling statement', style: 'title' },
 			{
-				text: 'Summaries are those the plant shared with you; the newest three per die are listed.',
+				table: {
+					widths: ['auto', '*'],
+					body: [
+						['Reference', { text: t(s.reference), bold: true }],
+						['Period', t(period)],
+						['Tooling owner', t(owner)],
+						['Issued', `${plantDateTime(s.issuedAt)} (${plantZone()})`]
+					]
+				},
+				layout: 'noBorders',
+				fontSize: 9.5,
+				margin: [0, 2, 0, 8]
+			},
+			{ text: 'Shots', style: 'h2' },
+			s.dies.length
+				? shotsTable(s)
+				: { text: 'No dies are registered for you.', margin: [0, 0, 0, 12] },
+			{ text: 'Life and replacement', style: 'h2' },
+			...(s.dies.length ? [lifeTable(s)] : []),
+			{
+				text: t(
+					`Life figures are as of the statement date (${plantDate(s.issuedAt)}). Reorder by = projected end of life less the replacement lead time; * = the plant's default lead time for the alloy family. A projection assumes the die keeps the shot rate of the last 28 days; these are planning figures, not a guarantee of die life.`
+				),
 				style: 'note',
 				margin: [0, 0, 0, 6]
 			},
-			...statement.dies.map(serviceHistory),
+			{ text: 'Services and billable repairs in the period', style: 'h2' },
+			...s.dies.map((d) => dieDetail(s, d)),
 			{
 				text: t(
-					'Life used counts the shots on the die against its expected life. A projected replacement date assumes the die keeps the shot rate of the last 28 days; a die that has not run in that time has no projection. These are planning figures, not a guarantee of die life.'
+					`Billable repairs in the period: ${tt.repairHours} h${tt.repairCost === null ? ' (the plant has set no hourly rate)' : `, ${money(tt.repairCost, plant.currency)}`}.`
 				),
-				style: 'note',
+				bold: true,
+				fontSize: 9,
 				margin: [0, 10, 0, 0]
 			}
 		]

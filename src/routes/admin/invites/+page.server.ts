@@ -14,17 +14,19 @@ import {
 	renewInvitation,
 	withdrawInvitation
 } from '$lib/server/owner/invitations';
-import { readPlantName } from '$lib/server/owner/plant-name';
 import { listCustomers } from '$lib/server/settings/customers';
+import { mailFromFor, mailFooterFor, plantIdentity } from '$lib/server/settings/plant-identity';
 import type { Actions, PageServerLoad } from './$types';
 
-function mailConfig(): InvitationMailConfig {
+async function mailConfig(): Promise<InvitationMailConfig> {
 	const notices = readNoticeConfig(env);
+	const plant = await plantIdentity(getDb());
 	return {
 		smtpUrl: notices.smtpUrl,
-		from: notices.from,
+		from: mailFromFor(plant, notices.from),
 		origin: notices.origin,
-		plantName: readPlantName(env)
+		plantName: plant.name,
+		footer: mailFooterFor(plant)
 	};
 }
 
@@ -59,7 +61,7 @@ export const actions: Actions = {
 		const delivery = await deliverInvitation(
 			db,
 			{ ...created, name: form.data.name },
-			mailConfig()
+			await mailConfig()
 		);
 		const outcome: InviteOutcome = {
 			email: created.email,
@@ -77,7 +79,7 @@ export const actions: Actions = {
 		const db = getDb();
 		const renewed = await renewInvitation(db, id, admin.id);
 		if (!renewed.ok) return fail(404, { listError: renewed.message });
-		const delivery = await deliverInvitation(db, renewed, mailConfig());
+		const delivery = await deliverInvitation(db, renewed, await mailConfig());
 		const outcome: InviteOutcome = {
 			email: renewed.email,
 			link: delivery.link,

@@ -1,25 +1,19 @@
-import { error } from '@sveltejs/kit';
-import { env } from '$env/dynamic/private';
 import { getDb } from '$lib/server/db';
 import { requireOwner } from '$lib/server/owner/guard';
-import { readPlantName } from '$lib/server/owner/plant-name';
-import { getOwnerStatement } from '$lib/server/owner/statement';
-import { renderStatementPdf } from '$lib/server/owner/statement-pdf';
-import { plantDate } from '$lib/plant-time';
+import { statementFileName } from '$lib/server/owner/statement-csv';
+import { renderPeriodStatementPdf } from '$lib/server/owner/statement-pdf';
+import { readPlantLogo, statementForRequest } from '$lib/server/owner/statement-request';
 import type { RequestHandler } from './$types';
 
-// The owner's tooling statement as a PDF to file: only its own dies, as of now.
+// The owner's statement for a period (or one issued before, by reference) as a PDF: own dies only.
 export const GET: RequestHandler = async (event) => {
-	const { customerId } = requireOwner(event);
-	const statement = await getOwnerStatement(getDb(), customerId);
-	if (!statement) error(404, { message: 'There is no statement for your account.' });
-	const plantName = readPlantName(env);
-	const pdf = await renderStatementPdf(statement, plantName);
-	const name = `tooling-statement-${statement.customer.code}-${plantDate(statement.asOf)}.pdf`;
+	const { user, customerId } = requireOwner(event);
+	const statement = await statementForRequest(getDb(), event, customerId, user.id);
+	const pdf = await renderPeriodStatementPdf(statement, await readPlantLogo(statement.plant));
 	return new Response(new Uint8Array(pdf), {
 		headers: {
 			'content-type': 'application/pdf',
-			'content-disposition': `attachment; filename="${name.replace(/[^\w.-]/g, '_')}"`,
+			'content-disposition': `attachment; filename="${statementFileName(statement, 'pdf')}"`,
 			'cache-control': 'private, no-store'
 		}
 	});

@@ -1,9 +1,8 @@
 import { error } from '@sveltejs/kit';
-import { env } from '$env/dynamic/private';
 import { requireRole } from '$lib/server/auth/guard';
 import { getDb } from '$lib/server/db';
-import { readPlantName } from '$lib/server/owner/plant-name';
 import { getUploadDir } from '$lib/server/photos/upload-dir';
+import { plantIdentity } from '$lib/server/settings/plant-identity';
 import { TOOLROOM_READERS } from '$lib/server/toolroom/access';
 import { getJobReport, renderJobReportPdf } from '$lib/server/toolroom/job-report';
 import { getJob } from '$lib/server/toolroom/jobs';
@@ -15,7 +14,7 @@ export const GET: RequestHandler = async (event) => {
 	const job = await getJob(getDb(), event.params.job);
 	if (!job) error(404, { message: `There is no toolroom job ${event.params.job}.` });
 	const report = await getJobReport(getDb(), job, getUploadDir());
-	const pdf = await renderJobReportPdf(report, readPlantName(env));
+	const pdf = await renderJobReportPdf(report, (await plantIdentity(getDb())).name);
 	return new Response(new Uint8Array(pdf), {
 		headers: {
 			'content-type': 'application/pdf',

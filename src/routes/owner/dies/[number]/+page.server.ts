@@ -8,6 +8,7 @@ import { getDb } from '$lib/server/db';
 import { dieLife } from '$lib/server/dies/die-detail';
 import { findOwnerDie, getOwnerDieStory } from '$lib/server/owner/die-page';
 import { requireOwner } from '$lib/server/owner/guard';
+import { lastServiceText } from '$lib/server/owner/service-history';
 import { nowIso } from '$lib/server/time';
 import type { Actions, PageServerLoad } from './$types';
 
@@ -44,7 +45,9 @@ export const load: PageServerLoad = async (event) => {
 		life,
 		...story,
 		decisions,
-		answerForm
+		answerForm,
+		// The same words as the statement PDF and CSV (service-history.ts).
+		lastService: lastServiceText(story.history.last)
 	};
 };
 
