@@ -17,6 +17,7 @@ import * as addAccountSafeguards from './2026_12_03_1601_add_account_safeguards'
 import * as createImportTables from './2026_12_03_1701_create_import_tables';
 import * as createPressFeed from './2026_12_03_1800_create_press_feed';
 import * as scopeIdempotencyKeys from './2026_12_03_1900_scope_idempotency_keys';
+import * as addBookingPlan from './2026_12_03_2001_add_booking_plan';
 
 // Every migration is listed here by name so the same list works in the built app, in Vitest and
 // in tsx scripts (none of which share a way to glob the folder). Add new ones at the end.
@@ -38,5 +39,6 @@ export const migrations: Record<string, Migration> = {
 	'2026_12_03_1601_add_account_safeguards': addAccountSafeguards,
 	'2026_12_03_1701_create_import_tables': createImportTables,
 	'2026_12_03_1800_create_press_feed': createPressFeed,
-	'2026_12_03_1900_scope_idempotency_keys': scopeIdempotencyKeys
+	'2026_12_03_1900_scope_idempotency_keys': scopeIdempotencyKeys,
+	'2026_12_03_2001_add_booking_plan': addBookingPlan
 };
