@@ -19,6 +19,13 @@ export function bookingRefusal(result: Exclude<CreateBookingResult, { ok: true }
 	if (result.kind === 'invalid') {
 		return new ApiError(400, result.message, [{ field: result.field, message: result.message }]);
 	}
+	if (result.kind === 'gone') {
+		return new ApiError(result.status, result.message);
+	}
+	if (result.kind === 'review') {
+		// The API is never asked to show the run back first; kept so every refusal has an answer.
+		return new ApiError(409, 'Read the worked-out run and send the booking again.');
+	}
 	if (result.kind === 'blocked') {
 		const first = result.blocks[0].message;
 		const more = result.blocks.length > 1 ? ` (and ${result.blocks.length - 1} more)` : '';
