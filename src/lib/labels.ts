@@ -148,6 +148,8 @@ export const VERDICT_LABELS = {
 	warning: 'Fits with warnings',
 	blocked: 'Blocked'
 } as const;
+/** The shape that goes with each verdict word (never colour alone). */
+export const VERDICT_SHAPES = { fits: '✓', warning: '!', blocked: '✕' } as const;
 // Why a die was retired; only worn out and cracked beyond repair are wear failures in the fleet fit.
 export const RETIREMENT_REASON_LABELS = {
 	worn_out: 'Worn out',
