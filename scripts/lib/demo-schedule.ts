@@ -102,7 +102,8 @@ export async function seedScheduleDemo(db: DB, now: Date): Promise<ScheduleSeedS
 				parts: partsFor(die, hours, press),
 				scrapPct: die.family === 'aluminium' ? 4 : 2,
 				shotsPerHour: defaultShotsPerHour(die.family),
-				orderRef: `SO-${order}`
+				orderRef: `SO-${order}`,
+				endReason: 'Booked to whole shifts'
 			};
 			let result = await createBooking(db, input, actor, { confirm: false, now: nowIso });
 			// A planner books past a warning now and then (the planner home then lists the run as at
@@ -137,7 +138,8 @@ export async function seedScheduleDemo(db: DB, now: Date): Promise<ScheduleSeedS
 				parts: partsFor(die, 16, press),
 				scrapPct: 3,
 				shotsPerHour: defaultShotsPerHour(die.family),
-				orderRef: `SO-${3900 + i}`
+				orderRef: `SO-${3900 + i}`,
+				endReason: 'Booked to whole shifts'
 			},
 			actor,
 			{ confirm: true, now: pastNow }

@@ -252,12 +252,15 @@ export const draft = (
 		scrapPct: number;
 		shotsPerHour: number | null;
 		orderRef: string;
+		endReason: string | null;
 	}> = {}
 ) => ({
 	die: 'Z-1',
 	press: 'HC-20',
 	startsAt: at(7, 6),
 	endsAt: at(7, 22),
+	// These tests book fixed windows rather than the worked-out end, which needs a reason.
+	endReason: 'Booked as a fixed shift window',
 	parts: 4000,
 	scrapPct: 0,
 	shotsPerHour: 300,

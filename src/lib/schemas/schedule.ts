@@ -2,7 +2,7 @@ import { z } from 'zod';
 import { readPlantDateTime, toPlantInput } from '../plant-time';
 import { calendarFieldsValid } from '../calc/dates';
 import { MAX_PLAUSIBLE_SHOTS_PER_HOUR } from '../calc/life';
-import { decimalNumber, optionalDecimalNumber, wholeNumber } from './numbers';
+import { decimalNumber, optionalDecimalNumber, optionalWholeNumber, wholeNumber } from './numbers';
 
 // Optional text stays a string ('' when empty) so a form can round-trip it; the server stores
 // empty text as null.
@@ -58,9 +58,26 @@ export const pressFormSchema = z.object({
 	status: z
 		.enum(['available', 'down'], { error: 'Choose available or down.' })
 		.default('available'),
+	/** Minutes; empty means the plant default (common practice, see DEFAULT_CHANGEOVER). */
+	dieChangeMinutes: optionalWholeNumber({
+		min: [0, 'The die change cannot take less than 0 minutes.'],
+		max: [1440, 'More than 24 hours (1440 min) is not plausible for a die change.']
+	}).transform((v) => v ?? DEFAULT_CHANGEOVER.dieChangeMinutes),
+	preheatMinutes: optionalWholeNumber({
+		min: [0, 'Preheat cannot take less than 0 minutes.'],
+		max: [1440, 'More than 24 hours (1440 min) is not plausible for preheat.']
+	}).transform((v) => v ?? DEFAULT_CHANGEOVER.preheatMinutes),
+	shotsPerHour: optionalPositive('usual shots per hour', MAX_PLAUSIBLE_SHOTS_PER_HOUR),
 	notes: optionalText(1000)
 });
 export type PressForm = z.infer<typeof pressFormSchema>;
+
+/**
+ * Die change and preheat before a run when the press has none of its own, minutes: 90 min to
+ * change a die and 60 min to bring it to temperature (common practice for a mid-size press; the
+ * same values the migration gave existing presses).
+ */
+export const DEFAULT_CHANGEOVER = { dieChangeMinutes: 90, preheatMinutes: 60 } as const;
 
 const DATE_TIME =
 	/^(\d{4}-\d{2}-\d{2})[T ](\d{2}:\d{2}(?::\d{2}(?:\.\d{1,3})?)?)(Z|[+-]\d{2}:\d{2})?$/;
