@@ -530,7 +530,7 @@ export async function listBookingHistory(
 			'api_tokens.name as tokenName'
 		])
 		.where('c.booking_id', '=', bookingId)
-		.orderBy('c.changed_at')
+		// Written in order, so the id is the order of the changes.
 		.orderBy('c.id')
 		.execute();
 	return rows.map((r) => ({
