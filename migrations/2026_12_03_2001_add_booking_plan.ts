@@ -40,7 +40,7 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addColumn('changes', 'text', (c) => c.notNull())
 		.addColumn('verdict_before', 'text')
 		.addColumn('verdict_after', 'text', (c) => c.notNull())
-		// JSON array of the reason sentences behind verdict_after.
+		// JSON array of the reasons behind verdict_after: [{ code, message }].
 		.addColumn('reasons_after', 'text', (c) => c.notNull().defaultTo('[]'))
 		.execute();
 	await db.schema

@@ -409,3 +409,93 @@ describe('the form and the API give the same answer', () => {
 		expect(history[1].verdictAfter).toBe('warning');
 	});
 });
+
+describe('the planner home', () => {
+	test('blocked, unconfirmed warnings and service-first come from the verdict, five at most', async () => {
+		const { listPlannerDecisions } = await import('../../src/lib/server/schedule/planner');
+		// Booked clean on day 3; a cooling flush then falls due 2027-03-08 00:00, inside a run
+		// booked on day 6 from 20:00, whose warning the planner accepted when booking.
+		const clean = await createBooking(db, order({ startsAt: at(3, 6), orderRef: 'PO-C' }), actor, {
+			confirm: false,
+			now: NOW
+		});
+		await addTask(db, 'Z-1', { kind: 'cooling_flush', intervalDays: 90, daysAgo: 83 });
+		const accepted = await createBooking(
+			db,
+			order({ startsAt: at(6, 20), orderRef: 'PO-W' }),
+			actor,
+			{ confirm: ['service_due'], now: NOW }
+		);
+		if (!clean.ok || !accepted.ok) throw new Error('not booked');
+		// The clean booking is still clean (it ends before the due day): nothing unconfirmed yet.
+		let d = await listPlannerDecisions(db, 14, NOW);
+		expect(d.unconfirmed.rows.map((r) => r.orderRef)).toEqual([]);
+		expect(d.serviceFirst.rows).toEqual([]); // the die's first booking (PO-C) carries no service warning
+		// Now the task is 3 days further on: due 2027-03-05 00:00, inside nothing booked yet but
+		// before PO-W — which was accepted for a service coming due *during* it, and now has it due
+		// *before* it starts: still the same kind of warning (service_due), so still accepted.
+		await db
+			.updateTable('service_tasks')
+			.set({ last_done_at: '2026-12-05T08:00:00.000Z' })
+			.execute();
+		d = await listPlannerDecisions(db, 14, NOW);
+		expect(d.unconfirmed.total).toBe(0);
+		// A held die makes every one of its bookings blocked.
+		await db.updateTable('dies').set({ status: 'held' }).where('number', '=', 'Z-1').execute();
+		d = await listPlannerDecisions(db, 14, NOW);
+		expect(d.blocked.rows.map((r) => [r.orderRef, r.verdict])).toEqual([
+			['PO-C', 'blocked'],
+			['PO-W', 'blocked']
+		]);
+		await db.updateTable('dies').set({ status: 'ready' }).where('number', '=', 'Z-1').execute();
+		// A warning of another kind on PO-C (a rate outside zinc's 300–450 shots/h) was never
+		// accepted: listed as unconfirmed.
+		await db
+			.updateTable('press_bookings')
+			.set({ shots_per_hour: 120 })
+			.where('order_ref', '=', 'PO-C')
+			.execute();
+		d = await listPlannerDecisions(db, 14, NOW);
+		expect(d.unconfirmed.rows.map((r) => r.orderRef)).toEqual(['PO-C']);
+		// Seven more bookings at that rate, written directly (as before bookings kept a history, so
+		// nothing was accepted): eight unconfirmed in all, five shown, the rest behind "All 8".
+		for (let day = 9; day < 16; day++) {
+			await db
+				.insertInto('press_bookings')
+				.values({
+					die_id: (
+						await db
+							.selectFrom('dies')
+							.select('id')
+							.where('number', '=', 'Z-1')
+							.executeTakeFirstOrThrow()
+					).id,
+					machine_id: (
+						await db
+							.selectFrom('machines')
+							.select('id')
+							.where('name', '=', 'HC-20')
+							.executeTakeFirstOrThrow()
+					).id,
+					starts_at: at(day - 1, 1),
+					ends_at: at(day - 1, 23),
+					order_ref: `PO-X${day}`,
+					parts: 100,
+					scrap_pct: 2,
+					shots_per_hour: 120,
+					created_by: PLANNER,
+					created_at: NOW,
+					cancelled_at: null,
+					cancelled_by: null,
+					cancel_reason: null,
+					notes: null,
+					end_reason: 'Legacy row'
+				})
+				.execute();
+		}
+		d = await listPlannerDecisions(db, 14, NOW);
+		expect(d.unconfirmed.total).toBe(8);
+		expect(d.unconfirmed.rows).toHaveLength(5);
+		expect(d.all('unconfirmed').rows).toHaveLength(8);
+	});
+});

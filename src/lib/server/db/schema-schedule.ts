@@ -42,7 +42,7 @@ export interface BookingChangesTable {
 	changes: string;
 	verdict_before: 'fits' | 'warning' | 'blocked' | null;
 	verdict_after: 'fits' | 'warning' | 'blocked';
-	/** JSON array of the reason sentences behind verdict_after. */
+	/** JSON array of the reasons behind verdict_after: [{ code, message }]. */
 	reasons_after: Generated<string>;
 }
 

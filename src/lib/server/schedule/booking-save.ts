@@ -224,7 +224,10 @@ async function recordChange(
 			verdict_before: row.before,
 			verdict_after: row.after.verdict,
 			reasons_after: JSON.stringify(
-				[...row.after.blocks, ...row.after.warnings].map((c) => c.message)
+				[...row.after.blocks, ...row.after.warnings].map((c) => ({
+					code: c.code,
+					message: c.message
+				}))
 			)
 		})
 		.execute();
@@ -507,6 +510,7 @@ export interface BookingHistoryEntry {
 	verdictBefore: Verdict | null;
 	verdictAfter: Verdict;
 	reasonsAfter: string[];
+	reasonCodesAfter: string[];
 }
 
 /** A booking's history, oldest first: who changed what, when, and the verdict before and after. */
@@ -541,6 +545,7 @@ export async function listBookingHistory(
 		changes: JSON.parse(r.changes) as Record<string, unknown>,
 		verdictBefore: r.verdict_before,
 		verdictAfter: r.verdict_after,
-		reasonsAfter: JSON.parse(r.reasons_after) as string[]
+		reasonsAfter: (JSON.parse(r.reasons_after) as { message: string }[]).map((c) => c.message),
+		reasonCodesAfter: (JSON.parse(r.reasons_after) as { code: string }[]).map((c) => c.code)
 	}));
 }
