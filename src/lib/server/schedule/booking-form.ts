@@ -118,15 +118,18 @@ function outcomeOf(result: SaveBookingResult): SubmitOutcome {
 	const plan = result.plan;
 	const shownEndsAt = toLocalInput(plan.endsAt);
 	if (result.kind === 'review') {
+		// Warnings come with the run, so the planner can accept them on the next send.
 		return {
 			ok: false,
 			field: null,
 			status: 200,
-			confirmedWarnings: '',
+			confirmedWarnings: plan.warnings.map((w) => w.code).join(','),
 			shownEndsAt,
 			message: {
 				kind: 'review',
-				text: 'Read the worked-out run below, then save.',
+				text: plan.warnings.length
+					? 'Read the worked-out run and the warnings below. Tick the box to save regardless.'
+					: 'Read the worked-out run below, then save.',
 				blocks: plan.blocks,
 				warnings: plan.warnings,
 				plan

@@ -171,6 +171,9 @@ async function judgeBooking(
 	if (!ev.ok) return { ok: false, kind: 'invalid', field: ev.field, message: ev.message };
 	if (!ev.press) return { ok: false, kind: 'invalid', field: 'press', message: 'Choose a press.' };
 	const plan = planOf(ev, input);
+	if (ev.blocks.length > 0) {
+		return { ok: false, kind: 'blocked', blocks: ev.blocks, warnings: ev.warnings, plan };
+	}
 	const reason = input.endReason?.trim() || null;
 	if (plan.endOverridden && !reason) {
 		return {
@@ -190,9 +193,6 @@ async function judgeBooking(
 	}
 	if (options.shownEndsAt !== undefined && options.shownEndsAt !== ev.endsAt) {
 		return { ok: false, kind: 'review', plan };
-	}
-	if (ev.blocks.length > 0) {
-		return { ok: false, kind: 'blocked', blocks: ev.blocks, warnings: ev.warnings, plan };
 	}
 	if (!warningsAccepted(ev.warnings, options.confirm)) {
 		return { ok: false, kind: 'confirm', warnings: ev.warnings, plan };
