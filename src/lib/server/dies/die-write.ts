@@ -47,7 +47,8 @@ function registerColumns(form: DieForm) {
 		metal_pressure_bar: metalPressureBarOf(form),
 		location: form.location || null,
 		notes: form.notes || null,
-		expected_life_shots: form.expectedLifeShots ?? null
+		expected_life_shots: form.expectedLifeShots ?? null,
+		shots_per_hour: form.plannedShotsPerHour ?? null
 	};
 }
 

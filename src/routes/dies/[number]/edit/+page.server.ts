@@ -36,7 +36,8 @@ export const load: PageServerLoad = async (event) => {
 				metalPressureUnit: us ? 'psi' : 'bar',
 				location: die.location ?? undefined,
 				notes: die.notes ?? undefined,
-				expectedLifeShots: die.expected_life_shots ?? undefined
+				expectedLifeShots: die.expected_life_shots ?? undefined,
+				plannedShotsPerHour: die.shots_per_hour ?? undefined
 			},
 			zod4(dieFormSchema)
 		),
