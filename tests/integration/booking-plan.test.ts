@@ -10,7 +10,7 @@ import {
 } from '../../src/lib/server/schedule/bookings';
 import { submitBookingForm } from '../../src/lib/server/schedule/booking-form';
 import { bookingFormSchema } from '../../src/lib/schemas/schedule';
-import { actor, addTask, at, NOW, openScheduleDb, PLANNER } from './schedule-support';
+import { actor, addTask, at, dieId, NOW, openScheduleDb, PLANNER } from './schedule-support';
 
 const current: { db: DB | null } = { db: null };
 vi.mock('$lib/server/db', () => ({ getDb: () => current.db }));
@@ -459,24 +459,20 @@ describe('the planner home', () => {
 		expect(d.unconfirmed.rows.map((r) => r.orderRef)).toEqual(['PO-C']);
 		// Seven more bookings at that rate, written directly (as before bookings kept a history, so
 		// nothing was accepted): eight unconfirmed in all, five shown, the rest behind "All 8".
+		const z1 = await dieId(db, 'Z-1');
+		const hc20 = (
+			await db
+				.selectFrom('machines')
+				.select('id')
+				.where('name', '=', 'HC-20')
+				.executeTakeFirstOrThrow()
+		).id;
 		for (let day = 9; day < 16; day++) {
 			await db
 				.insertInto('press_bookings')
 				.values({
-					die_id: (
-						await db
-							.selectFrom('dies')
-							.select('id')
-							.where('number', '=', 'Z-1')
-							.executeTakeFirstOrThrow()
-					).id,
-					machine_id: (
-						await db
-							.selectFrom('machines')
-							.select('id')
-							.where('name', '=', 'HC-20')
-							.executeTakeFirstOrThrow()
-					).id,
+					die_id: z1,
+					machine_id: hc20,
 					starts_at: at(day - 1, 1),
 					ends_at: at(day - 1, 23),
 					order_ref: `PO-X${day}`,

@@ -269,17 +269,7 @@ export async function createBooking(
 			})
 			.returning('id')
 			.executeTakeFirstOrThrow();
-		const fields = rowFields({
-			press: plan.press,
-			starts_at: ev.startsAt,
-			ends_at: ev.endsAt,
-			parts: input.parts,
-			scrap_pct: input.scrapPct,
-			shots_per_hour: ev.shotsPerHour,
-			order_ref: input.orderRef,
-			notes: input.notes || null,
-			end_reason: judged.endReason
-		});
+		const fields = rowFields(fieldsAfter(judged, input));
 		await recordChange(trx, {
 			bookingId: row.id,
 			actor,
@@ -337,6 +327,21 @@ const HISTORY_FIELDS: Record<keyof BookingFields, string> = {
 	notes: 'notes',
 	end_reason: 'end reason'
 };
+
+/** The booking's fields as a judged write leaves them. */
+function fieldsAfter(judged: Extract<Judged, { ok: true }>, input: NewBookingInput): BookingFields {
+	return {
+		press: judged.plan.press,
+		starts_at: judged.ev.startsAt,
+		ends_at: judged.ev.endsAt,
+		parts: input.parts,
+		scrap_pct: input.scrapPct,
+		shots_per_hour: judged.ev.shotsPerHour,
+		order_ref: input.orderRef,
+		notes: input.notes || null,
+		end_reason: judged.endReason
+	};
+}
 
 function rowFields(f: BookingFields): Record<string, unknown> {
 	return Object.fromEntries(
@@ -436,17 +441,7 @@ export async function updateBooking(
 			notes: current.notes,
 			end_reason: current.end_reason
 		};
-		const after: BookingFields = {
-			press: plan.press,
-			starts_at: ev.startsAt,
-			ends_at: ev.endsAt,
-			parts: input.parts,
-			scrap_pct: input.scrapPct,
-			shots_per_hour: ev.shotsPerHour,
-			order_ref: input.orderRef,
-			notes: input.notes || null,
-			end_reason: judged.endReason
-		};
+		const after = fieldsAfter(judged, input);
 		const changes = diffFields(before, after);
 		if (Object.keys(changes).length === 0) {
 			return { ok: true, id, warnings: ev.warnings, plan, changed: [] };
