@@ -18,6 +18,7 @@ import * as createImportTables from './2026_12_03_1701_create_import_tables';
 import * as createPressFeed from './2026_12_03_1800_create_press_feed';
 import * as scopeIdempotencyKeys from './2026_12_03_1900_scope_idempotency_keys';
 import * as addReplacementLeadTime from './2026_12_03_1950_add_replacement_lead_time';
+import * as addBookingPlan from './2026_12_03_2001_add_booking_plan';
 import * as createServiceWindows from './2026_12_03_2101_create_service_windows';
 import * as createJobEntries from './2026_12_03_2301_create_job_entries';
 import * as addPlantIdentity from './2026_12_04_0101_add_plant_identity';
@@ -47,6 +48,7 @@ export const migrations: Record<string, Migration> = {
 	'2026_12_03_1800_create_press_feed': createPressFeed,
 	'2026_12_03_1900_scope_idempotency_keys': scopeIdempotencyKeys,
 	'2026_12_03_1950_add_replacement_lead_time': addReplacementLeadTime,
+	'2026_12_03_2001_add_booking_plan': addBookingPlan,
 	'2026_12_03_2101_create_service_windows': createServiceWindows,
 	'2026_12_03_2301_create_job_entries': createJobEntries,
 	'2026_12_04_0101_add_plant_identity': addPlantIdentity,

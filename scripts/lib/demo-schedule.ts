@@ -29,9 +29,17 @@ function fits(
 	return !blocked && dieClampRequirement(die).requiredKn <= press.clamp_force_kn;
 }
 
-/** Parts for a run of `hours` at the alloy's usual rate, a little under capacity, in hundreds. */
-function partsFor(die: DieFacts, hours: number) {
-	const shots = hours * defaultShotsPerHour(die.family) * 0.85;
+/**
+ * Parts for a booking of `hours` at the alloy's usual rate, a little under capacity, in hundreds;
+ * the press's die change and preheat come out of the booked time first.
+ */
+function partsFor(
+	die: DieFacts,
+	hours: number,
+	press: { die_change_minutes: number; preheat_minutes: number }
+) {
+	const casting = hours - (press.die_change_minutes + press.preheat_minutes) / 60;
+	const shots = casting * defaultShotsPerHour(die.family) * 0.85;
 	return Math.max(100, Math.floor((shots * die.cavities * 0.97) / 100) * 100);
 }
 
@@ -91,10 +99,11 @@ export async function seedScheduleDemo(db: DB, now: Date): Promise<ScheduleSeedS
 				press: press.name,
 				startsAt: new Date(start).toISOString(),
 				endsAt: new Date(end).toISOString(),
-				parts: partsFor(die, hours),
+				parts: partsFor(die, hours, press),
 				scrapPct: die.family === 'aluminium' ? 4 : 2,
 				shotsPerHour: defaultShotsPerHour(die.family),
-				orderRef: `SO-${order}`
+				orderRef: `SO-${order}`,
+				endReason: 'Booked to whole shifts'
 			};
 			let result = await createBooking(db, input, actor, { confirm: false, now: nowIso });
 			// A planner books past a warning now and then (the planner home then lists the run as at
@@ -126,10 +135,11 @@ export async function seedScheduleDemo(db: DB, now: Date): Promise<ScheduleSeedS
 				press: press.name,
 				startsAt: new Date(start).toISOString(),
 				endsAt: new Date(start + 16 * HOUR_MS).toISOString(),
-				parts: partsFor(die, 16),
+				parts: partsFor(die, 16, press),
 				scrapPct: 3,
 				shotsPerHour: defaultShotsPerHour(die.family),
-				orderRef: `SO-${3900 + i}`
+				orderRef: `SO-${3900 + i}`,
+				endReason: 'Booked to whole shifts'
 			},
 			actor,
 			{ confirm: true, now: pastNow }
@@ -166,7 +176,7 @@ export async function seedScheduleDemo(db: DB, now: Date): Promise<ScheduleSeedS
 				starts_at: startsAt,
 				ends_at: endsAt,
 				order_ref: 'SO-4099',
-				parts: partsFor(facts!, 16),
+				parts: partsFor(facts!, 16, press),
 				scrap_pct: 3,
 				shots_per_hour: defaultShotsPerHour(facts!.family),
 				created_by: actor.userId,

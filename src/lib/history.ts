@@ -107,6 +107,11 @@ export function describeHistoryEntry(h: HistoryEntry): string {
 			return `Booked on ${text(d.press)}${d.order ? ` for ${text(d.order)}` : ''}`;
 		case 'booking.cancel':
 			return `Booking cancelled${reason(d)}`;
+		case 'booking.edit': {
+			const after = (d.after ?? {}) as Record<string, unknown>;
+			const fields = Object.keys(after).join(', ');
+			return `Booking${d.order ? ` ${text(d.order)}` : ''} changed${fields ? `: ${fields}` : ''}`;
+		}
 		case 'photo.add':
 			return `${Number(d.count) || 1} photo${Number(d.count) === 1 ? '' : 's'} added${d.to ? ` to ${text(d.to)}` : ''}`;
 		case 'window.reserve':

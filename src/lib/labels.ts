@@ -125,6 +125,7 @@ export const AUDIT_ACTION_LABELS: Record<string, string> = {
 	'cooling.correct': 'Cooling check corrected',
 	'booking.create': 'Press booking made',
 	'booking.cancel': 'Press booking cancelled',
+	'booking.edit': 'Press booking changed',
 	'photo.add': 'Photos added',
 	'photo.share': 'Photo sharing changed',
 	'zone.add': 'Surface zone listed',
@@ -141,12 +142,24 @@ export const AUDIT_ACTION_LABELS: Record<string, string> = {
 	'owner.decision_answered': 'Owner answered',
 	'photo.caption': 'Photo caption changed'
 };
+/** Where a run's planned rate came from (planRate in lib/server/schedule/die-facts.ts). */
+export const RATE_SOURCE_LABELS = {
+	order: 'as planned for this order',
+	die: 'the die’s own rate',
+	press: 'the press’s usual rate',
+	alloy: 'middle of the alloy’s usual range (NADCA)'
+} as const;
+/** Shown where a booking's start is set: the die change and preheat are hot, heavy work. */
+export const CHANGEOVER_CAUTION =
+	'Die change and preheat are hot, heavy work: dies and platens stay hot for hours and hydraulics hold stored energy. The press is locked out while the die is changed, and the plant’s procedures and local codes decide.';
 // Verdicts of the order check and the booking form (one judge: lib/server/schedule/verdict.ts).
 export const VERDICT_LABELS = {
 	fits: 'Fits',
 	warning: 'Fits with warnings',
 	blocked: 'Blocked'
 } as const;
+/** The shape that goes with each verdict word (never colour alone). */
+export const VERDICT_SHAPES = { fits: '✓', warning: '!', blocked: '✕' } as const;
 // Why a die was retired; only worn out and cracked beyond repair are wear failures in the fleet fit.
 export const RETIREMENT_REASON_LABELS = {
 	worn_out: 'Worn out',

@@ -183,6 +183,30 @@ describe('die register', () => {
 		expect((await findDie(db, 'D-0001', { customerId: null }))!.cavities).toBe(3);
 	});
 
+	test('a die’s own planned rate is kept, and a rate of 0 is refused with a message', async () => {
+		const d = (await findDie(db, 'D-0001', { customerId: null }))!;
+		const fields = {
+			number: 'D-0001',
+			partName: d.part_name,
+			customerId: 1,
+			alloyId: d.alloy_id,
+			process: d.process,
+			cavities: d.cavities,
+			projectedAreaCm2: d.projected_area_cm2
+		};
+		const zero = dieFormSchema.safeParse({ ...fields, plannedShotsPerHour: '0' });
+		expect(zero.success).toBe(false);
+		expect(zero.error?.issues.map((i) => [i.path.join('.'), i.message])).toEqual([
+			['plannedShotsPerHour', 'The planned rate must be above 0.']
+		]);
+		const form = dieFormSchema.parse({ ...fields, plannedShotsPerHour: '320' });
+		expect(await updateDie(db, d.id, form, admin)).toEqual({ ok: true, number: 'D-0001' });
+		expect((await findDie(db, 'D-0001', { customerId: null }))!.shots_per_hour).toBe(320);
+		// Left empty on the next edit: back to none (the press's or the alloy's rate applies).
+		await updateDie(db, d.id, dieFormSchema.parse(fields), admin);
+		expect((await findDie(db, 'D-0001', { customerId: null }))!.shots_per_hour).toBeNull();
+	});
+
 	test('status changes are audited with the reason; retired is final', async () => {
 		const d = (await findDie(db, 'D-0001', { customerId: null }))!;
 		expect(await changeDieStatus(db, d, 'held', 'Porosity complaint', admin)).toEqual({ ok: true });

@@ -341,13 +341,14 @@ describe('warnings, each with its message', () => {
 	test('a service task coming due inside the booking (shot interval)', async () => {
 		await addTask(db, 'Z-1', { kind: 'stress_relief', intervalShots: 25_000, leftShots: 1500 });
 		const ev = await checks({ startsAt: at(7, 6), endsAt: at(7, 22) });
-		// 1500 shots left of a 2000-shot run at 300/h: due 5 h into the run.
+		// 1500 shots left of a 2000-shot run at 300/h: due 5 h after the first shot, which comes
+		// after HC-20's 30 min die change + 30 min preheat: 06:00 + 1 h + 5 h = 12:00.
 		expect(ev.warnings).toEqual([
 			{
 				code: 'service_due',
 				level: 'warn',
 				message:
-					"Stress relief comes due during this run, around 2027-03-08 11:00, after about 1,500 of the run's 2,000 shots.",
+					"Stress relief comes due during this run, around 2027-03-08 12:00, after about 1,500 of the run's 2,000 shots.",
 				number: 1500
 			}
 		]);
@@ -412,9 +413,10 @@ describe('warnings, each with its message', () => {
 			{
 				code: 'too_short',
 				level: 'warn',
+				// 4 h booked less HC-20's 60 min die change and preheat = 3 h × 300 shots/h = 900 shots.
 				message:
-					'The booked 4 h at 300 shots per hour give about 1,200 shots; the order needs 2,000. Book more time or plan a faster rate.',
-				number: 1200
+					'The booked 4 h less 60 min die change and preheat at 300 shots per hour give about 900 shots; the order needs 2,000. Book more time or plan a faster rate.',
+				number: 900
 			}
 		]);
 	});

@@ -79,6 +79,9 @@ export const DIES: DieSeed[] = [
 	}
 ];
 
+/** The migration's default for presses: 90 min die change + 60 min preheat (common practice). */
+const CHANGE = { die_change_minutes: 90, preheat_minutes: 60 };
+
 export async function openScheduleDb(): Promise<DB> {
 	const db = await openTestDatabase();
 	await db
@@ -112,14 +115,24 @@ export async function openScheduleDb(): Promise<DB> {
 	await db
 		.insertInto('machines')
 		.values([
-			{ name: 'HC-20', chamber: 'hot', clamp_force_kn: 1961, status: 'available' },
-			{ name: 'CC-40', chamber: 'cold', clamp_force_kn: 3923, status: 'available' },
-			{ name: 'CC-160', chamber: 'cold', clamp_force_kn: 15691, status: 'available' },
+			// A small hot-chamber press with a quick die change: 30 min change + 30 min preheat
+			// (invented fixture values); the other presses keep the 90 + 60 min default.
+			{
+				name: 'HC-20',
+				chamber: 'hot',
+				clamp_force_kn: 1961,
+				status: 'available',
+				die_change_minutes: 30,
+				preheat_minutes: 30
+			},
+			{ name: 'CC-40', chamber: 'cold', clamp_force_kn: 3923, status: 'available', ...CHANGE },
+			{ name: 'CC-160', chamber: 'cold', clamp_force_kn: 15691, status: 'available', ...CHANGE },
 			{
 				name: 'CC-84',
 				chamber: 'cold',
 				clamp_force_kn: 8238,
 				status: 'down',
+				...CHANGE,
 				notes: 'Hydraulic pump rebuild'
 			}
 		])
@@ -239,12 +252,15 @@ export const draft = (
 		scrapPct: number;
 		shotsPerHour: number | null;
 		orderRef: string;
+		endReason: string | null;
 	}> = {}
 ) => ({
 	die: 'Z-1',
 	press: 'HC-20',
 	startsAt: at(7, 6),
 	endsAt: at(7, 22),
+	// These tests book fixed windows rather than the worked-out end, which needs a reason.
+	endReason: 'Booked as a fixed shift window',
 	parts: 4000,
 	scrapPct: 0,
 	shotsPerHour: 300,

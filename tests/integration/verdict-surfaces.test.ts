@@ -93,18 +93,37 @@ async function bookingFormVerdict(
 	const body = new FormData();
 	body.set('die', die);
 	body.set('press', press);
-	body.set('startsAt', from.slice(0, 16));
-	body.set('endsAt', until.slice(0, 16));
+	// The same start as the page's question (plant time).
+	body.set('startsAt', toPlantInput(from));
+	// No end: the form works it out (die change + preheat + press hours), as the page did.
 	body.set('orderRef', `PO-CHECK-${die}-${parts}`);
 	body.set('parts', String(parts));
 	const url = new URL(`${ORIGIN}/bookings/new`);
-	const request = new Request(url, { method: 'POST', body });
 	try {
+		// The form first shows the worked-out run back and saves nothing (a blocked run is refused
+		// at once, with the run); the second send, with the end that was shown, is the booking itself.
+		type Answer = {
+			form: {
+				data: { shownEndsAt: string };
+				message?: { kind: string; plan?: { endsAt: string } };
+			};
+		};
+		const first = await actions.default(
+			event(url, { request: new Request(url, { method: 'POST', body }) })
+		);
+		const shown = (isActionFailure(first) ? first.data : first) as unknown as Answer;
+		// The end the form shows back is the end the order-check page worked out.
+		expect(shown.form.message?.plan?.endsAt).toBe(until);
+		if (isActionFailure(first)) {
+			expect(shown.form.message?.kind).toBe('blocked');
+			return 'blocked';
+		}
+		expect(shown.form.message?.kind).toBe('review');
+		body.set('shownEndsAt', shown.form.data.shownEndsAt);
+		const request = new Request(url, { method: 'POST', body });
 		const result = await actions.default(event(url, { request }));
 		if (isActionFailure(result)) {
-			const kind = (result.data as unknown as { form: { message?: { kind: string } } }).form.message
-				?.kind;
-			if (kind === 'blocked') return 'blocked';
+			const kind = (result.data as unknown as Answer).form.message?.kind;
 			if (kind === 'confirm') return 'warning';
 		}
 		throw new Error(`Unexpected booking form answer: ${JSON.stringify(result)}`);

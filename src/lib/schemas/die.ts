@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { decimalNumber, optionalDecimalNumber, optionalWholeNumber, wholeNumber } from './numbers';
 import { RETIREMENT_REASONS } from '../domain';
+import { MAX_PLAUSIBLE_SHOTS_PER_HOUR } from '../calc/life';
 
 // Optional text stays a string ('' when empty) so the form can round-trip it; the server stores
 // empty text as null.
@@ -64,6 +65,14 @@ export const dieFormSchema = z
 		}).optional(),
 		metalPressureUnit: z.enum(PRESSURE_UNITS).optional(),
 		location: optionalText(60),
+		/** The die's own planned rate for bookings, shots per hour; empty: the press's or the alloy's. */
+		plannedShotsPerHour: optionalDecimalNumber({
+			gt: [0, 'The planned rate must be above 0.'],
+			max: [
+				MAX_PLAUSIBLE_SHOTS_PER_HOUR,
+				`More than ${MAX_PLAUSIBLE_SHOTS_PER_HOUR} shots per hour is not plausible.`
+			]
+		}).optional(),
 		notes: optionalText(2000),
 		expectedLifeShots: optionalWholeNumber({
 			min: [1, 'Expected life must be above 0.'],

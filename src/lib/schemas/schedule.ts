@@ -2,7 +2,7 @@ import { z } from 'zod';
 import { readPlantDateTime, toPlantInput } from '../plant-time';
 import { calendarFieldsValid } from '../calc/dates';
 import { MAX_PLAUSIBLE_SHOTS_PER_HOUR } from '../calc/life';
-import { decimalNumber, optionalDecimalNumber, wholeNumber } from './numbers';
+import { decimalNumber, optionalDecimalNumber, optionalWholeNumber, wholeNumber } from './numbers';
 
 // Optional text stays a string ('' when empty) so a form can round-trip it; the server stores
 // empty text as null.
@@ -58,9 +58,26 @@ export const pressFormSchema = z.object({
 	status: z
 		.enum(['available', 'down'], { error: 'Choose available or down.' })
 		.default('available'),
+	/** Minutes; empty means the plant default (common practice, see DEFAULT_CHANGEOVER). */
+	dieChangeMinutes: optionalWholeNumber({
+		min: [0, 'The die change cannot take less than 0 minutes.'],
+		max: [1440, 'More than 24 hours (1440 min) is not plausible for a die change.']
+	}).transform((v) => v ?? DEFAULT_CHANGEOVER.dieChangeMinutes),
+	preheatMinutes: optionalWholeNumber({
+		min: [0, 'Preheat cannot take less than 0 minutes.'],
+		max: [1440, 'More than 24 hours (1440 min) is not plausible for preheat.']
+	}).transform((v) => v ?? DEFAULT_CHANGEOVER.preheatMinutes),
+	shotsPerHour: optionalPositive('usual shots per hour', MAX_PLAUSIBLE_SHOTS_PER_HOUR),
 	notes: optionalText(1000)
 });
 export type PressForm = z.infer<typeof pressFormSchema>;
+
+/**
+ * Die change and preheat before a run when the press has none of its own, minutes: 90 min to
+ * change a die and 60 min to bring it to temperature (common practice for a mid-size press; the
+ * same values the migration gave existing presses).
+ */
+export const DEFAULT_CHANGEOVER = { dieChangeMinutes: 90, preheatMinutes: 60 } as const;
 
 const DATE_TIME =
 	/^(\d{4}-\d{2}-\d{2})[T ](\d{2}:\d{2}(?::\d{2}(?:\.\d{1,3})?)?)(Z|[+-]\d{2}:\d{2})?$/;
@@ -93,6 +110,17 @@ export const dateTimeField = (what: string) =>
 			`Give the ${what} as date and time, e.g. 2026-12-14T06:00.`
 		);
 
+/** Like dateTimeField, but empty means "not given". */
+const optionalDateTimeField = (what: string) =>
+	z
+		.string()
+		.trim()
+		.default('')
+		.refine(
+			(v) => v === '' || toUtcIso(v) !== null,
+			`Give the ${what} as date and time, e.g. 2026-12-14T06:00, or leave it empty.`
+		);
+
 const bookingFields = {
 	die: z
 		.string({ error: 'Enter the die number.' })
@@ -102,7 +130,10 @@ const bookingFields = {
 		.max(20, 'A die number has at most 20 characters.'),
 	press: z.string({ error: 'Choose the press.' }).trim().min(1, 'Choose the press.').max(20),
 	startsAt: dateTimeField('start'),
-	endsAt: dateTimeField('end'),
+	/** Empty: worked out from the run (die change + preheat + press hours). */
+	endsAt: optionalDateTimeField('end'),
+	/** Why the end differs from the worked-out one; required then (the server knows the end). */
+	endReason: optionalText(300),
 	orderRef: z
 		.string({ error: 'Enter the order reference.' })
 		.trim()
@@ -125,9 +156,8 @@ export const BOOKING_FUTURE_DAYS = 3 * 366;
 
 function checkWindow(v: { startsAt: string; endsAt: string }, ctx: z.RefinementCtx) {
 	const start = Date.parse(toUtcIso(v.startsAt) ?? '');
-	const end = Date.parse(toUtcIso(v.endsAt) ?? '');
-	// A bad date already has its own message.
-	if (!Number.isFinite(start) || !Number.isFinite(end)) return;
+	// A bad date already has its own message; an empty end is worked out (and checked) later.
+	if (!Number.isFinite(start)) return;
 	const now = Date.now();
 	if (
 		start < now - BOOKING_PAST_DAYS * 86_400_000 ||
@@ -140,6 +170,9 @@ function checkWindow(v: { startsAt: string; endsAt: string }, ctx: z.RefinementC
 		});
 		return;
 	}
+	if (v.endsAt === '') return;
+	const end = Date.parse(toUtcIso(v.endsAt) ?? '');
+	if (!Number.isFinite(end)) return;
 	if (!(end > start)) {
 		ctx.addIssue({ code: 'custom', path: ['endsAt'], message: 'The end must be after the start.' });
 	} else if (end - start > MAX_BOOKING_DAYS * 86_400_000) {
@@ -159,20 +192,60 @@ export const bookingFormSchema = z
 	.object({
 		...bookingFields,
 		confirm: z.boolean().default(false),
-		confirmedWarnings: z.string().max(400).default('')
+		confirmedWarnings: z.string().max(400).default(''),
+		/** The end the planner was shown (datetime-local, plant time); empty before the first look. */
+		shownEndsAt: z.string().trim().max(40).default('')
 	})
 	.superRefine(checkWindow);
 export type BookingForm = z.infer<typeof bookingFormSchema>;
 
 /**
  * `POST /api/v1/bookings`: warnings are accepted only with `"confirm": true`. Times with Z or an
- * offset, or plant time without one.
+ * offset, or plant time without one. Without `endsAt` the end is worked out; an `endsAt` other
+ * than the worked-out one needs `endReason`.
  */
 export const bookingApiSchema = z
 	.object({ ...bookingFields, confirm: z.boolean().default(false) })
 	.superRefine(checkWindow)
-	.transform((v) => ({ ...v, startsAt: toUtcIso(v.startsAt)!, endsAt: toUtcIso(v.endsAt)! }));
+	.transform((v) => ({
+		...v,
+		startsAt: toUtcIso(v.startsAt)!,
+		endsAt: v.endsAt ? toUtcIso(v.endsAt)! : null
+	}));
 export type BookingApiInput = z.infer<typeof bookingApiSchema>;
+
+/**
+ * `PATCH /api/v1/bookings/{id}`: the fields to change; the rest stay as booked. `"endsAt": null`
+ * works the end out again; left out, the end is worked out again too unless the booking's end was
+ * set by hand and the start stays.
+ */
+export const bookingPatchApiSchema = z
+	.object({
+		press: bookingFields.press.optional(),
+		startsAt: dateTimeField('start').optional(),
+		endsAt: z
+			.string()
+			.trim()
+			.nullish()
+			.refine(
+				(v) => v == null || v === '' || toUtcIso(v) !== null,
+				'Give the end as date and time, e.g. 2026-12-14T06:00, or null to work it out.'
+			),
+		endReason: optionalText(300).optional(),
+		orderRef: bookingFields.orderRef.optional(),
+		parts: bookingFields.parts.optional(),
+		scrapPct: optionalDecimalNumber({
+			min: [0, 'Scrap cannot be below 0 %.'],
+			max: [90, 'Scrap above 90 % is not plausible.']
+		}),
+		// Null or left out reads as undefined here; the route tells "null" (back to the default
+		// rate) from "left out" (keep the booked rate) by the body itself.
+		shotsPerHour: bookingFields.shotsPerHour,
+		notes: optionalText(1000).optional(),
+		confirm: z.boolean().default(false)
+	})
+	.strict();
+export type BookingPatchApiInput = z.infer<typeof bookingPatchApiSchema>;
 
 export const cancelBookingSchema = z.object({
 	reason: z

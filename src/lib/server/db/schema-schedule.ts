@@ -24,6 +24,26 @@ export interface PressBookingsTable {
 	cancelled_by: string | null;
 	cancel_reason: string | null;
 	notes: string | null;
+	/** Why the planner set an end other than the worked-out one; null when it was worked out. */
+	end_reason: string | null;
+	updated_at: string | null;
+	updated_by: string | null;
+}
+
+/** One create, edit or move of a booking, with the verdict before and after. */
+export interface BookingChangesTable {
+	id: Generated<number>;
+	booking_id: number;
+	changed_at: string;
+	changed_by: string | null;
+	token_id: number | null;
+	kind: 'create' | 'edit';
+	/** JSON: { field: [before, after] } for an edit, { field: value } for a create. */
+	changes: string;
+	verdict_before: 'fits' | 'warning' | 'blocked' | null;
+	verdict_after: 'fits' | 'warning' | 'blocked';
+	/** JSON array of the reasons behind verdict_after: [{ code, message }]. */
+	reasons_after: Generated<string>;
 }
 
 /** What a press last reported through counted shots; one row per press. */
@@ -42,6 +62,7 @@ export interface PressFeedTable {
 // Tables of the schedule area; added to the Database interface in schema.ts.
 export interface ScheduleTables {
 	press_bookings: PressBookingsTable;
+	booking_changes: BookingChangesTable;
 	press_feed: PressFeedTable;
 }
 

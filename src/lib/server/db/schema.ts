@@ -102,6 +102,12 @@ export interface MachinesTable {
 	tie_bar_spacing_mm: number | null;
 	status: Generated<'available' | 'down'>;
 	notes: string | null;
+	/** Minutes to change the die on this press, added to every booking's run time. */
+	die_change_minutes: Generated<number>;
+	/** Minutes to bring a die to temperature on this press, added to every booking's run time. */
+	preheat_minutes: Generated<number>;
+	/** The press's usual rate, shots per hour; null = the alloy family's usual rate. */
+	shots_per_hour: number | null;
 }
 
 export interface DiesTable {
@@ -132,6 +138,8 @@ export interface DiesTable {
 	cooling_locked: Generated<Flag>;
 	/** Days to get a replacement die; null = the plant's default for the alloy family. */
 	replacement_lead_days: number | null;
+	/** The die's own planned rate, shots per hour, over the press's; null = none recorded. */
+	shots_per_hour: number | null;
 }
 
 export interface DieHalvesTable {

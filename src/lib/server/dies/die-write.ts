@@ -48,7 +48,8 @@ function registerColumns(form: DieForm) {
 		location: form.location || null,
 		notes: form.notes || null,
 		expected_life_shots: form.expectedLifeShots ?? null,
-		replacement_lead_days: form.replacementLeadDays ?? null
+		replacement_lead_days: form.replacementLeadDays ?? null,
+		shots_per_hour: form.plannedShotsPerHour ?? null
 	};
 }
 

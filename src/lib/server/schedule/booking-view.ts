@@ -4,6 +4,7 @@ import type { DB } from '../db/connect';
 import { nowIso } from '../time';
 import { bookingDraft, judgeRun } from './verdict';
 import { bookingPhase, getBooking } from './bookings';
+import { listBookingHistory } from './booking-save';
 import { shotsNeededFor } from './die-facts';
 
 /**
@@ -31,9 +32,11 @@ export async function loadBookingPage(
 		});
 		if (ev.ok) checks = { blocks: ev.blocks, warnings: ev.warnings };
 	}
+	const history = await listBookingHistory(db, booking.id);
 	return {
 		booking,
 		phase,
+		history,
 		shotsPlanned,
 		pressHours: shotsPlanned / booking.shots_per_hour,
 		checks

@@ -1,122 +1,25 @@
-import type { UnitSystem } from '../../calc/units';
 import { plantDayStart } from '../../plant-time';
 import { MAX_BOOKING_DAYS } from '../../schemas/schedule';
 import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
 import type { DieScope } from '../dies/register';
 import { nowIso } from '../time';
-import { judgeRun, type BookingCheck, type BookingDraft } from './verdict';
 import { shotsNeededFor } from './die-facts';
+import type { BookingActor } from './booking-save';
 
 const DAY_MS = 86_400_000;
 
-export interface BookingActor {
-	userId: string | null;
-	tokenId: number | null;
-	/** A customer-bound caller books only its own dies. */
-	customerId: number | null;
-}
-
-export interface NewBookingInput extends BookingDraft {
-	press: string;
-	startsAt: string;
-	endsAt: string;
-	orderRef: string;
-	notes?: string | null;
-}
-
-export type CreateBookingResult =
-	| { ok: true; id: number; warnings: BookingCheck[] }
-	| { ok: false; kind: 'invalid'; field: 'die' | 'press'; message: string }
-	| { ok: false; kind: 'blocked'; blocks: BookingCheck[]; warnings: BookingCheck[] }
-	| { ok: false; kind: 'confirm'; warnings: BookingCheck[] };
-
-/**
- * Whether the warnings were accepted: `true` accepts any; a list of codes accepts exactly the
- * warnings the planner was shown (the same codes, as many times), so a changed booking with a new
- * warning is asked about again.
- */
-export function warningsAccepted(warnings: BookingCheck[], confirm: boolean | string[]): boolean {
-	if (warnings.length === 0 || confirm === true) return true;
-	if (confirm === false) return false;
-	const seen = [...confirm].sort().join(',');
-	return (
-		seen ===
-		warnings
-			.map((w) => w.code)
-			.sort()
-			.join(',')
-	);
-}
-
-/**
- * Books a die on a press after every check, in one transaction so two planners cannot take the
- * same slot. Blocks refuse the booking outright; warnings need `confirm`.
- */
-export async function createBooking(
-	db: DB,
-	input: NewBookingInput,
-	actor: BookingActor,
-	options: { confirm: boolean | string[]; now?: string; unitSystem?: UnitSystem }
-): Promise<CreateBookingResult> {
-	const now = options.now ?? nowIso();
-	return db.transaction().execute(async (trx) => {
-		const ev = await judgeRun(trx, input, {
-			now,
-			scope: { customerId: actor.customerId },
-			unitSystem: options.unitSystem
-		});
-		if (!ev.ok) return { ok: false, kind: 'invalid', field: ev.field, message: ev.message };
-		if (!ev.press)
-			return { ok: false, kind: 'invalid', field: 'press', message: 'Choose a press.' };
-		if (ev.blocks.length > 0)
-			return { ok: false, kind: 'blocked', blocks: ev.blocks, warnings: ev.warnings };
-		if (!warningsAccepted(ev.warnings, options.confirm)) {
-			return { ok: false, kind: 'confirm', warnings: ev.warnings };
-		}
-		const row = await trx
-			.insertInto('press_bookings')
-			.values({
-				die_id: ev.die.id,
-				machine_id: ev.press.id,
-				starts_at: input.startsAt,
-				ends_at: input.endsAt,
-				order_ref: input.orderRef,
-				parts: input.parts,
-				scrap_pct: input.scrapPct,
-				shots_per_hour: ev.shotsPerHour,
-				created_by: actor.userId,
-				created_at: now,
-				cancelled_at: null,
-				cancelled_by: null,
-				cancel_reason: null,
-				notes: input.notes || null
-			})
-			.returning('id')
-			.executeTakeFirstOrThrow();
-		await writeAudit(
-			trx,
-			{
-				userId: actor.userId,
-				tokenId: actor.tokenId,
-				action: 'booking.create',
-				dieId: ev.die.id,
-				detail: {
-					booking: row.id,
-					press: ev.press.name,
-					order: input.orderRef,
-					startsAt: input.startsAt,
-					endsAt: input.endsAt,
-					parts: input.parts,
-					warningsAccepted: ev.warnings.map((w) => w.message)
-				}
-			},
-			now
-		);
-		return { ok: true, id: row.id, warnings: ev.warnings };
-	});
-}
-
+export {
+	createBooking,
+	updateBooking,
+	listBookingHistory,
+	warningsAccepted,
+	type BookingActor,
+	type NewBookingInput,
+	type CreateBookingResult,
+	type SaveBookingResult,
+	type BookingPlan
+} from './booking-save';
 /** Cancels a booking that has not ended yet; an ended booking stays on record as it was. */
 export async function cancelBooking(
 	db: DB,
@@ -205,6 +108,8 @@ function bookingsQuery(db: DB, scope: DieScope) {
 			'b.cancelled_at',
 			'b.cancel_reason',
 			'b.notes',
+			'b.end_reason',
+			'b.updated_at',
 			'dies.number as dieNumber',
 			'dies.part_name as partName',
 			'dies.cavities',
@@ -299,6 +204,8 @@ export function bookingApiView(b: BookingRow, now: string) {
 		shotsPlanned: shotsNeededFor(b.parts, b.cavities, b.scrap_pct),
 		status: bookingPhase(b, now),
 		cancelledAt: b.cancelled_at,
-		notes: b.notes
+		notes: b.notes,
+		/** Why the end differs from the worked-out one; null when it was worked out. */
+		endReason: b.end_reason
 	};
 }

@@ -37,6 +37,8 @@ export interface DieFacts {
 	shotsPerDay: number;
 	/** The reason given with the die's latest change of state, if any. */
 	statusReason: string | null;
+	/** The die's own planned rate, shots per hour, over the press's; null when none is recorded. */
+	plannedShotsPerHour: number | null;
 	tasks: Pick<
 		ServiceTask,
 		'id' | 'kind' | 'interval_shots' | 'interval_days' | 'last_done_at' | 'last_done_shots'
@@ -133,6 +135,7 @@ export async function loadDieFactsByIds(
 			'dies.metal_pressure_bar',
 			'dies.status',
 			'dies.total_shots',
+			'dies.shots_per_hour',
 			sql<number>`coalesce(dies.expected_life_shots, alloys.expected_life_shots)`.as('expectedLife')
 		])
 		.where('dies.id', 'in', list)
@@ -205,6 +208,7 @@ export async function loadDieFactsByIds(
 			})(),
 			shotsPerDay: rates.get(d.id) ?? 0,
 			statusReason: reasonFrom(reasonByDie.get(d.id) ?? undefined, d.status),
+			plannedShotsPerHour: d.shots_per_hour,
 			tasks: []
 		});
 	}
@@ -227,6 +231,25 @@ export async function loadDieFacts(
 		.executeTakeFirst();
 	if (!die) return null;
 	return (await loadDieFactsByIds(db, [die.id], asOf)).get(die.id) ?? null;
+}
+
+export type RateSource = 'order' | 'die' | 'press' | 'alloy';
+
+/**
+ * The planned rate of a run, shots per hour, and where it came from: the rate given with the
+ * order, else the die's own rate, else the press's usual rate, else the middle of the alloy
+ * family's usual range. The one place a run's rate is chosen.
+ */
+export function planRate(
+	given: number | null | undefined,
+	die: Pick<DieFacts, 'family' | 'plannedShotsPerHour'>,
+	press: { shots_per_hour: number | null } | null
+): { shotsPerHour: number; source: RateSource } {
+	if (given != null) return { shotsPerHour: given, source: 'order' };
+	if (die.plannedShotsPerHour != null)
+		return { shotsPerHour: die.plannedShotsPerHour, source: 'die' };
+	if (press?.shots_per_hour != null) return { shotsPerHour: press.shots_per_hour, source: 'press' };
+	return { shotsPerHour: defaultShotsPerHour(die.family), source: 'alloy' };
 }
 
 /** Middle of the usual production range for the family (NADCA FAQ), shots per hour. */

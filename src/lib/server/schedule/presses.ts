@@ -75,6 +75,9 @@ export function pressToForm(press: Press, system: UnitSystem): PressForm {
 				? undefined
 				: roundTo(us ? mmToIn(press.tie_bar_spacing_mm) : press.tie_bar_spacing_mm, 2),
 		status: press.status,
+		dieChangeMinutes: press.die_change_minutes,
+		preheatMinutes: press.preheat_minutes,
+		shotsPerHour: press.shots_per_hour ?? undefined,
 		notes: press.notes ?? ''
 	};
 }
@@ -95,6 +98,9 @@ function formToRow(form: PressForm, system: UnitSystem) {
 				? null
 				: roundTo(us ? inToMm(form.tieBarSpacing) : form.tieBarSpacing, 1),
 		status: form.status,
+		die_change_minutes: form.dieChangeMinutes,
+		preheat_minutes: form.preheatMinutes,
+		shots_per_hour: form.shotsPerHour ?? null,
 		notes: form.notes || null
 	};
 }

@@ -14,7 +14,13 @@ import type { DB } from '../db/connect';
 import type { DieScope } from '../dies/register';
 import { viewServiceTask } from '../dies/service-summary';
 import { nowIso } from '../time';
-import { defaultShotsPerHour, loadDieFacts, shotsNeededFor, type DieFacts } from './die-facts';
+import {
+	loadDieFacts,
+	planRate,
+	shotsNeededFor,
+	type DieFacts,
+	type RateSource
+} from './die-facts';
 import { findPressByName, type Press } from './presses';
 import { listOpenToolroomJobs } from './toolroom-hook';
 import { findWindowClashes, type WindowClash } from './window-clashes';
@@ -123,10 +129,17 @@ export type Evaluation =
 			startsAt: string;
 			endsAt: string;
 			shotsPerHour: number;
+			/** True when no rate came with the order (die, press or alloy rate stands in). */
 			rateIsDefault: boolean;
+			rateSource: RateSource;
 			shotsNeeded: number;
 			/** Press time the shots take at the planned rate, hours. */
 			pressHours: number;
+			/** The press's die-change and preheat time before the first shot, minutes (0 without a press). */
+			dieChangeMinutes: number;
+			preheatMinutes: number;
+			/** Start + die change + preheat + press hours, to the next whole minute: the worked-out end. */
+			workedOutEndsAt: string;
 			clamp: ClampFigures;
 			/** Shots the die is expected to take between now and the start. */
 			shotsBeforeStart: number;
@@ -426,6 +439,8 @@ function serviceChecks(
 	die: DieFacts,
 	now: string,
 	startMs: number,
+	/** When the first shot is made: after the die change and preheat. */
+	firstShotMs: number,
 	endMs: number,
 	shotsBeforeStart: number,
 	shotsNeeded: number,
@@ -446,7 +461,7 @@ function serviceChecks(
 					number: leftAtStart
 				};
 			} else if (leftAtStart < shotsNeeded) {
-				dueDuringMs = startMs + (leftAtStart / shotsPerHour) * HOUR_MS;
+				dueDuringMs = firstShotMs + (leftAtStart / shotsPerHour) * HOUR_MS;
 				dueDuring = {
 					note: `, after about ${formatShots(leftAtStart)} of the run's ${formatShots(shotsNeeded)} shots`,
 					number: leftAtStart
@@ -504,27 +519,48 @@ export interface AssessInput {
 
 export type Assessment = Extract<Evaluation, { ok: true }>;
 
+/** Die-change and preheat minutes of a press before a run's first shot; none without a press. */
+export function changeoverOf(press: Pick<Press, 'die_change_minutes' | 'preheat_minutes'> | null) {
+	return {
+		dieChangeMinutes: press?.die_change_minutes ?? 0,
+		preheatMinutes: press?.preheat_minutes ?? 0
+	};
+}
+
 /**
  * The run's window: from the start (now when not given) to the end — when given, as booked;
- * otherwise when its shots are done at the rate, rounded up to the whole minute so that a booking
- * made for exactly this window (booking times are kept to the minute) is judged the same.
+ * otherwise worked out: the press's die change and preheat, then the shots at the rate (press
+ * hours from calc/order-check), rounded up to the whole minute so that a booking made for exactly
+ * this window (booking times are kept to the minute) is judged the same. `workedOutEndsAt` is
+ * that worked-out end even when an end was given.
  */
 export function runWindow(
 	draft: BookingDraft,
-	shotsNeeded: number,
-	shotsPerHour: number,
+	pressHours: number,
+	changeoverMinutes: number,
 	now: string
 ) {
 	const startsAt = draft.startsAt ?? now;
 	const MINUTE_MS = 60_000;
-	const endsAt =
-		draft.endsAt ??
-		new Date(
-			Math.ceil(
-				(Date.parse(startsAt) + Math.ceil((shotsNeeded / shotsPerHour) * HOUR_MS)) / MINUTE_MS
-			) * MINUTE_MS
-		).toISOString();
-	return { startsAt, endsAt };
+	const workedOutEndsAt = new Date(
+		Math.ceil(
+			(Date.parse(startsAt) + changeoverMinutes * MINUTE_MS + Math.ceil(pressHours * HOUR_MS)) /
+				MINUTE_MS
+		) * MINUTE_MS
+	).toISOString();
+	return { startsAt, endsAt: draft.endsAt ?? workedOutEndsAt, workedOutEndsAt };
+}
+
+/** Press hours of a run: the order check's arithmetic (calc/order-check), nothing else. */
+function runPressHours(parts: number, cavities: number, scrapPct: number, shotsPerHour: number) {
+	return checkOrder({
+		parts,
+		cavities,
+		scrapPct,
+		shotsPerHour,
+		shotsToNextService: null,
+		shotsToEndOfLife: null
+	}).pressHours;
 }
 
 /**
@@ -539,9 +575,17 @@ export function runWindow(
 export function assessRun(input: AssessInput): Assessment {
 	const { draft, die, press, now, scope, units, shotsBeforeStart } = input;
 	const rateIsDefault = draft.shotsPerHour == null;
-	const shotsPerHour = draft.shotsPerHour ?? defaultShotsPerHour(die.family);
+	const rate = planRate(draft.shotsPerHour, die, press);
+	const shotsPerHour = rate.shotsPerHour;
 	const shotsNeeded = shotsNeededFor(draft.parts, die.cavities, draft.scrapPct);
-	const { startsAt, endsAt } = runWindow(draft, shotsNeeded, shotsPerHour, now);
+	const { dieChangeMinutes, preheatMinutes } = changeoverOf(press);
+	const changeoverMs = (dieChangeMinutes + preheatMinutes) * 60_000;
+	const { startsAt, endsAt, workedOutEndsAt } = runWindow(
+		draft,
+		runPressHours(draft.parts, die.cavities, draft.scrapPct, shotsPerHour),
+		dieChangeMinutes + preheatMinutes,
+		now
+	);
 	const startMs = Date.parse(startsAt);
 	const endMs = Date.parse(endsAt);
 	const req = dieClampRequirement(die);
@@ -605,7 +649,16 @@ export function assessRun(input: AssessInput): Assessment {
 	}
 
 	checks.push(
-		...serviceChecks(die, now, startMs, endMs, shotsBeforeStart, shotsNeeded, shotsPerHour)
+		...serviceChecks(
+			die,
+			now,
+			startMs,
+			startMs + changeoverMs,
+			endMs,
+			shotsBeforeStart,
+			shotsNeeded,
+			shotsPerHour
+		)
 	);
 	const lifeLeftAtStart = shotsLeftToEndOfLife(die) - shotsBeforeStart;
 	const order = checkOrder({
@@ -638,12 +691,18 @@ export function assessRun(input: AssessInput): Assessment {
 	}
 	if (draft.endsAt) {
 		const bookedHours = (endMs - startMs) / HOUR_MS;
-		const capacity = Math.floor(bookedHours * shotsPerHour);
+		// The die change and preheat take their time out of the booked window before any shot.
+		const castingHours = Math.max(0, (endMs - startMs - changeoverMs) / HOUR_MS);
+		const capacity = Math.floor(castingHours * shotsPerHour);
 		if (capacity < shotsNeeded) {
+			const less =
+				changeoverMs > 0
+					? ` less ${dieChangeMinutes + preheatMinutes} min die change and preheat`
+					: '';
 			checks.push({
 				code: 'too_short',
 				level: 'warn',
-				message: `The booked ${Number(bookedHours.toFixed(1))} h at ${formatShots(shotsPerHour)} shots per hour give about ${formatShots(capacity)} shots; the order needs ${formatShots(shotsNeeded)}. Book more time or plan a faster rate.`,
+				message: `The booked ${Number(bookedHours.toFixed(1))} h${less} at ${formatShots(shotsPerHour)} shots per hour give about ${formatShots(capacity)} shots; the order needs ${formatShots(shotsNeeded)}. Book more time or plan a faster rate.`,
 				number: capacity
 			});
 		}
@@ -661,8 +720,12 @@ export function assessRun(input: AssessInput): Assessment {
 		endsAt,
 		shotsPerHour,
 		rateIsDefault,
+		rateSource: rate.source,
 		shotsNeeded,
 		pressHours: order.pressHours,
+		dieChangeMinutes,
+		preheatMinutes,
+		workedOutEndsAt,
 		clamp,
 		shotsBeforeStart,
 		lifeLeftAtStart,
@@ -690,11 +753,12 @@ export async function judgeRun(
 		return { ok: false, field: 'die', message: `There is no die ${draft.die.toUpperCase()}.` };
 	if (draft.press && !press)
 		return { ok: false, field: 'press', message: `There is no press ${draft.press}.` };
-	const shotsPerHour = draft.shotsPerHour ?? defaultShotsPerHour(die.family);
+	const { shotsPerHour } = planRate(draft.shotsPerHour, die, press ?? null);
+	const changeover = changeoverOf(press ?? null);
 	const { startsAt, endsAt } = runWindow(
 		draft,
-		shotsNeededFor(draft.parts, die.cavities, draft.scrapPct),
-		shotsPerHour,
+		runPressHours(draft.parts, die.cavities, draft.scrapPct, shotsPerHour),
+		changeover.dieChangeMinutes + changeover.preheatMinutes,
 		now
 	);
 	const startMs = Date.parse(startsAt);

@@ -22,6 +22,8 @@ export const load: PageServerLoad = async (event) => {
 		...view,
 		cancelForm,
 		justBooked: event.url.searchParams.has('booked'),
+		justMoved: event.url.searchParams.has('moved'),
+		unchanged: event.url.searchParams.has('unchanged'),
 		canEdit: BOOKING_EDITORS.includes(user.role)
 	};
 };

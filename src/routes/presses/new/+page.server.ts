@@ -1,7 +1,7 @@
 import { fail, redirect } from '@sveltejs/kit';
 import { setError, superValidate } from 'sveltekit-superforms';
 import { zod4 } from 'sveltekit-superforms/adapters';
-import { pressFormSchema } from '$lib/schemas/schedule';
+import { DEFAULT_CHANGEOVER, pressFormSchema } from '$lib/schemas/schedule';
 import { requireRole } from '$lib/server/auth/guard';
 import { getDb } from '$lib/server/db';
 import { savePress } from '$lib/server/schedule/presses';
@@ -11,7 +11,12 @@ import type { Actions, PageServerLoad } from './$types';
 export const load: PageServerLoad = async (event) => {
 	const user = requireRole(event, ...BOOKING_EDITORS);
 	const form = await superValidate(
-		{ chamber: 'cold', status: 'available', clampUnit: user.unitSystem === 'us' ? 'ust' : 'kN' },
+		{
+			chamber: 'cold',
+			status: 'available',
+			clampUnit: user.unitSystem === 'us' ? 'ust' : 'kN',
+			...DEFAULT_CHANGEOVER
+		},
 		zod4(pressFormSchema),
 		{ errors: false }
 	);

@@ -36,8 +36,10 @@ export const GET = apiRoute(async (event) => {
 	});
 });
 
-// POST /api/v1/bookings — one booking, checked like the form: 422 when a check blocks it, 409 with
-// the warnings unless "confirm": true is sent, 201 with the booking when made.
+// POST /api/v1/bookings — one booking, through the same path as the form: without endsAt the end is
+// worked out (press die change + preheat + press hours); an endsAt other than that needs
+// endReason. 422 when a check blocks it, 409 with the warnings unless "confirm": true is sent, 201
+// with the booking when made.
 export const POST = apiRoute(async (event) => {
 	const principal = await authorizeApi(event, 'bookings:write');
 	const parsed = bookingApiSchema.safeParse(await readJsonBody(event.request, 20_000));
@@ -55,6 +57,7 @@ export const POST = apiRoute(async (event) => {
 	return json(
 		{
 			booking: viewFor(audienceOf(principal), 'booking', bookingApiView(booking!, nowIso())),
+			verdict: result.plan.verdict,
 			warnings: result.warnings.map((w) => w.message)
 		},
 		{ status: 201, headers: { location: `/bookings/${result.id}` } }

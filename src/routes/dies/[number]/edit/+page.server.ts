@@ -37,7 +37,8 @@ export const load: PageServerLoad = async (event) => {
 				location: die.location ?? undefined,
 				notes: die.notes ?? undefined,
 				expectedLifeShots: die.expected_life_shots ?? undefined,
-				replacementLeadDays: die.replacement_lead_days ?? undefined
+				replacementLeadDays: die.replacement_lead_days ?? undefined,
+				plannedShotsPerHour: die.shots_per_hour ?? undefined
 			},
 			zod4(dieFormSchema)
 		),
