@@ -158,8 +158,8 @@ export const VERDICT_LABELS = {
 	warning: 'Fits with warnings',
 	blocked: 'Blocked'
 } as const;
-/** The shape that goes with each verdict word (never colour alone). */
-export const VERDICT_SHAPES = { fits: '✓', warning: '!', blocked: '✕' } as const;
+/** The mark that goes with each verdict word (never colour alone): order check, booking, board. */
+export const VERDICT_MARKS = { fits: '✓', warning: '!', blocked: '✕' } as const;
 // Why a die was retired; only worn out and cracked beyond repair are wear failures in the fleet fit.
 export const RETIREMENT_REASON_LABELS = {
 	worn_out: 'Worn out',
@@ -192,10 +192,9 @@ export const IMPORT_ROW_LABELS = {
 	problem: { word: 'Needs a fix', mark: '✗' }
 } as const;
 /**
- * A verdict's mark (as on the order check) and the short word a narrow board bar falls back to;
- * the full word is VERDICT_LABELS. Bars add a fill pattern, so none reads by colour alone.
+ * The short word a narrow board bar falls back to; the full word is VERDICT_LABELS and the mark
+ * VERDICT_MARKS. Bars add a fill pattern, so none reads by colour alone.
  */
-export const VERDICT_MARKS = { fits: '✓', warning: '!', blocked: '✕' } as const;
 export const VERDICT_SHORT = { fits: 'OK', warning: 'Risk', blocked: 'Blocked' } as const;
 /** Where a service window stands. */
 export const SERVICE_WINDOW_LABELS = {
