@@ -29,10 +29,13 @@ async function book(over: Parameters<typeof draft>[0]) {
 
 describe('verdict on every bar', () => {
 	test('fits, warning and blocked bars, each equal to the booking’s own verdict', async () => {
-		// FIT: Z-1 on HC-20, nothing due.
+		// FIT: Z-1 on HC-20, nothing due. Booked Mon 8 Mar 06:00–22:00 (16 h); 4000 parts / 2
+		// cavities = 2000 shots at 300 /h = 6 h 40 min, after HC-20's 30 + 30 min change-over:
+		// 06:00 + 0:30 + 0:30 + 6:40 = 13:40, well inside the window, so not too short.
 		const fit = await book({ orderRef: 'FIT' });
 		// WARN: A-1 on CC-160; its 30-day cooling flush was done 25 days ago, so it falls due on
-		// day 5 (plant midnight + 30 d), inside a run on days 4–6.
+		// day 5 (plant midnight + 30 d), inside a run on days 4–6 (500 shots at 100 /h = 5 h after
+		// CC-160's 90 + 60 min: 06:00 + 1:30 + 1:00 + 5:00 = 13:30 on day 4, in the 48 h booked).
 		await addTask(db, 'A-1', { kind: 'cooling_flush', intervalDays: 30, daysAgo: 25 });
 		const warn = await book({
 			die: 'A-1',
@@ -43,7 +46,8 @@ describe('verdict on every bar', () => {
 			shotsPerHour: 100,
 			orderRef: 'WARN'
 		});
-		// BLOCKED: MG-1 booked on CC-40, then moved into the toolroom after booking.
+		// BLOCKED: MG-1 booked on CC-40, then moved into the toolroom after booking (500 shots at
+		// 100 /h: 06:00 + 1:30 + 1:00 + 5:00 = 13:30, inside the 06:00–22:00 booking).
 		const blocked = await book({
 			die: 'MG-1',
 			press: 'CC-40',
@@ -80,11 +84,13 @@ describe('verdict on every bar', () => {
 				.select([
 					'dies.number',
 					'machines.name',
-					'starts_at',
-					'ends_at',
-					'parts',
-					'scrap_pct',
-					'shots_per_hour'
+					// Qualified: dies and machines have a shots_per_hour of their own (their usual
+					// rate); the booking's planned rate is the one judged.
+					'press_bookings.starts_at',
+					'press_bookings.ends_at',
+					'press_bookings.parts',
+					'press_bookings.scrap_pct',
+					'press_bookings.shots_per_hour'
 				])
 				.where('press_bookings.id', '=', id)
 				.executeTakeFirstOrThrow();

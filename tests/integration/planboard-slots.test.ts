@@ -35,7 +35,9 @@ async function book(die: string, press: string, start: string, end: string, orde
 
 beforeEach(async () => {
 	db = await openScheduleDb();
-	// Three more hot-chamber presses (invented), each big enough for Z-1.
+	// Three more hot-chamber presses (invented), each big enough for Z-1. Created without a
+	// change-over of their own, so they take the migration's default: 90 min die change + 60 min
+	// preheat = 2 h 30 min before the first shot (HC-20 has 30 + 30 min = 1 h, schedule-support).
 	await db
 		.insertInto('machines')
 		.values([
@@ -73,7 +75,10 @@ afterEach(async () => {
 });
 
 // The order: 4000 parts, Z-1 has 2 cavities, 0 % scrap → 2000 shots; at 250 shots/h that is
-// 2000 / 250 = 8 h of press time. Earliest start Tuesday 06:00.
+// 2000 / 250 = 8 h of press time. A run is start + die change + preheat + press hours:
+//   HC-20:               start + 0:30 + 0:30 + 8:00 = start +  9:00
+//   HC-30, HC-42, HC-50: start + 1:30 + 1:00 + 8:00 = start + 10:30
+// Earliest start Tuesday 06:00.
 const order = {
 	die: 'Z-1',
 	parts: 4000,
@@ -84,18 +89,20 @@ const order = {
 
 describe('free-slot finder', () => {
 	test('the first three slots on the hand-worked timeline', async () => {
-		// By hand, per press (8 h runs; a slot can open only when something ends):
-		//   HC-42: 06:00 hits the window (ends 09:00) → 09:00–17:00 free.
-		//   HC-30: 06:00 window; 09:00–17:00 hits PO-C (09:00–10:30) → 10:30–18:30 free.
-		//   HC-20: 06:00 window; 09:00 hits PO-A; 12:00–20:00 hits PO-B (18:00) → Wed 02:00–10:00.
-		//   HC-50: 06:00, 09:00 inside PO-D → Wed 06:00–14:00 (fourth; left out).
+		// By hand, per press (a slot can open only when something ends):
+		//   HC-42: 06:00 hits the window (ends 09:00) → 09:00 + 2:30 + 8:00 = 19:30, free.
+		//   HC-30: 06:00 window; 09:00–19:30 hits PO-C (09:00–10:30) →
+		//          10:30 + 2:30 + 8:00 = 21:00, free.
+		//   HC-20: 06:00 window; 09:00 hits PO-A (04:00–12:00); 12:00 + 1:00 + 8:00 = 21:00 hits
+		//          PO-B (18:00) → Wed 02:00 + 1:00 + 8:00 = Wed 11:00, free.
+		//   HC-50: 06:00, 09:00 inside PO-D → Wed 06:00 + 10:30 = Wed 16:30 (fourth; left out).
 		//   CC-40, CC-160, CC-84: cold chamber — Z-1 is a hot-chamber die; never.
 		const answer = await findFreeSlots(db, order, { now: NOW });
 		if (!answer.ok) throw new Error(answer.message);
 		expect(answer.asked.slots.map((s) => [s.press, s.startsAt, s.endsAt, s.verdict])).toEqual([
-			['HC-42', at(1, 9), at(1, 17), 'fits'],
-			['HC-30', at(1, 10.5), at(1, 18.5), 'fits'],
-			['HC-20', at(2, 2), at(2, 10), 'fits']
+			['HC-42', at(1, 9), at(1, 19.5), 'fits'],
+			['HC-30', at(1, 10.5), at(1, 21), 'fits'],
+			['HC-20', at(2, 2), at(2, 11), 'fits']
 		]);
 		expect(answer.asked.refused.map((r) => r.press).sort()).toEqual(['CC-160', 'CC-40', 'CC-84']);
 		expect(answer.sisters).toEqual([]);
@@ -117,14 +124,16 @@ describe('free-slot finder', () => {
 
 	test('a warning does not hide a slot: a rate outside the zinc range still finds 09:00', async () => {
 		// 600 shots/h is above the usual 200–550 for zinc (NADCA, as in the verdict): a warning.
-		// 2000 shots / 600 per h = 3 h 20 min. HC-42 09:00–12:20; HC-30 10:30–13:50;
-		// HC-20 12:00–15:20 (PO-A ends 12:00, PO-B starts 18:00).
+		// 2000 shots / 600 per h = 3 h 20 min of press time.
+		//   HC-42: 09:00 + 2:30 + 3:20 = 14:50.
+		//   HC-30: 09:00 + 5:50 = 14:50 hits PO-C (09:00–10:30) → 10:30 + 2:30 + 3:20 = 16:20.
+		//   HC-20: 09:00 hits PO-A; 12:00 + 1:00 + 3:20 = 16:20, before PO-B starts at 18:00.
 		const answer = await findFreeSlots(db, { ...order, shotsPerHour: 600 }, { now: NOW });
 		if (!answer.ok) throw new Error(answer.message);
 		expect(answer.asked.slots.map((s) => [s.press, s.startsAt, s.endsAt, s.verdict])).toEqual([
-			['HC-42', at(1, 9), '2027-03-02T12:20:00.000Z', 'warning'],
-			['HC-30', at(1, 10.5), '2027-03-02T13:50:00.000Z', 'warning'],
-			['HC-20', at(1, 12), '2027-03-02T15:20:00.000Z', 'warning']
+			['HC-42', at(1, 9), '2027-03-02T14:50:00.000Z', 'warning'],
+			['HC-30', at(1, 10.5), '2027-03-02T16:20:00.000Z', 'warning'],
+			['HC-20', at(1, 12), '2027-03-02T16:20:00.000Z', 'warning']
 		]);
 		expect(answer.asked.slots[0].warnings.map((w) => w.code)).toEqual(['rate_unusual']);
 	});
@@ -150,13 +159,14 @@ describe('free-slot finder', () => {
 		if (!answer.ok) throw new Error(answer.message);
 		expect(answer.asked.slots).toEqual([]);
 		expect(answer.asked.refused[0].message).toContain('Z-1 is held');
-		// Z-2 has no window: HC-42 06:00–14:00; HC-30 06:00 hits PO-C → 10:30–18:30;
-		// HC-20 06:00 hits PO-A, 12:00 hits PO-B → Wed 02:00–10:00; HC-50 → Wed 06:00 (fourth).
+		// Z-2 has no window: HC-42 06:00 + 2:30 + 8:00 = 16:30; HC-30 06:00–16:30 hits PO-C →
+		// 10:30 + 10:30 = 21:00; HC-20 06:00 + 9:00 = 15:00 hits PO-A, 12:00 + 9:00 = 21:00 hits
+		// PO-B → Wed 02:00 + 9:00 = Wed 11:00; HC-50 06:00 hits PO-D → Wed 06:00 (fourth).
 		expect(answer.sisters.map((s) => s.die)).toEqual(['Z-2']);
 		expect(answer.sisters[0].slots.map((s) => [s.press, s.startsAt, s.endsAt, s.verdict])).toEqual([
-			['HC-42', at(1, 6), at(1, 14), 'fits'],
-			['HC-30', at(1, 10.5), at(1, 18.5), 'fits'],
-			['HC-20', at(2, 2), at(2, 10), 'fits']
+			['HC-42', at(1, 6), at(1, 16.5), 'fits'],
+			['HC-30', at(1, 10.5), at(1, 21), 'fits'],
+			['HC-20', at(2, 2), at(2, 11), 'fits']
 		]);
 	});
 
@@ -170,9 +180,10 @@ describe('free-slot finder', () => {
 		// A-1 (aluminium, cold chamber, 600 cm² with slides) needs 600 cm² × 600 bar (family
 		// default, calc/clamp) / 100 × 1.25 = 4500 kN: CC-40 (3923 kN) is too small, CC-84 is down,
 		// so CC-160 alone, free now: 100 parts, 1 cavity, 0 % scrap = 100 shots / 100 per h = 1 h
-		// from NOW (Mon 08:00).
+		// of press time after CC-160's 90 min die change + 60 min preheat, from NOW (Mon 08:00):
+		// 08:00 + 1:30 + 1:00 + 1:00 = 11:30.
 		expect(answer.asked.slots.map((s) => [s.press, s.startsAt, s.endsAt])).toEqual([
-			['CC-160', NOW, at(0, 9)]
+			['CC-160', NOW, at(0, 11.5)]
 		]);
 		const cc40 = answer.asked.refused.find((r) => r.press === 'CC-40');
 		expect(cc40?.message).toContain('needs at least 4,500 kN');

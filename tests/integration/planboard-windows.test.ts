@@ -53,8 +53,9 @@ async function reserveTuesday(note = 'Flush both circuits') {
 describe('a service window blocks the die in the one verdict', () => {
 	test('a run overlapping the window is blocked, with the window named', async () => {
 		const id = await reserveTuesday();
-		// Run Tue 06:00 → 4000 parts / 2 cavities = 2000 shots at 250 /h = 8 h → ends 14:00, inside
-		// the window (10:00–18:00).
+		// Run Tue 06:00 on HC-20: 4000 parts / 2 cavities = 2000 shots at 250 /h = 8 h of press time;
+		// HC-20 (schedule-support) takes 30 min die change + 30 min preheat first, so
+		// 06:00 + 0:30 + 0:30 + 8:00 = 15:00, inside the window (10:00–18:00).
 		const ev = await judgeRun(
 			db,
 			{
@@ -68,7 +69,7 @@ describe('a service window blocks the die in the one verdict', () => {
 			{ now: NOW }
 		);
 		if (!ev.ok) throw new Error(ev.message);
-		expect(ev.endsAt).toBe(at(1, 14));
+		expect(ev.endsAt).toBe(at(1, 15));
 		expect(ev.verdict).toBe('blocked');
 		expect(ev.blocks).toHaveLength(1);
 		expect(ev.blocks[0]).toMatchObject({ code: 'service_window', level: 'block', number: id });
@@ -78,8 +79,12 @@ describe('a service window blocks the die in the one verdict', () => {
 
 	test('a run that ends as the window starts, or starts as it ends, is not blocked', async () => {
 		await reserveTuesday();
-		// 02:00 + 8 h = 10:00, touching the window's start; 18:00 is its end.
-		for (const start of [at(1, 2), at(1, 18)]) {
+		// The same 9 h run (30 + 30 min change-over on HC-20 + 8 h): 01:00 + 0:30 + 0:30 + 8:00 =
+		// 10:00, touching the window's start; 18:00 is its end (18:00–03:00 Wed).
+		for (const [start, end] of [
+			[at(1, 1), at(1, 10)],
+			[at(1, 18), at(2, 3)]
+		]) {
 			const ev = await judgeRun(
 				db,
 				{
@@ -93,6 +98,7 @@ describe('a service window blocks the die in the one verdict', () => {
 				{ now: NOW }
 			);
 			if (!ev.ok) throw new Error(ev.message);
+			expect(ev.endsAt).toBe(end);
 			expect(ev.verdict).toBe('fits');
 		}
 	});
