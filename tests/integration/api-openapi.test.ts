@@ -13,6 +13,7 @@ import { afterAll, beforeAll, describe, expect, test, vi } from 'vitest';
 import { seedDemo } from '../../scripts/lib/demo-scenario';
 import { migrateToLatest, openDatabase, type DB } from '../../src/lib/server/db/connect';
 import { OPENAPI_DOCUMENT } from '../../src/lib/server/api/openapi';
+import { toUtcIso } from '../../src/lib/schemas/schedule';
 import { createApiToken } from '../../src/lib/server/auth/tokens';
 
 vi.mock('$env/dynamic/private', () => ({ env: process.env }));
@@ -26,7 +27,7 @@ const ORIGIN = 'http://castellan.test';
 const API_DIR = path.resolve('src/routes/api/v1');
 
 let db: DB;
-const tokens = { plant: '', owner: '', reader: '', writer: '' };
+const tokens = { plant: '', owner: '', ownerBooker: '', reader: '', writer: '' };
 let ownerDie = '';
 let otherOwnerDie = '';
 
@@ -53,6 +54,7 @@ beforeAll(async () => {
 		).token;
 	tokens.plant = await make('openapi plant', ['dies:read', 'shots:write', 'bookings:write'], null);
 	tokens.owner = await make('openapi Brookmere', ['dies:read'], brk.id);
+	tokens.ownerBooker = await make('openapi Brookmere booker', ['bookings:write'], brk.id);
 	tokens.reader = await make('openapi reader', ['dies:read'], null);
 	tokens.writer = await make('openapi writer', ['shots:write'], null);
 	const dies = await db
@@ -97,7 +99,7 @@ function routesOnDisk(): string[] {
 
 // ---- calling the real handlers --------------------------------------------------------------
 
-type Method = 'GET' | 'POST';
+type Method = 'GET' | 'POST' | 'PATCH';
 interface Call {
 	token?: string | null;
 	body?: unknown;
@@ -199,6 +201,27 @@ for (const [name, schema] of Object.entries(OPENAPI_DOCUMENT.components.schemas)
 
 const day = (offset: number) =>
 	new Date(Date.now() + offset * 86_400_000).toISOString().slice(0, 10);
+
+/** A demo press the die can run on from `start`, found by asking the order check itself. */
+async function pressFor(die: string, start: string): Promise<string> {
+	for (const p of ['CC-160', 'CC-84', 'CC-40', 'CC-25B', 'HC-42M', 'HC-20', 'HC-08']) {
+		const check = await call(
+			'GET',
+			'/dies/{number}/order-check',
+			`/dies/${die}/order-check?parts=100&press=${p}&from=${start}&shotsPerHour=100`
+		);
+		if (check.body.verdict !== 'blocked') return p;
+	}
+	return '';
+}
+
+interface BookingAnswer {
+	id: number;
+	press: string;
+	startsAt: string;
+	endsAt: string;
+	endReason?: string | null;
+}
 
 // ---- the tests --------------------------------------------------------------------------------
 
@@ -325,10 +348,17 @@ describe('real answers match the description', () => {
 	});
 
 	test('GET /board and GET /bookings', async () => {
-		expect((await call('GET', '/board', '/board')).status).toBe(200);
-		expect((await call('GET', '/board', '/board?days=56', { token: tokens.owner })).status).toBe(
-			200
-		);
+		const board = await call('GET', '/board', '/board');
+		expect(board.status).toBe(200);
+		// The plant reads the verdict on every bar and its first reason.
+		const bars = board.body.bookings as { columns: string[]; rows: unknown[][] };
+		expect(bars.columns.slice(-2)).toEqual(['verdict', 'why']);
+		expect(bars.rows.some((r) => r[bars.columns.indexOf('verdict')] !== null)).toBe(true);
+		const owners = await call('GET', '/board', '/board?days=56', { token: tokens.owner });
+		expect(owners.status).toBe(200);
+		// A tooling owner never reads the order, the verdict or why.
+		const ownerColumns = (owners.body.bookings as { columns: string[] }).columns;
+		for (const c of ['order', 'verdict', 'why']) expect(ownerColumns).not.toContain(c);
 		expect((await call('GET', '/board', '/board', { token: null })).status).toBe(401);
 		const list = await call('GET', '/bookings', `/bookings?from=${day(-30)}&to=${day(60)}`);
 		expect(list.status).toBe(200);
@@ -347,41 +377,44 @@ describe('real answers match the description', () => {
 	});
 
 	test('POST /bookings: booked, warnings to confirm, blocked, incomplete, wrong type, scope', async () => {
-		// A slot far ahead that nothing else uses; find a press the die fits on by asking the
-		// order check itself (blocked answers name the reason).
+		// A slot far ahead that nothing else uses, on a press the die fits on.
 		const start = `${day(500)}T06:00`;
-		const presses = ['CC-160', 'CC-84', 'CC-40', 'CC-25B', 'HC-42M', 'HC-20', 'HC-08'];
-		let press = '';
-		for (const p of presses) {
-			const check = await call(
-				'GET',
-				'/dies/{number}/order-check',
-				`/dies/${ownerDie}/order-check?parts=100&press=${p}&from=${start}&shotsPerHour=100`
-			);
-			if (check.body.verdict !== 'blocked') {
-				press = p;
-				break;
-			}
-		}
+		const press = await pressFor(ownerDie, start);
 		expect(press, 'a demo press can run the die').not.toBe('');
-		const order = {
-			die: ownerDie,
-			press,
-			startsAt: start,
-			endsAt: `${day(500)}T18:00`,
-			orderRef: 'PO-OPENAPI-1',
-			parts: 100
-		};
+		// No endsAt: the end is worked out (die change + preheat + press hours).
+		const order = { die: ownerDie, press, startsAt: start, orderRef: 'PO-OPENAPI-1', parts: 100 };
 		// A rate far above the alloy's usual range is a warning: the API asks to confirm first.
 		const unusual = await call('POST', '/bookings', '/bookings', {
 			body: { ...order, shotsPerHour: 5000 }
 		});
 		expect(unusual.status).toBe(409);
+		expect(unusual.body.issues).toEqual(
+			expect.arrayContaining([expect.objectContaining({ field: 'rate_unusual' })])
+		);
+		// An end other than the worked-out one needs a reason…
+		const ownEnd = `${day(500)}T18:00`;
+		const noReason = await call('POST', '/bookings', '/bookings', {
+			body: { ...order, shotsPerHour: 5000, endsAt: ownEnd, confirm: true }
+		});
+		expect(noReason.status).toBe(400);
+		expect(noReason.body.issues).toEqual([expect.objectContaining({ field: 'endReason' })]);
+		// …and with one it is booked to that end, the reason kept.
 		const made = await call('POST', '/bookings', '/bookings', {
-			body: { ...order, shotsPerHour: 5000, confirm: true }
+			body: {
+				...order,
+				shotsPerHour: 5000,
+				endsAt: ownEnd,
+				endReason: 'Booked to the end of the shift',
+				confirm: true
+			}
 		});
 		expect(made.status).toBe(201);
-		expect((made.body.booking as { press: string }).press).toBe(press);
+		const booked = made.body.booking as BookingAnswer;
+		expect(booked.press).toBe(press);
+		expect(booked.endsAt).toBe(toUtcIso(ownEnd));
+		expect(booked.endReason).toBe('Booked to the end of the shift');
+		expect(made.body.verdict).toBe('warning');
+		expect((made.body.warnings as string[]).length).toBeGreaterThan(0);
 		// The same die again in the same window is double-booked: refused, whatever confirm says.
 		const again = await call('POST', '/bookings', '/bookings', {
 			body: { ...order, orderRef: 'PO-OPENAPI-2', confirm: true }
@@ -403,6 +436,131 @@ describe('real answers match the description', () => {
 		).toBe(415);
 		expect(
 			(await call('POST', '/bookings', '/bookings', { body: order, token: tokens.reader })).status
+		).toBe(403);
+	});
+
+	test('PATCH /bookings/{id}: moved, warnings to confirm, blocked, bad body, unknown, gone, scope', async () => {
+		const t = '/bookings/{id}';
+		const start = `${day(600)}T06:00`;
+		const press = await pressFor(ownerDie, start);
+		expect(press, 'a demo press can run the die').not.toBe('');
+		const order = { die: ownerDie, press, orderRef: 'PO-OPENAPI-MOVE', parts: 100 };
+		// The booking to move (an unusual rate: a warning, confirmed) and another run of the same
+		// die further on, to move onto.
+		const made = await call('POST', '/bookings', '/bookings', {
+			body: { ...order, startsAt: start, shotsPerHour: 5000, confirm: true }
+		});
+		expect(made.status).toBe(201);
+		const id = (made.body.booking as BookingAnswer).id;
+		const later = `${day(620)}T06:00`;
+		expect(
+			(
+				await call('POST', '/bookings', '/bookings', {
+					body: { ...order, startsAt: later, orderRef: 'PO-OPENAPI-LATER', confirm: true }
+				})
+			).status
+		).toBe(201);
+
+		// Moved a day on: the warning still stands, so first the API asks to confirm…
+		const moveTo = `${day(601)}T06:00`;
+		const unconfirmed = await call('PATCH', t, `/bookings/${id}`, { body: { startsAt: moveTo } });
+		expect(unconfirmed.status).toBe(409);
+		expect(unconfirmed.body.issues).toEqual(
+			expect.arrayContaining([expect.objectContaining({ field: 'rate_unusual' })])
+		);
+		// …and with confirm the booking moves, its end worked out again from the new start.
+		const moved = await call('PATCH', t, `/bookings/${id}`, {
+			body: { startsAt: moveTo, confirm: true }
+		});
+		expect(moved.status).toBe(200);
+		const after = moved.body.booking as BookingAnswer;
+		const before = made.body.booking as BookingAnswer;
+		expect(after).toMatchObject({ id, press, startsAt: toUtcIso(moveTo), endReason: null });
+		expect(Date.parse(after.endsAt) - Date.parse(after.startsAt)).toBe(
+			Date.parse(before.endsAt) - Date.parse(before.startsAt)
+		);
+		expect(moved.body.changed).toEqual(['start', 'end']);
+		expect(moved.body.verdict).toBe('warning');
+		// The same change again changes nothing.
+		const same = await call('PATCH', t, `/bookings/${id}`, {
+			body: { startsAt: moveTo, confirm: true }
+		});
+		expect(same.status).toBe(200);
+		expect(same.body.changed).toEqual([]);
+
+		// Onto the die's other run: blocked, whatever confirm says.
+		const blocked = await call('PATCH', t, `/bookings/${id}`, {
+			body: { startsAt: later, confirm: true }
+		});
+		expect(blocked.status).toBe(422);
+		expect(blocked.body.issues).toEqual(
+			expect.arrayContaining([expect.objectContaining({ field: 'die_double_booked' })])
+		);
+
+		// Bad bodies: an end of its own without a reason, a field that cannot change, a bad value,
+		// not an object, not JSON, not application/json.
+		const noReason = await call('PATCH', t, `/bookings/${id}`, {
+			body: { endsAt: `${day(601)}T20:00`, confirm: true }
+		});
+		expect(noReason.status).toBe(400);
+		expect(noReason.body.issues).toEqual([expect.objectContaining({ field: 'endReason' })]);
+		expect((await call('PATCH', t, `/bookings/${id}`, { body: { die: 'D-0102' } })).status).toBe(
+			400
+		);
+		const badParts = await call('PATCH', t, `/bookings/${id}`, { body: { parts: 'lots' } });
+		expect(badParts.status).toBe(400);
+		expect(badParts.body.issues).toEqual([expect.objectContaining({ field: 'parts' })]);
+		expect((await call('PATCH', t, `/bookings/${id}`, { body: [{ parts: 5 }] })).status).toBe(400);
+		expect(
+			(
+				await call('PATCH', t, `/bookings/${id}`, {
+					body: '{"parts":',
+					contentType: 'application/json'
+				})
+			).status
+		).toBe(400);
+		expect(
+			(await call('PATCH', t, `/bookings/${id}`, { body: 'parts=5', contentType: 'text/plain' }))
+				.status
+		).toBe(415);
+
+		// Unknown ids, another owner's booking, a booking that has ended.
+		expect((await call('PATCH', t, '/bookings/999999', { body: { notes: 'x' } })).status).toBe(404);
+		expect((await call('PATCH', t, '/bookings/abc', { body: { notes: 'x' } })).status).toBe(404);
+		const others = await db
+			.selectFrom('press_bookings as b')
+			.innerJoin('dies', 'dies.id', 'b.die_id')
+			.innerJoin('customers', 'customers.id', 'dies.customer_id')
+			.select('b.id')
+			.where('customers.code', '!=', 'BRKPUMP')
+			.where('b.cancelled_at', 'is', null)
+			.where('b.ends_at', '>', new Date().toISOString())
+			.executeTakeFirstOrThrow();
+		expect(
+			(
+				await call('PATCH', t, `/bookings/${others.id}`, {
+					body: { notes: 'x' },
+					token: tokens.ownerBooker
+				})
+			).status
+		).toBe(404);
+		const ended = await db
+			.selectFrom('press_bookings')
+			.select('id')
+			.where('cancelled_at', 'is', null)
+			.where('ends_at', '<', new Date().toISOString())
+			.executeTakeFirstOrThrow();
+		const gone = await call('PATCH', t, `/bookings/${ended.id}`, { body: { notes: 'late' } });
+		expect(gone.status).toBe(409);
+		expect(gone.body.issues).toBeUndefined();
+
+		// Credentials and scope.
+		expect(
+			(await call('PATCH', t, `/bookings/${id}`, { body: { notes: 'x' }, token: null })).status
+		).toBe(401);
+		expect(
+			(await call('PATCH', t, `/bookings/${id}`, { body: { notes: 'x' }, token: tokens.reader }))
+				.status
 		).toBe(403);
 	});
 

@@ -96,6 +96,30 @@ const tableOf = (description: string) => ({
 	additionalProperties: false
 });
 
+/**
+ * A board table whose columns are named once; `columns` lists the names in row order. A tooling
+ * owner's table may leave columns out (owner/customer-fields.ts), so each row follows `columns`.
+ */
+const boardTable = (description: string, columns: readonly string[]) => {
+	const table = tableOf(description);
+	return {
+		...table,
+		properties: {
+			...table.properties,
+			columns: { type: 'array', items: { enum: [...columns] }, uniqueItems: true }
+		}
+	};
+};
+
+/** What the booking checks made of a booking that was saved: blocks are never saved. */
+const savedVerdict = {
+	enum: ['fits', 'warning'],
+	description: 'fits: nothing blocks or warns; warning: saved with the warnings confirmed.'
+};
+
+/** Plant time without an offset, or ISO-8601 with Z or an offset. */
+const DATE_TIME_INPUT = 'Date-time; plant time without an offset.';
+
 const booking = {
 	type: 'object',
 	// What a tooling owner reads is always there; the plant's own fields come on top.
@@ -115,7 +139,12 @@ const booking = {
 		orderRef: { type: 'string', description: 'Plant only.' },
 		scrapPct: { type: 'number', description: 'Plant only.' },
 		shotsPerHour: { type: ['number', 'null'], description: 'Plant only.' },
-		notes: { type: ['string', 'null'], description: 'Plant only.' }
+		notes: { type: ['string', 'null'], description: 'Plant only.' },
+		endReason: {
+			type: ['string', 'null'],
+			description:
+				'Plant only. Why the end differs from the worked-out one (die change + preheat + press hours); null when the end was worked out.'
+		}
 	},
 	additionalProperties: false
 };
@@ -138,7 +167,8 @@ const reason = {
 				'service_due',
 				'end_of_life',
 				'rate_unusual',
-				'too_short'
+				'too_short',
+				'service_window'
 			]
 		},
 		level: { enum: ['block', 'warn'] },
@@ -344,6 +374,8 @@ export const OPENAPI_DOCUMENT = {
 			post: {
 				operationId: 'createBooking',
 				summary: 'Book a die on a press, checked like the booking form (scope bookings:write)',
+				description:
+					'Without endsAt the end is worked out: die change + preheat of the press, then the press hours for the shots at the rate. An endsAt other than the worked-out end needs endReason.',
 				requestBody: {
 					required: true,
 					content: { 'application/json': { schema: ref('BookingRequest') } }
@@ -352,21 +384,105 @@ export const OPENAPI_DOCUMENT = {
 					'201': json(
 						{
 							type: 'object',
-							required: ['booking', 'warnings'],
+							required: ['booking', 'verdict', 'warnings'],
 							properties: {
 								booking: ref('Booking'),
-								warnings: { type: 'array', items: { type: 'string' } }
+								verdict: savedVerdict,
+								warnings: {
+									type: 'array',
+									description: 'The warnings confirmed, as sentences.',
+									items: { type: 'string' }
+								}
 							},
 							additionalProperties: false
 						},
 						'Booked. The location header names the booking page.'
 					),
-					'400': error('The booking is incomplete, or names an unknown die or press.'),
+					'400': error(
+						'The booking is incomplete, names an unknown die or press, sets an end other than the worked-out one without endReason, or works out at more than 90 days.'
+					),
 					...AUTH_ERRORS,
-					'409': error('Only warnings stand: send the same booking with "confirm": true.'),
+					'409': error(
+						'Only warnings stand: send the same booking with "confirm": true. issues lists them (field is the check code).'
+					),
 					'413': error('The body is too large.'),
 					'415': error('The body is not application/json.'),
-					'422': error('A check blocks the booking; blocks cannot be overridden.')
+					'422': error(
+						'A check blocks the booking; blocks cannot be overridden. issues lists them (field is the check code).'
+					)
+				}
+			}
+		},
+		'/bookings/{id}': {
+			patch: {
+				operationId: 'updateBooking',
+				summary:
+					'Edit or move a booking that has not ended, checked like the booking form (scope bookings:write)',
+				description:
+					'Send only the fields to change; the others stay as booked (the die cannot change: cancel and book the other die). The end is worked out again (die change + preheat + press hours) when endsAt is null or empty, and when endsAt is left out, unless the booking’s end was set by hand and neither start nor press changes. An endsAt other than the worked-out end needs endReason (the booking’s own reason is kept when none is sent).',
+				parameters: [
+					{
+						name: 'id',
+						in: 'path',
+						required: true,
+						description: 'The booking id.',
+						schema: { type: 'integer', minimum: 1 }
+					}
+				],
+				requestBody: {
+					required: true,
+					content: { 'application/json': { schema: ref('BookingPatch') } }
+				},
+				responses: {
+					'200': json(
+						{
+							type: 'object',
+							required: ['booking', 'changed', 'verdict', 'warnings'],
+							properties: {
+								booking: ref('Booking'),
+								changed: {
+									type: 'array',
+									description:
+										'The fields that changed, by the names the booking’s history shows; empty when nothing did.',
+									items: {
+										enum: [
+											'press',
+											'start',
+											'end',
+											'parts',
+											'scrap %',
+											'shots/h',
+											'order',
+											'notes',
+											'end reason'
+										]
+									},
+									uniqueItems: true
+								},
+								verdict: savedVerdict,
+								warnings: {
+									type: 'array',
+									description: 'The warnings confirmed, as sentences.',
+									items: { type: 'string' }
+								}
+							},
+							additionalProperties: false
+						},
+						'Saved (or nothing to change). The booking as it stands now.'
+					),
+					'400': error(
+						'The body is not a JSON object or has an unknown or invalid field, names an unknown press, sets an end other than the worked-out one without a reason, or the run works out at more than 90 days.'
+					),
+					...AUTH_ERRORS,
+					'404': error('No such booking, or one of another owner’s dies.'),
+					'409': error(
+						'Only warnings stand: send the same change with "confirm": true (issues lists them; field is the check code). Or the booking is cancelled or has ended, and stays as it was.'
+					),
+					'413': error('The body is too large.'),
+					'415': error('The body is not application/json.'),
+					'422': error(
+						'A check blocks the changed booking; blocks cannot be overridden. issues lists them (field is the check code).'
+					)
 				}
 			}
 		},
@@ -625,12 +741,21 @@ export const OPENAPI_DOCUMENT = {
 			Booking: booking,
 			BookingRequest: {
 				type: 'object',
-				required: ['die', 'press', 'startsAt', 'endsAt', 'orderRef', 'parts'],
+				required: ['die', 'press', 'startsAt', 'orderRef', 'parts'],
 				properties: {
 					die: { type: 'string', maxLength: 20 },
 					press: { type: 'string', maxLength: 20 },
-					startsAt: { type: 'string', description: 'Date-time; plant time without an offset.' },
-					endsAt: { type: 'string', description: 'Date-time; plant time without an offset.' },
+					startsAt: { type: 'string', description: DATE_TIME_INPUT },
+					endsAt: {
+						type: 'string',
+						description: `${DATE_TIME_INPUT} Left out or empty: worked out (die change + preheat + press hours).`
+					},
+					endReason: {
+						type: 'string',
+						maxLength: 300,
+						description:
+							'Why the booking ends other than at the worked-out end; required then (400 without it), not stored otherwise.'
+					},
 					orderRef: { type: 'string', maxLength: 40 },
 					parts: { type: ['integer', 'string'], description: 'Good parts wanted.' },
 					scrapPct: {
@@ -642,9 +767,57 @@ export const OPENAPI_DOCUMENT = {
 					confirm: { type: 'boolean', description: 'Book despite warnings. Default false.' }
 				}
 			},
+			BookingPatch: {
+				type: 'object',
+				description:
+					'The fields to change; each left out stays as booked. Unknown fields are refused.',
+				properties: {
+					press: { type: 'string', maxLength: 20 },
+					startsAt: { type: 'string', description: DATE_TIME_INPUT },
+					endsAt: {
+						type: ['string', 'null'],
+						description: `${DATE_TIME_INPUT} null or empty: worked out again.`
+					},
+					endReason: {
+						type: 'string',
+						maxLength: 300,
+						description: 'Why the booking ends other than at the worked-out end.'
+					},
+					orderRef: { type: 'string', maxLength: 40 },
+					parts: { type: ['integer', 'string'], description: 'Good parts wanted.' },
+					scrapPct: {
+						type: ['number', 'string', 'null'],
+						description: 'Scrap allowance, percent; null keeps the booked one.'
+					},
+					shotsPerHour: {
+						type: ['number', 'string', 'null'],
+						description: 'Planned rate; null goes back to the default rate of the run.'
+					},
+					notes: {
+						type: 'string',
+						maxLength: 1000,
+						description: 'Replaces the notes; empty clears them.'
+					},
+					confirm: { type: 'boolean', description: 'Save despite warnings. Default false.' }
+				},
+				additionalProperties: false
+			},
 			Board: {
 				type: 'object',
-				required: ['from', 'to', 'days', 'today', 'generatedAt', 'press', 'dies', 'bookings'],
+				required: [
+					'from',
+					'to',
+					'days',
+					'today',
+					'generatedAt',
+					'press',
+					'dies',
+					'bookings',
+					'jobs',
+					'service',
+					'live',
+					'windows'
+				],
 				properties: {
 					from: { type: 'string', format: 'date' },
 					to: { type: 'string', format: 'date', description: 'The day after the last day shown.' },
@@ -658,14 +831,37 @@ export const OPENAPI_DOCUMENT = {
 							name: { type: 'string' },
 							chamber: { enum: ['hot', 'cold'] },
 							clampKn: { type: 'number' }
-						}
+						},
+						additionalProperties: false
 					},
-					dies: tableOf('One row per die; other tables point at a die by its row index.'),
-					bookings: tableOf('Bookings in the window.'),
-					jobs: tableOf('Open toolroom jobs (for a tooling owner: the shared ones).'),
-					service: tableOf('Service tasks falling due in the window.'),
-					live: tableOf('Dies counting on a press now.')
-				}
+					dies: boardTable(
+						'One row per die; other tables point at a die by its row index (column die). lifeUsedPct: of the most-worn active half.',
+						['number', 'part', 'owner', 'family', 'status', 'lifeUsedPct']
+					),
+					bookings: boardTable(
+						'Bookings in the window, not cancelled. start and end are date-times; phase is planned, running or ended; verdict (fits, warning or blocked) is the verdict on the run as it stands now, null once it has ended; why is its first reason as a sentence, null when there is none. A tooling owner gets fewer columns, never order, verdict or why.',
+						['id', 'die', 'press', 'start', 'end', 'order', 'parts', 'phase', 'verdict', 'why']
+					),
+					jobs: boardTable('Open toolroom jobs (for a tooling owner: the shared ones).', [
+						'die',
+						'number',
+						'kind',
+						'status',
+						'openedAt'
+					]),
+					service: boardTable('Service tasks falling due in the window (day: YYYY-MM-DD).', [
+						'die',
+						'day',
+						'kind',
+						'state'
+					]),
+					live: boardTable('Dies counting on a press now.', ['die', 'press', 'lastCountedAt']),
+					windows: boardTable(
+						'Service windows (toolroom time reserved on a die) in the window; no rows for a tooling owner.',
+						['die', 'id', 'start', 'end', 'kind', 'note', 'job']
+					)
+				},
+				additionalProperties: false
 			},
 			ShotEntry: shotEntry
 		}
