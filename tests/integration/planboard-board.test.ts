@@ -161,6 +161,18 @@ describe('service windows on the board', () => {
 		expect(owner.windows.rows).toEqual([]);
 		expect(owner.bookings.columns).not.toContain('verdict');
 		expect(owner.bookings.columns).not.toContain('why');
+		// The owner still reads when each of its runs starts and ends (a bar needs both).
+		expect(owner.bookings.columns).toEqual([
+			'id',
+			'die',
+			'press',
+			'start',
+			'end',
+			'parts',
+			'phase'
+		]);
+		expect(owner.bookings.rows.length).toBeGreaterThan(0);
+		for (const row of owner.bookings.rows) expect(row).toHaveLength(7);
 		expect(JSON.stringify(owner)).not.toContain('Owner asked for a teardown');
 	});
 });

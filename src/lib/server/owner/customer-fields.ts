@@ -75,7 +75,7 @@ export const CUSTOMER_FIELDS = {
 		'shotsPerHour',
 		'rateIsDefault'
 	],
-	boardBookingColumns: ['id', 'die', 'press', 'startsAt', 'endsAt', 'parts', 'phase'],
+	boardBookingColumns: ['id', 'die', 'press', 'start', 'end', 'parts', 'phase'],
 	boardDieColumns: ['number', 'part', 'owner', 'family', 'status', 'lifeUsedPct']
 } as const satisfies Record<string, readonly string[]>;
 
