@@ -1,31 +1,87 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import SQLite from 'better-sqlite3';
-import { Kysely, Migrator, SqliteDialect, type MigrationProvider } from 'kysely';
+import pg from 'pg';
+import {
+	Kysely,
+	Migrator,
+	PostgresDialect,
+	SqliteDialect,
+	sql,
+	type MigrationProvider
+} from 'kysely';
 import { migrations } from '../../../../migrations/index';
 import type { Database } from './schema';
 
 export type DB = Kysely<Database>;
 
+/** The two engines Castellan runs on: one SQLite file (the default) or a PostgreSQL database. */
+export type Engine = 'sqlite' | 'postgres';
+
 const rawHandles = new WeakMap<object, SQLite.Database>();
+const engines = new WeakMap<object, Engine>();
+const pools = new WeakMap<object, pg.Pool>();
 
 /**
- * The better-sqlite3 handle under a Kysely instance, for hot paths (the shot ledger) that run
- * prepared statements in one synchronous IMMEDIATE transaction. Use it only inside
- * `db.connection().execute(...)`, which holds Kysely's connection lock so nothing interleaves.
+ * The better-sqlite3 handle under a Kysely instance opened on SQLite. Code that must run on both
+ * engines uses `db/session.ts` instead; this is left for SQLite-only tools (the file backup, the
+ * benches' raw reference writers).
  */
 // eslint-disable-next-line @typescript-eslint/no-explicit-any
 export function rawHandle(db: Kysely<any>): SQLite.Database {
 	const handle = rawHandles.get(db);
-	if (!handle) throw new Error('This Kysely instance was not opened with openDatabase().');
+	if (!handle) {
+		throw new Error(
+			engines.get(db) === 'postgres'
+				? 'This is a PostgreSQL database; the SQLite handle exists only on SQLite.'
+				: 'This Kysely instance was not opened with openDatabase().'
+		);
+	}
 	return handle;
 }
 
+/** Which engine a Kysely instance (or a transaction / connection from it) talks to. */
+// eslint-disable-next-line @typescript-eslint/no-explicit-any
+export function engineOf(db: Kysely<any>): Engine {
+	const known = engines.get(db);
+	if (known) return known;
+	// A transaction or a single connection is a new Kysely object; ask its adapter.
+	const adapter = db.getExecutor().adapter;
+	return adapter.constructor.name.toLowerCase().includes('postgres') ? 'postgres' : 'sqlite';
+}
+
+/** The pg pool under a Kysely instance opened on PostgreSQL (for pg_dump-free maintenance). */
+// eslint-disable-next-line @typescript-eslint/no-explicit-any
+export function poolOf(db: Kysely<any>): pg.Pool | undefined {
+	return pools.get(db);
+}
+
+/** True for `postgres://…` / `postgresql://…`; anything else is a SQLite file path. */
+export function isPostgresUrl(target: string): boolean {
+	return /^postgres(ql)?:\/\//i.test(target.trim());
+}
+
+// PostgreSQL answers count(*), sum(integer) as bigint and avg/sum(bigint) as numeric, which the
+// pg driver hands over as text; Castellan's counts stay far below 2^53, so read them as numbers
+// (the same numbers SQLite returns).
+pg.types.setTypeParser(20, (v) => Number(v));
+pg.types.setTypeParser(1700, (v) => Number(v));
+
+export interface OpenOptions {
+	/** PostgreSQL pool size (connections per app process); `DATABASE_POOL_SIZE`, default 10. */
+	poolSize?: number;
+	/** PostgreSQL schema to use instead of `public` (the test suite gives each file its own). */
+	schema?: string;
+}
+
 /**
- * Opens the SQLite file with the settings every Castellan process uses. Kept free of SvelteKit's
- * `$env` so scripts and tests can open a database of their own.
+ * Opens the database with the settings every Castellan process uses: a PostgreSQL URL selects
+ * Kysely's PostgreSQL dialect over a `pg` pool; anything else is the SQLite file's path. Kept free
+ * of SvelteKit's `$env` so scripts and tests can open a database of their own.
  */
-export function openDatabase(filename: string): DB {
+export function openDatabase(target: string, options: OpenOptions = {}): DB {
+	if (isPostgresUrl(target)) return openPostgres(target, options);
+	const filename = target;
 	if (filename !== ':memory:') {
 		const dir = path.dirname(path.resolve(filename));
 		if (!fs.existsSync(dir)) {
@@ -44,7 +100,33 @@ export function openDatabase(filename: string): DB {
 	sqlite.pragma('wal_autocheckpoint = 8000');
 	const db = new Kysely<Database>({ dialect: new SqliteDialect({ database: sqlite }) });
 	rawHandles.set(db, sqlite);
+	engines.set(db, 'sqlite');
 	return db;
+}
+
+function openPostgres(url: string, options: OpenOptions): DB {
+	const size = options.poolSize ?? Number(process.env.DATABASE_POOL_SIZE || 10);
+	if (!Number.isInteger(size) || size < 1) {
+		throw new Error(`DATABASE_POOL_SIZE must be a whole number of 1 or more, not ${size}.`);
+	}
+	if (options.schema !== undefined && !/^[a-z_][a-z0-9_]{0,62}$/.test(options.schema)) {
+		throw new Error(`Not a plain schema name: ${options.schema}`);
+	}
+	const pool = new pg.Pool({
+		connectionString: url,
+		max: size,
+		// Every connection works in the plant's schema and stores times as text in UTC anyway.
+		options: options.schema ? `-c search_path=${options.schema}` : undefined
+	});
+	const db = new Kysely<Database>({ dialect: new PostgresDialect({ pool }) });
+	engines.set(db, 'postgres');
+	pools.set(db, pool);
+	return db;
+}
+
+/** The database target of this process: `DATABASE_URL` (PostgreSQL) or `DATABASE_PATH` (SQLite). */
+export function databaseTarget(env: Record<string, string | undefined> = process.env): string {
+	return env.DATABASE_URL?.trim() || env.DATABASE_PATH || './data/castellan.db';
 }
 
 const provider: MigrationProvider = { getMigrations: async () => migrations };
@@ -61,9 +143,34 @@ export async function migrateToLatest(db: Kysely<any>): Promise<string[]> {
 	return (results ?? []).map((r) => r.migrationName);
 }
 
-/** A migrated in-memory database for tests. */
+/**
+ * The engine the integration suite runs on: SQLite in memory by default; PostgreSQL when the
+ * suite's PostgreSQL pass sets `CASTELLAN_TEST_ENGINE=postgres` beside `TEST_DATABASE_URL`.
+ */
+export function testEngine(): Engine {
+	return process.env.CASTELLAN_TEST_ENGINE === 'postgres' ? 'postgres' : 'sqlite';
+}
+
+let testSchemas = 0;
+
+/**
+ * A migrated, empty database for one test: SQLite in memory, or on the PostgreSQL pass a schema of
+ * its own in `TEST_DATABASE_URL` (dropped again by `db.destroy()`'s caller never mattering: the
+ * cluster is thrown away after the run).
+ */
 export async function openTestDatabase(): Promise<DB> {
-	const db = openDatabase(':memory:');
+	if (testEngine() === 'sqlite') {
+		const db = openDatabase(':memory:');
+		await migrateToLatest(db);
+		return db;
+	}
+	const url = process.env.TEST_DATABASE_URL;
+	if (!url) throw new Error('CASTELLAN_TEST_ENGINE=postgres needs TEST_DATABASE_URL.');
+	const schema = `t_${process.pid}_${Date.now().toString(36)}_${++testSchemas}`;
+	const admin = openDatabase(url, { poolSize: 1 });
+	await sql.raw(`create schema ${schema}`).execute(admin);
+	await admin.destroy();
+	const db = openDatabase(url, { schema, poolSize: 4 });
 	await migrateToLatest(db);
 	return db;
 }

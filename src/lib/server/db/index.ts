@@ -1,12 +1,15 @@
 import { env } from '$env/dynamic/private';
-import { openDatabase, type DB } from './connect';
+import { databaseTarget, openDatabase, type DB } from './connect';
 
 export type { DB } from './connect';
 
 let instance: DB | undefined;
 
-/** The app's one Kysely instance, opened on first use so `vite build` never touches the file. */
+/**
+ * The app's one Kysely instance, opened on first use so `vite build` never touches the database:
+ * PostgreSQL when `DATABASE_URL` is set, else the SQLite file at `DATABASE_PATH`.
+ */
 export function getDb(): DB {
-	instance ??= openDatabase(env.DATABASE_PATH || './data/castellan.db');
+	instance ??= openDatabase(databaseTarget(env));
 	return instance;
 }
