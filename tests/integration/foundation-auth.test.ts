@@ -76,7 +76,9 @@ describe('users', () => {
 					password_hash: 'h'
 				})
 				.execute()
-		).rejects.toThrow(/CHECK constraint/);
+		).rejects.toThrow(
+			/CHECK constraint failed: users_customer_binding|violates check constraint "users_customer_binding"/
+		);
 	});
 
 	test('disabling a user ends the sessions at once', async () => {

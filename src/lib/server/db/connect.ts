@@ -134,7 +134,14 @@ const provider: MigrationProvider = { getMigrations: async () => migrations };
 /** Runs every pending migration; throws with the failing migration's name. */
 // eslint-disable-next-line @typescript-eslint/no-explicit-any
 export async function migrateToLatest(db: Kysely<any>): Promise<string[]> {
-	const migrator = new Migrator({ db, provider });
+	// On PostgreSQL Kysely looks for its bookkeeping tables in every schema unless told which one;
+	// another plant's (or another test's) schema in the same database must not count as migrated.
+	const migrationTableSchema =
+		engineOf(db) === 'postgres'
+			? (await sql<{ schema: string }>`select current_schema() as schema`.execute(db)).rows[0]
+					.schema
+			: undefined;
+	const migrator = new Migrator({ db, provider, migrationTableSchema });
 	const { error, results } = await migrator.migrateToLatest();
 	if (error) {
 		const failed = results?.find((r) => r.status === 'Error')?.migrationName ?? 'unknown';

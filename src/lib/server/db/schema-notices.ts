@@ -83,10 +83,21 @@ export interface NoticeDigestsTable {
 	sent_at: string;
 }
 
+/** One row per scheduled slot of a cron job that some process took (see notices/run-slots.ts). */
+export interface JobRunsTable {
+	/** Task name and the slot's instant, e.g. `castellan-notices:2026-03-02T05:00:00.000Z`. */
+	run_key: string;
+	/** Which process took it: host name and process id. */
+	taken_by: string;
+	taken_at: string;
+	finished_at: string | null;
+}
+
 export interface NoticesTables {
 	notices: NoticesTable;
 	notice_deliveries: NoticeDeliveriesTable;
 	notice_digests: NoticeDigestsTable;
+	job_runs: JobRunsTable;
 }
 
 export type Notice = Selectable<NoticesTable>;

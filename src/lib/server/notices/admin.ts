@@ -1,4 +1,4 @@
-import { sql } from 'kysely';
+import { sql, type RawBuilder } from 'kysely';
 import type { DB } from '../db/connect';
 import { nowIso } from '../time';
 import type { DeliveryState, NoticeKind, NoticeLevel } from './types';
@@ -22,6 +22,10 @@ export interface OutboxHealth {
 	status: 'ok' | 'retrying' | 'failing';
 }
 
+/** Rows meeting a condition, 0 for none (PostgreSQL does not sum booleans, so count a case). */
+const countWhere = (condition: RawBuilder<unknown>) =>
+	sql<number>`count(case when ${condition} then 1 end)`;
+
 /** Outbox health for the plant overview and the outbox page. */
 export async function outboxHealth(db: DB, now: string = nowIso()): Promise<OutboxHealth> {
 	const dayAgo = new Date(Date.parse(now) - 86_400_000).toISOString();
@@ -29,10 +33,10 @@ export async function outboxHealth(db: DB, now: string = nowIso()): Promise<Outb
 		db
 			.selectFrom('notice_deliveries')
 			.select([
-				sql<number>`coalesce(sum(state = 'pending'), 0)`.as('pending'),
-				sql<number>`coalesce(sum(state = 'pending' and attempts > 0), 0)`.as('retrying'),
-				sql<number>`coalesce(sum(state = 'failed'), 0)`.as('failed'),
-				sql<number>`coalesce(sum(state = 'sent' and sent_at >= ${dayAgo}), 0)`.as('sentLastDay'),
+				countWhere(sql`state = 'pending'`).as('pending'),
+				countWhere(sql`state = 'pending' and attempts > 0`).as('retrying'),
+				countWhere(sql`state = 'failed'`).as('failed'),
+				countWhere(sql`state = 'sent' and sent_at >= ${dayAgo}`).as('sentLastDay'),
 				sql<string | null>`min(case when state = 'pending' then created_at end)`.as(
 					'oldestPendingAt'
 				)
@@ -101,11 +105,12 @@ export async function listOutbox(
 		.innerJoin('dies', 'dies.id', 'n.die_id')
 		.$if(!!query.state, (b) => b.where('d.state', '=', query.state!))
 		.$if(!!q, (b) => {
-			const pattern = `%${q!.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
+			// Lower-cased on both sides: SQLite's like ignores ASCII case, PostgreSQL's does not.
+			const pattern = `%${q!.toLowerCase().replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
 			return b.where((eb) =>
 				eb.or([
-					sql<boolean>`d.recipient like ${pattern} escape '\\'`,
-					sql<boolean>`dies.number like ${pattern} escape '\\'`
+					sql<boolean>`lower(d.recipient) like ${pattern} escape '\\'`,
+					sql<boolean>`lower(dies.number) like ${pattern} escape '\\'`
 				])
 			);
 		});

@@ -1,4 +1,5 @@
-import { rawHandle, type DB } from '../db/connect';
+import type { DB } from '../db/connect';
+import { inWriteTransaction } from '../db/session';
 import type { Role } from '../db/schema';
 import { nowIso } from '../time';
 import type { NoticeItem, NoticeRecipient } from './types';
@@ -40,10 +41,10 @@ export function listSchedulerRecipients(db: DB): Promise<NoticeRecipient[]> {
 }
 
 /**
- * Writes items and their deliveries in one IMMEDIATE transaction. The item key is unique, so an
- * item already in the outbox (a second run, a restart, another process) adds nothing; only a new
- * item gets delivery rows. With nobody to tell, nothing is written, so items stay news until
- * someone switches notices on.
+ * Writes items and their deliveries in one write transaction under the notices lock. The item
+ * key is unique, so an item already in the outbox (a second run, a restart, another process)
+ * adds nothing; only a new item gets delivery rows. With nobody to tell, nothing is written, so
+ * items stay news until someone switches notices on.
  */
 export async function writeOutbox(
 	db: DB,
@@ -53,32 +54,21 @@ export async function writeOutbox(
 ): Promise<WriteResult> {
 	if (items.length === 0 || recipients.length === 0) return { notices: 0, deliveries: 0 };
 	const at = toStoredInstant(now);
-	const raw = rawHandle(db);
-	// Kysely's connection lock keeps anything else on this handle out while the synchronous
-	// transaction runs; IMMEDIATE takes the write lock up front so two processes queue, not fail.
-	return db.connection().execute(async () => {
-		// Most items of a daily run are old news: a key probe is cheaper than an insert that the
-		// unique index turns away after the payload was serialised.
-		const known = raw.prepare<[string], { one: number }>(
-			'select 1 as one from notices where notice_key = ?'
-		);
-		const insertNotice = raw.prepare<unknown[], { id: number }>(
-			`insert into notices (notice_key, kind, level, die_id, subject, payload, created_at)
-			 values (?, ?, ?, ?, ?, ?, ?)
-			 on conflict (notice_key) do nothing
-			 returning id`
-		);
-		const insertDelivery = raw.prepare(
-			`insert into notice_deliveries (notice_id, recipient, user_id, next_attempt_at, created_at)
-			 values (?, ?, ?, ?, ?)
-			 on conflict (notice_id, recipient) do nothing`
-		);
-		const write = raw.transaction((): WriteResult => {
-			let notices = 0;
-			let deliveries = 0;
-			for (const item of items) {
-				if (known.get(item.key)) continue;
-				const row = insertNotice.get(
+	// The lock makes two processes queue, not fail: SQLite takes its write lock up front, and on
+	// PostgreSQL the second writer waits and then sees the first one's keys.
+	return inWriteTransaction(db, { lock: 'notices' }, async (s) => {
+		let notices = 0;
+		let deliveries = 0;
+		for (const item of items) {
+			// Most items of a daily run are old news: a key probe is cheaper than an insert that
+			// the unique index turns away after the payload was serialised.
+			if (await s.get('select 1 as one from notices where notice_key = ?', [item.key])) continue;
+			const row = await s.get<{ id: number }>(
+				`insert into notices (notice_key, kind, level, die_id, subject, payload, created_at)
+				 values (?, ?, ?, ?, ?, ?, ?)
+				 on conflict (notice_key) do nothing
+				 returning id`,
+				[
 					item.key,
 					item.kind,
 					item.level,
@@ -86,16 +76,21 @@ export async function writeOutbox(
 					item.subject,
 					JSON.stringify(item.payload),
 					at
+				]
+			);
+			if (!row) continue;
+			notices++;
+			for (const r of recipients) {
+				const { changes } = await s.run(
+					`insert into notice_deliveries (notice_id, recipient, user_id, next_attempt_at, created_at)
+					 values (?, ?, ?, ?, ?)
+					 on conflict (notice_id, recipient) do nothing`,
+					[row.id, r.email, r.userId, at, at]
 				);
-				if (!row) continue;
-				notices++;
-				for (const r of recipients) {
-					deliveries += insertDelivery.run(row.id, r.email, r.userId, at, at).changes;
-				}
+				deliveries += changes;
 			}
-			return { notices, deliveries };
-		});
-		return write.immediate();
+		}
+		return { notices, deliveries };
 	});
 }
 

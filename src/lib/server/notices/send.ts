@@ -1,5 +1,6 @@
 import { randomUUID } from 'node:crypto';
-import { rawHandle, type DB } from '../db/connect';
+import type { DB } from '../db/connect';
+import { inWriteTransaction } from '../db/session';
 import type { Mailer } from '../mail/transport';
 import { findDieConcerns } from './concerns';
 import { composeDigest, type ComposedMail, type DigestEntry } from './digest';
@@ -63,45 +64,45 @@ interface Claim {
 	rows: ClaimedRow[];
 }
 
-/** SQL list of the kinds that go to owners, from OWNER_NOTICE_KINDS. */
-const OWNER_KINDS_SQL = OWNER_NOTICE_KINDS.map((k) => `'${k}'`).join(',');
+/** 1 when the notice `n` goes to a die's owner, else 0 (a number on both engines). */
+const OWNER_FLAG_SQL = `case when n.kind in (${OWNER_NOTICE_KINDS.map((k) => `'${k}'`).join(',')}) then 1 else 0 end`;
 
 /**
- * Takes every pending row whose time has come, one digest per recipient, in one IMMEDIATE
- * transaction: each row gets the digest's id and a lease, so another sender (a second process,
- * an overlapping run) skips it.
+ * Takes every pending row whose time has come, one digest per recipient, in one write
+ * transaction under the notices lock: each row gets the digest's id and a lease, so another
+ * sender (a second process, an overlapping run) waits for the lock and then skips it.
  */
 async function claimDue(db: DB, at: string): Promise<Claim[]> {
-	const raw = rawHandle(db);
 	const lease = new Date(Date.parse(at) + CLAIM_LEASE_MS).toISOString();
-	return db.connection().execute(async () => {
-		const recipients = raw.prepare<[string], { recipient: string; owner: number }>(
-			`select distinct d.recipient, (n.kind in (${OWNER_KINDS_SQL})) as owner
+	return inWriteTransaction(db, { lock: 'notices' }, async (s) => {
+		const recipients = await s.all<{ recipient: string; owner: number }>(
+			`select distinct d.recipient, ${OWNER_FLAG_SQL} as owner
 			   from notice_deliveries d join notices n on n.id = d.notice_id
-			  where d.state = 'pending' and d.next_attempt_at <= ? order by d.recipient, owner`
+			  where d.state = 'pending' and d.next_attempt_at <= ? order by d.recipient, owner`,
+			[at]
 		);
-		const claim = raw.prepare(
-			`update notice_deliveries set digest_id = ?, next_attempt_at = ?
-			  where recipient = ? and state = 'pending' and next_attempt_at <= ?
-			    and (select n.kind in (${OWNER_KINDS_SQL}) from notices n
-			          where n.id = notice_deliveries.notice_id) = ?`
-		);
-		const claimed = raw.prepare<[string], ClaimedRow>(
-			`select d.id, d.recipient, d.attempts, n.level, n.subject, dies.number as die_number,
-			        n.payload
-			   from notice_deliveries d
-			   join notices n on n.id = d.notice_id
-			   join dies on dies.id = n.die_id
-			  where d.digest_id = ? and d.state = 'pending' order by d.id`
-		);
-		const run = raw.transaction((): Claim[] =>
-			recipients.all(at).map(({ recipient, owner }) => {
-				const digestId = randomUUID();
-				claim.run(digestId, lease, recipient, at, owner);
-				return { digestId, recipient, owner: owner === 1, rows: claimed.all(digestId) };
-			})
-		);
-		return run.immediate();
+		const claims: Claim[] = [];
+		for (const { recipient, owner } of recipients) {
+			const digestId = randomUUID();
+			await s.run(
+				`update notice_deliveries set digest_id = ?, next_attempt_at = ?
+				  where recipient = ? and state = 'pending' and next_attempt_at <= ?
+				    and (select ${OWNER_FLAG_SQL} from notices n
+				          where n.id = notice_deliveries.notice_id) = ?`,
+				[digestId, lease, recipient, at, owner]
+			);
+			const rows = await s.all<ClaimedRow>(
+				`select d.id, d.recipient, d.attempts, n.level, n.subject, dies.number as die_number,
+				        n.payload
+				   from notice_deliveries d
+				   join notices n on n.id = d.notice_id
+				   join dies on dies.id = n.die_id
+				  where d.digest_id = ? and d.state = 'pending' order by d.id`,
+				[digestId]
+			);
+			claims.push({ digestId, recipient, owner: Number(owner) === 1, rows });
+		}
+		return claims;
 	});
 }
 
@@ -112,23 +113,19 @@ async function markSent(
 	messageId: string,
 	at: string
 ): Promise<number> {
-	const raw = rawHandle(db);
-	return db.connection().execute(async () => {
-		const mark = raw.prepare(
+	return inWriteTransaction(db, { lock: 'notices' }, async (s) => {
+		const { changes } = await s.run(
 			`update notice_deliveries
 			    set state = 'sent', sent_at = ?, attempts = attempts + 1, last_error = null
-			  where digest_id = ? and state = 'pending'`
+			  where digest_id = ? and state = 'pending'`,
+			[at, claim.digestId]
 		);
-		const record = raw.prepare(
+		await s.run(
 			`insert into notice_digests (id, recipient, subject, item_count, message_id, sent_at)
-			 values (?, ?, ?, ?, ?, ?)`
+			 values (?, ?, ?, ?, ?, ?)`,
+			[claim.digestId, claim.recipient, subject, changes, messageId, at]
 		);
-		const run = raw.transaction((): number => {
-			const { changes } = mark.run(at, claim.digestId);
-			record.run(claim.digestId, claim.recipient, subject, changes, messageId, at);
-			return changes;
-		});
-		return run.immediate();
+		return changes;
 	});
 }
 
@@ -139,31 +136,28 @@ async function markFailed(
 	at: string,
 	maxAttempts: number
 ): Promise<{ retrying: number; failed: number }> {
-	const raw = rawHandle(db);
 	const error = message.slice(0, 1000);
-	return db.connection().execute(async () => {
-		const current = raw.prepare<[string], { id: number; attempts: number }>(
-			`select id, attempts from notice_deliveries where digest_id = ? and state = 'pending'`
+	return inWriteTransaction(db, { lock: 'notices' }, async (s) => {
+		let retrying = 0;
+		let failed = 0;
+		const current = await s.all<{ id: number; attempts: number }>(
+			`select id, attempts from notice_deliveries where digest_id = ? and state = 'pending'`,
+			[claim.digestId]
 		);
-		const update = raw.prepare(
-			`update notice_deliveries
-			    set attempts = ?, last_error = ?, state = ?, next_attempt_at = ?, digest_id = null
-			  where id = ?`
-		);
-		const run = raw.transaction(() => {
-			let retrying = 0;
-			let failed = 0;
-			for (const row of current.all(claim.digestId)) {
-				const attempts = row.attempts + 1;
-				const giveUp = attempts >= maxAttempts;
-				const next = new Date(Date.parse(at) + backoffMs(attempts)).toISOString();
-				update.run(attempts, error, giveUp ? 'failed' : 'pending', next, row.id);
-				if (giveUp) failed++;
-				else retrying++;
-			}
-			return { retrying, failed };
-		});
-		return run.immediate();
+		for (const row of current) {
+			const attempts = row.attempts + 1;
+			const giveUp = attempts >= maxAttempts;
+			const next = new Date(Date.parse(at) + backoffMs(attempts)).toISOString();
+			await s.run(
+				`update notice_deliveries
+				    set attempts = ?, last_error = ?, state = ?, next_attempt_at = ?, digest_id = null
+				  where id = ?`,
+				[attempts, error, giveUp ? 'failed' : 'pending', next, row.id]
+			);
+			if (giveUp) failed++;
+			else retrying++;
+		}
+		return { retrying, failed };
 	});
 }
 
