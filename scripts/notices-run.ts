@@ -1,11 +1,11 @@
 // One notice run now (or at --now), outside the server's schedule:
 //   npm run notices:run [-- --now 2026-03-02T06:00:00Z]
-// Reads DATABASE_PATH, SMTP_URL, MAIL_FROM, ORIGIN and NOTICE_THRESHOLD like the server does.
+// Reads DATABASE_URL or DATABASE_PATH, SMTP_URL, MAIL_FROM, ORIGIN and NOTICE_THRESHOLD like the server does.
 // Exit code 1 when a digest could not be sent (its rows stay pending and are retried later).
 import { createMailer } from '../src/lib/server/mail/transport';
 import { readNoticeConfig } from '../src/lib/server/notices/config';
 import { runNotices } from '../src/lib/server/notices/run';
-import { databasePath, fail, openMigratedDatabase, parseCli } from './lib/cli';
+import { databaseLabel, fail, openMigratedDatabase, parseCli } from './lib/cli';
 
 const USAGE = 'npm run notices:run [-- --now <ISO date and time>]';
 const { values } = parseCli(
@@ -30,7 +30,7 @@ try {
 		origin: config.origin,
 		threshold: config.threshold
 	});
-	console.log(`Notice run at ${now.toISOString()} on ${databasePath()}`);
+	console.log(`Notice run at ${now.toISOString()} on ${databaseLabel()}`);
 	console.log(`  items standing      ${r.items}`);
 	console.log(
 		`  new in the outbox   ${r.written} (${r.queued} deliveries, ${r.recipients} recipients)`

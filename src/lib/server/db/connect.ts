@@ -21,6 +21,7 @@ export type Engine = 'sqlite' | 'postgres';
 const rawHandles = new WeakMap<object, SQLite.Database>();
 const engines = new WeakMap<object, Engine>();
 const pools = new WeakMap<object, pg.Pool>();
+const opened = new WeakMap<object, { target: string; options: OpenOptions }>();
 
 /**
  * The better-sqlite3 handle under a Kysely instance opened on SQLite. Code that must run on both
@@ -80,7 +81,12 @@ export interface OpenOptions {
  * of SvelteKit's `$env` so scripts and tests can open a database of their own.
  */
 export function openDatabase(target: string, options: OpenOptions = {}): DB {
-	if (isPostgresUrl(target)) return openPostgres(target, options);
+	const db = isPostgresUrl(target) ? openPostgres(target, options) : openSqlite(target);
+	opened.set(db, { target, options });
+	return db;
+}
+
+function openSqlite(target: string): DB {
 	const filename = target;
 	if (filename !== ':memory:') {
 		const dir = path.dirname(path.resolve(filename));
@@ -180,4 +186,35 @@ export async function openTestDatabase(): Promise<DB> {
 	const db = openDatabase(url, { schema, poolSize: 4 });
 	await migrateToLatest(db);
 	return db;
+}
+
+function openedWith(db: DB): { target: string; options: OpenOptions } {
+	const known = opened.get(db);
+	if (!known) throw new Error('This Kysely instance was not opened with openDatabase().');
+	if (known.target === ':memory:') {
+		throw new Error('An in-memory SQLite database cannot be opened a second time.');
+	}
+	return known;
+}
+
+/**
+ * A second, independent Kysely instance (its own SQLite handle or its own pg pool) on the same
+ * database as `db`, as a second app process would open it: for tests of two writers at once.
+ */
+export function reopenDatabase(db: DB): DB {
+	const { target, options } = openedWith(db);
+	return openDatabase(target, options);
+}
+
+/**
+ * The environment a child process (`node build`, a script) needs to open the same database as
+ * `db`: `DATABASE_PATH`, or on PostgreSQL `DATABASE_URL` with the schema in its `options`.
+ */
+export function databaseEnvFor(db: DB): { DATABASE_PATH: string } | { DATABASE_URL: string } {
+	const { target, options } = openedWith(db);
+	if (!isPostgresUrl(target)) return { DATABASE_PATH: target };
+	if (!options.schema) return { DATABASE_URL: target };
+	const url = new URL(target);
+	url.searchParams.set('options', `-c search_path=${options.schema}`);
+	return { DATABASE_URL: url.toString() };
 }

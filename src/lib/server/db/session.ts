@@ -80,6 +80,32 @@ function sqliteSession(raw: SQLite.Database, kysely: DB): SqlSession {
 	};
 }
 
+/** How long a writer waits for SQLite's write lock before giving up (the busy_timeout it replaces). */
+const SQLITE_LOCK_WAIT_MS = 5000;
+
+/**
+ * `BEGIN IMMEDIATE` that waits for the write lock without blocking the event loop. The work
+ * inside a transaction awaits between statements, so when another handle in this same process
+ * holds the lock (tests of two writers, a script beside the server), better-sqlite3's busy wait
+ * would stall the very process that must finish that transaction until the timeout. Instead the
+ * lock is tried at once and tried again after a short sleep, up to the usual five seconds.
+ */
+async function beginImmediate(raw: SQLite.Database): Promise<void> {
+	const give = Date.now() + SQLITE_LOCK_WAIT_MS;
+	for (let pause = 1; ; pause = Math.min(pause * 2, 25)) {
+		raw.pragma('busy_timeout = 0');
+		try {
+			sqliteStatement(raw, 'begin immediate').run();
+			return;
+		} catch (error) {
+			if ((error as { code?: string }).code !== 'SQLITE_BUSY' || Date.now() > give) throw error;
+		} finally {
+			raw.pragma(`busy_timeout = ${SQLITE_LOCK_WAIT_MS}`);
+		}
+		await new Promise((resolve) => setTimeout(resolve, pause));
+	}
+}
+
 // ---------------------------------------------------------------- PostgreSQL
 
 const placeholderCache = new Map<string, string>();
@@ -148,7 +174,8 @@ export async function inWriteTransaction<T>(
 	if (engineOf(db) === 'sqlite') {
 		const raw = rawHandle(db);
 		return db.connection().execute(async (conn) => {
-			sqliteStatement(raw, options.rollback ? 'begin deferred' : 'begin immediate').run();
+			if (options.rollback) sqliteStatement(raw, 'begin deferred').run();
+			else await beginImmediate(raw);
 			try {
 				const result = await work(sqliteSession(raw, conn));
 				sqliteStatement(raw, options.rollback ? 'rollback' : 'commit').run();
@@ -189,7 +216,11 @@ export async function inReadSession<T>(
 /** A unique-constraint violation on either engine. */
 export function isUniqueViolation(error: unknown): boolean {
 	const code = (error as { code?: string } | null)?.code;
-	return code === '23505' || code === 'SQLITE_CONSTRAINT_UNIQUE' || code === 'SQLITE_CONSTRAINT_PRIMARYKEY';
+	return (
+		code === '23505' ||
+		code === 'SQLITE_CONSTRAINT_UNIQUE' ||
+		code === 'SQLITE_CONSTRAINT_PRIMARYKEY'
+	);
 }
 
 /** `?, ?, ?` for an `in (…)` list of n values (n ≥ 1). */

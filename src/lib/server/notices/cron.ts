@@ -7,6 +7,7 @@ import { createMailer, type Mailer } from '../mail/transport';
 import { nowIso } from '../time';
 import { readNoticeConfig, type NoticeConfig } from './config';
 import { runNotices } from './run';
+import { runSlotCoordinator } from './run-slots';
 import { sendPending } from './send';
 import { startDueServiceWindows } from '../schedule/service-windows';
 
@@ -79,11 +80,19 @@ function deliverOnce(state: NoticeCron): Promise<void> {
 	});
 }
 
+/**
+ * Every app process on the database schedules the job; each scheduled slot runs in the one
+ * process that takes its `job_runs` row first (run-slots.ts), so the daily run and each delivery
+ * tick happen once per schedule however many processes there are.
+ */
+const oncePerSlot = () => ({ distributed: true, runCoordinator: runSlotCoordinator(getDb) });
+
 function scheduleDaily(state: NoticeCron, zone: string): ScheduledTask {
 	return cron.schedule(state.config.cron!, () => runOnce(state), {
 		name: 'castellan-notices',
 		noOverlap: true,
-		timezone: zone
+		timezone: zone,
+		...oncePerSlot()
 	});
 }
 
@@ -122,7 +131,8 @@ export function startNoticeCron(
 		scheduleDaily(state, zone),
 		cron.schedule(DELIVERY_TICK, () => deliverOnce(state), {
 			name: 'castellan-notice-delivery',
-			noOverlap: true
+			noOverlap: true,
+			...oncePerSlot()
 		})
 	);
 	const next = state.tasks[0].getNextRun();
