@@ -1,6 +1,4 @@
 import { execFile } from 'node:child_process';
-import fs from 'node:fs';
-import os from 'node:os';
 import path from 'node:path';
 import { promisify } from 'node:util';
 import cron, { type ScheduledTask } from 'node-cron';
@@ -8,9 +6,7 @@ import { afterAll, afterEach, beforeAll, beforeEach, describe, expect, it } from
 import { startFakeMail, type FakeMail } from '../../fakes/mail/server';
 import {
 	databaseEnvFor,
-	migrateToLatest,
-	openDatabase,
-	openTestDatabase,
+	openSharedTestDatabase,
 	reopenDatabase,
 	testEngine,
 	type DB
@@ -35,7 +31,6 @@ import {
 const run = promisify(execFile);
 
 let mail: FakeMail;
-let dir: string | undefined;
 /** The first handle; the tests open the second (or the child processes) on the same database. */
 let first: DB;
 
@@ -47,20 +42,11 @@ afterAll(async () => {
 });
 beforeEach(async () => {
 	mail.clear();
-	if (testEngine() === 'postgres') {
-		first = await openTestDatabase();
-	} else {
-		// A file, not :memory:, so that a second handle and other processes can open it.
-		dir = fs.mkdtempSync(path.join(os.tmpdir(), 'castellan-notices-'));
-		first = openDatabase(path.join(dir, 'plant.db'));
-		await migrateToLatest(first);
-	}
+	first = await openSharedTestDatabase();
 	await seedPlant(first);
 });
 afterEach(async () => {
 	await first.destroy();
-	if (dir) fs.rmSync(dir, { recursive: true, force: true });
-	dir = undefined;
 });
 
 function mailers(n: number): Mailer[] {

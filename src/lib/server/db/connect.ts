@@ -1,4 +1,5 @@
 import fs from 'node:fs';
+import os from 'node:os';
 import path from 'node:path';
 import SQLite from 'better-sqlite3';
 import pg from 'pg';
@@ -184,6 +185,26 @@ export async function openTestDatabase(): Promise<DB> {
 	await sql.raw(`create schema ${schema}`).execute(admin);
 	await admin.destroy();
 	const db = openDatabase(url, { schema, poolSize: 4 });
+	await migrateToLatest(db);
+	return db;
+}
+
+const sharedFiles: string[] = [];
+
+/**
+ * Like `openTestDatabase`, but one that `reopenDatabase` and child processes (`databaseEnvFor`)
+ * can open too, as several app processes would: on SQLite a migrated file in a temporary folder
+ * (removed when the test process exits) instead of memory; on PostgreSQL a schema of its own.
+ */
+export async function openSharedTestDatabase(): Promise<DB> {
+	if (testEngine() === 'postgres') return openTestDatabase();
+	const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'castellan-test-'));
+	if (sharedFiles.push(dir) === 1) {
+		process.once('exit', () => {
+			for (const d of sharedFiles) fs.rmSync(d, { recursive: true, force: true });
+		});
+	}
+	const db = openDatabase(path.join(dir, 'plant.db'));
 	await migrateToLatest(db);
 	return db;
 }
