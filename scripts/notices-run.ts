@@ -5,7 +5,7 @@
 import { createMailer } from '../src/lib/server/mail/transport';
 import { readNoticeConfig } from '../src/lib/server/notices/config';
 import { runNotices } from '../src/lib/server/notices/run';
-import { databaseLabel, fail, openMigratedDatabase, parseCli } from './lib/cli';
+import { fail, openMigratedDatabase, parseCli, shownTarget } from './lib/cli';
 
 const USAGE = 'npm run notices:run [-- --now <ISO date and time>]';
 const { values } = parseCli(
@@ -30,7 +30,7 @@ try {
 		origin: config.origin,
 		threshold: config.threshold
 	});
-	console.log(`Notice run at ${now.toISOString()} on ${databaseLabel()}`);
+	console.log(`Notice run at ${now.toISOString()} on ${shownTarget()}`);
 	console.log(`  items standing      ${r.items}`);
 	console.log(
 		`  new in the outbox   ${r.written} (${r.queued} deliveries, ${r.recipients} recipients)`

@@ -30,15 +30,14 @@ export function databasePath(): string {
 	return process.env.DATABASE_PATH || './data/castellan.db';
 }
 
-/** The database scripts open, for messages: the SQLite file, or the PostgreSQL URL without its password. */
-export function databaseLabel(): string {
-	const target = databaseTarget(process.env);
-	return isPostgresUrl(target) ? target.replace(/\/\/([^:@/]*):[^@/]*@/, '//$1@') : target;
+/** The database as shown to people: the SQLite path, or the PostgreSQL URL without its password. */
+export function shownTarget(target = databaseTarget(process.env)): string {
+	return target.replace(/\/\/([^:@/]*):[^@/]*@/, '//$1@');
 }
 
 /**
- * Opens the database (DATABASE_URL for PostgreSQL, else the SQLite file at DATABASE_PATH, making
- * the default ./data folder if needed) and migrates it.
+ * Opens the command's database and migrates it: PostgreSQL when DATABASE_URL is set, else the
+ * SQLite file at DATABASE_PATH (making the default ./data folder if needed).
  */
 export async function openMigratedDatabase(): Promise<DB> {
 	const target = databaseTarget(process.env);

@@ -14,15 +14,7 @@ import {
 import { createMailer, type Mailer } from '../../src/lib/server/mail/transport';
 import { runNotices } from '../../src/lib/server/notices';
 import { runSlotCoordinator, takeRunSlot } from '../../src/lib/server/notices/run-slots';
-import {
-	deliveryStates,
-	diesIn,
-	mailFor,
-	NOW,
-	ORIGIN,
-	seedPlant,
-	TOOLROOM_RECIPIENTS
-} from './notices-support';
+import { expectToolroomToldOnce, NOW, ORIGIN, seedPlant } from './notices-support';
 
 // Two writers on one plant database, as two app processes would be: on SQLite two handles on one
 // file, on the PostgreSQL pass two pools on one schema (`reopenDatabase`), and two processes of
@@ -55,20 +47,7 @@ function mailers(n: number): Mailer[] {
 	);
 }
 
-async function expectEachToldOnce(db: DB) {
-	const messages = mail.messages();
-	expect(messages).toHaveLength(TOOLROOM_RECIPIENTS.length);
-	for (const email of TOOLROOM_RECIPIENTS) {
-		const digests = mailFor(messages, email);
-		expect(digests).toHaveLength(1);
-		expect(diesIn(digests[0])).toEqual(['D-9003', 'D-9002', 'D-9001', 'D-9005']);
-	}
-	const notices = await db.selectFrom('notices').select('notice_key').execute();
-	expect(notices).toHaveLength(4);
-	expect(await deliveryStates(db)).toEqual({ sent: 8 });
-	const digests = await db.selectFrom('notice_digests').selectAll().execute();
-	expect(digests.map((d) => d.recipient).sort()).toEqual(TOOLROOM_RECIPIENTS);
-}
+const expectEachToldOnce = (db: DB) => expectToolroomToldOnce(db, mail.messages());
 
 describe(`two runs at once on one database (${testEngine()})`, () => {
 	it('write nothing twice and send each digest once (two handles, one process)', async () => {
