@@ -87,13 +87,30 @@ function deliverOnce(state: NoticeCron): Promise<void> {
  */
 const oncePerSlot = () => ({ distributed: true, runCoordinator: runSlotCoordinator(getDb) });
 
+/**
+ * Says so when a slot was not run here: the daily run logs that another process has it (the
+ * five-minute tick stays quiet), and a database error while claiming the slot is logged as one.
+ */
+function reportSkips(task: ScheduledTask, label: string, quiet: boolean): ScheduledTask {
+	task.on('execution:skipped', (context) => {
+		const slot = context.date.toISOString();
+		if (context.reason === 'coordinator-error') {
+			console.error(`Castellan notices (${label}) failed: the ${slot} slot could not be claimed.`);
+		} else if (!quiet) {
+			console.log(`Castellan notices (${label}): the ${slot} slot runs in another process.`);
+		}
+	});
+	return task;
+}
+
 function scheduleDaily(state: NoticeCron, zone: string): ScheduledTask {
-	return cron.schedule(state.config.cron!, () => runOnce(state), {
+	const task = cron.schedule(state.config.cron!, () => runOnce(state), {
 		name: 'castellan-notices',
 		noOverlap: true,
 		timezone: zone,
 		...oncePerSlot()
 	});
+	return reportSkips(task, 'daily run', false);
 }
 
 /**
@@ -129,11 +146,15 @@ export function startNoticeCron(
 	holder[STATE] = state;
 	state.tasks.push(
 		scheduleDaily(state, zone),
-		cron.schedule(DELIVERY_TICK, () => deliverOnce(state), {
-			name: 'castellan-notice-delivery',
-			noOverlap: true,
-			...oncePerSlot()
-		})
+		reportSkips(
+			cron.schedule(DELIVERY_TICK, () => deliverOnce(state), {
+				name: 'castellan-notice-delivery',
+				noOverlap: true,
+				...oncePerSlot()
+			}),
+			'delivery',
+			true
+		)
 	);
 	const next = state.tasks[0].getNextRun();
 	console.log(
