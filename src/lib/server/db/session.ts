@@ -189,7 +189,11 @@ export async function inReadSession<T>(
 /** A unique-constraint violation on either engine. */
 export function isUniqueViolation(error: unknown): boolean {
 	const code = (error as { code?: string } | null)?.code;
-	return code === '23505' || code === 'SQLITE_CONSTRAINT_UNIQUE' || code === 'SQLITE_CONSTRAINT_PRIMARYKEY';
+	return (
+		code === '23505' ||
+		code === 'SQLITE_CONSTRAINT_UNIQUE' ||
+		code === 'SQLITE_CONSTRAINT_PRIMARYKEY'
+	);
 }
 
 /** `?, ?, ?` for an `in (…)` list of n values (n ≥ 1). */
