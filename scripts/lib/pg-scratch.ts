@@ -36,7 +36,10 @@ export interface ScratchDatabase {
  * A new, empty database on TEST_DATABASE_URL's server, made like a production one (from
  * template0, C collation, UTF-8). `label` is lower-case letters, naming the test.
  */
-export async function createScratchDatabase(baseUrl: string, label: string): Promise<ScratchDatabase> {
+export async function createScratchDatabase(
+	baseUrl: string,
+	label: string
+): Promise<ScratchDatabase> {
 	if (!/^[a-z]+$/.test(label)) throw new Error(`Not a plain label: ${label}`);
 	const name = `tdb_${label}_${process.pid}_${++made}`;
 	await withClient(baseUrl, (c) =>
@@ -55,7 +58,9 @@ export async function createScratchDatabase(baseUrl: string, label: string): Pro
 }
 
 /** Drops the schemas and scratch databases test runs left in `url`'s database and server. */
-export async function dropTestLeftovers(url: string): Promise<{ schemas: number; databases: number }> {
+export async function dropTestLeftovers(
+	url: string
+): Promise<{ schemas: number; databases: number }> {
 	return withClient(url, async (c) => {
 		const schemas = await c.query<{ name: string }>(
 			'select nspname as name from pg_namespace where nspname ~ $1',
