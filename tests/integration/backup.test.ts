@@ -55,16 +55,22 @@ describe.skipIf(testEngine() === 'postgres')('online backup under write load', (
 			const ins = db.prepare("insert into shot_entries (die_id, counted_at, shots, source, created_at) values (1, '2026-01-01T00:00:00Z', 5, 'api', '2026-01-01T00:00:00Z')");
 			const upd = db.prepare('update dies set total_shots = total_shots + 5 where id = 1');
 			const tx = db.transaction(() => { ins.run(); upd.run(); });
+			tx(); process.send('writing');
 			const until = Date.now() + 1500;
 			while (Date.now() < until) tx();
 			process.send('done');`;
 		const script = path.join(dir, 'writer.cjs');
 		fs.writeFileSync(script, writerCode);
 		const writer = fork(script);
-		await new Promise((r) => setTimeout(r, 300));
+		const said = (word: string) =>
+			new Promise<void>((resolve) => writer.on('message', (m) => m === word && resolve()));
+		const done = said('done');
+		// Back up once the writer has committed and goes on writing (a forked process can take
+		// longer than any fixed wait to start on a busy machine).
+		await said('writing');
 		const target = path.join(dir, 'backup.db');
 		await backupDatabase(live, target);
-		await new Promise((r) => writer.on('message', r));
+		await done;
 
 		expect(checkIntegrity(target)).toBe('ok');
 		const restoredPath = path.join(dir, 'restored.db');
