@@ -7,7 +7,7 @@ import { spawn, type ChildProcess } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { afterAll, beforeAll, describe, expect, test } from 'vitest';
+import { afterAll, afterEach, beforeAll, describe, expect, test } from 'vitest';
 import { startFakeMail, type FakeMail } from '../../fakes/mail/server';
 import { createScratchDatabase, type ScratchDatabase } from '../../scripts/lib/pg-scratch';
 import {
@@ -81,7 +81,24 @@ async function startApp(name: string, env: Record<string, string>): Promise<App>
 	return app;
 }
 
-const output = (app: App) => app.lines.map((l) => `  ${l.text}`).join('\n');
+const output = (app: App, last = 200) =>
+	app.lines
+		.slice(-last)
+		.map((l) => `  ${l.text}`)
+		.join('\n');
+
+/** SIGTERM, and SIGKILL when the process is still there 10 s later. */
+function stopApp(app: App): Promise<void> {
+	return new Promise((resolve) => {
+		if (app.child.exitCode !== null || app.child.signalCode !== null) return resolve();
+		const kill = setTimeout(() => app.child.kill('SIGKILL'), 10_000);
+		app.child.once('exit', () => {
+			clearTimeout(kill);
+			resolve();
+		});
+		app.child.kill('SIGTERM');
+	});
+}
 
 /** Polls until `check` holds; fails with `what` and both processes' output when it never does. */
 async function waitFor(
@@ -116,6 +133,7 @@ function postForm(app: App, pathname: string, fields: Record<string, string>, co
 		redirect: 'manual',
 		headers: {
 			origin: app.base,
+			accept: 'text/html',
 			'content-type': 'application/x-www-form-urlencoded',
 			...(cookie ? { cookie } : {})
 		},
@@ -240,20 +258,19 @@ describe.skipIf(reason !== null)('two app processes on one PostgreSQL database',
 	}, 150_000);
 
 	afterAll(async () => {
-		await Promise.all(
-			apps.map(
-				(a) =>
-					new Promise<void>((resolve) => {
-						if (a.child.exitCode !== null) return resolve();
-						a.child.once('exit', () => resolve());
-						a.child.kill('SIGTERM');
-					})
-			)
-		);
+		await Promise.all(apps.map(stopApp));
 		await mail?.close();
 		await db?.destroy();
 		await scratch?.drop();
 		if (uploads) fs.rmSync(uploads, { recursive: true, force: true });
+	}, 60_000);
+
+	// What the servers said is the first thing to read when a check here fails.
+	afterEach(({ task }) => {
+		if (task.result?.state !== 'fail') return;
+		for (const app of apps) {
+			console.log(`${app.name} printed (last 40 lines):\n${output(app, 40)}`);
+		}
 	});
 
 	test('the same shot batches with the same keys sent to both at once are counted once', async () => {
