@@ -6,6 +6,7 @@
 // whole databases) of their own; what a run leaves behind is dropped before and after it.
 // Arguments go to Vitest: `npm run test:pg -- tests/integration/shots-ledger.test.ts`.
 import { spawnSync } from 'node:child_process';
+import { shownTarget } from './lib/cli';
 import { describeDatabase, dropTestLeftovers } from './lib/pg-scratch';
 
 const url = process.env.TEST_DATABASE_URL?.trim();
@@ -15,7 +16,7 @@ if (!url) {
 	);
 	process.exit(0);
 }
-const shown = url.replace(/\/\/[^@/]*@/, '//');
+const shown = shownTarget(url);
 
 let about: { collate: string; version: string };
 try {
@@ -24,7 +25,8 @@ try {
 	console.error(`Cannot reach ${shown}: ${(error as Error).message}`);
 	process.exit(1);
 }
-if (about.collate !== 'C' && about.collate !== 'POSIX') {
+// C.UTF-8 sorts by code point, which for UTF-8 is the same as bytewise.
+if (!/^(c|posix|c\.utf-?8)$/i.test(about.collate)) {
 	console.error(
 		`${shown} sorts text by the locale ${about.collate}; Castellan compares text bytewise, as ` +
 			'SQLite does. Create the test database with `createdb --locale=C --template=template0 …` ' +

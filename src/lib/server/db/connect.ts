@@ -134,7 +134,15 @@ const provider: MigrationProvider = { getMigrations: async () => migrations };
 /** Runs every pending migration; throws with the failing migration's name. */
 // eslint-disable-next-line @typescript-eslint/no-explicit-any
 export async function migrateToLatest(db: Kysely<any>): Promise<string[]> {
-	const migrator = new Migrator({ db, provider });
+	// Kysely looks for its migration tables in every schema of a PostgreSQL database unless told
+	// which one: with a second schema holding them (the test suite's, another app's), it would skip
+	// creating its own and fail. Name the schema the connection works in.
+	const migrationTableSchema =
+		engineOf(db) === 'postgres'
+			? (await sql<{ schema: string }>`select current_schema() as schema`.execute(db)).rows[0]
+					.schema
+			: undefined;
+	const migrator = new Migrator({ db, provider, migrationTableSchema });
 	const { error, results } = await migrator.migrateToLatest();
 	if (error) {
 		const failed = results?.find((r) => r.status === 'Error')?.migrationName ?? 'unknown';
