@@ -8,15 +8,7 @@ import { startFakeMail, type FakeMail } from '../../fakes/mail/server';
 import { migrateToLatest, openDatabase, type DB } from '../../src/lib/server/db/connect';
 import { createMailer, type Mailer } from '../../src/lib/server/mail/transport';
 import { runNotices } from '../../src/lib/server/notices';
-import {
-	deliveryStates,
-	diesIn,
-	mailFor,
-	NOW,
-	ORIGIN,
-	seedPlant,
-	TOOLROOM_RECIPIENTS
-} from './notices-support';
+import { expectToolroomToldOnce, NOW, ORIGIN, seedPlant } from './notices-support';
 
 const run = promisify(execFile);
 
@@ -43,20 +35,7 @@ afterEach(() => {
 	fs.rmSync(dir, { recursive: true, force: true });
 });
 
-async function expectEachToldOnce(db: DB) {
-	const messages = mail.messages();
-	expect(messages).toHaveLength(TOOLROOM_RECIPIENTS.length);
-	for (const email of TOOLROOM_RECIPIENTS) {
-		const digests = mailFor(messages, email);
-		expect(digests).toHaveLength(1);
-		expect(diesIn(digests[0])).toEqual(['D-9003', 'D-9002', 'D-9001', 'D-9005']);
-	}
-	const notices = await db.selectFrom('notices').select('notice_key').execute();
-	expect(notices).toHaveLength(4);
-	expect(await deliveryStates(db)).toEqual({ sent: 8 });
-	const digests = await db.selectFrom('notice_digests').selectAll().execute();
-	expect(digests.map((d) => d.recipient).sort()).toEqual(TOOLROOM_RECIPIENTS);
-}
+const expectEachToldOnce = (db: DB) => expectToolroomToldOnce(db, mail.messages());
 
 describe('two runs at once on one database file', () => {
 	it('write nothing twice and send each digest once (two handles, one process)', async () => {

@@ -1,6 +1,7 @@
 // Shared fixtures for the notices integration tests: a small plant whose dies stand at every
 // service state, plus users who should and should not hear about them.
 import { createServer, type AddressInfo } from 'node:net';
+import { expect } from 'vitest';
 import type { DB } from '../../src/lib/server/db/connect';
 import type { StoredMessage } from '../../fakes/mail/server';
 
@@ -164,4 +165,23 @@ export async function deliveryStates(db: DB): Promise<Record<string, number>> {
 		.groupBy('state')
 		.execute();
 	return Object.fromEntries(rows.map((r) => [r.state, Number(r.n)]));
+}
+
+/**
+ * After any number of runs of the job over `seedPlant`'s plant: each toolroom recipient got one
+ * digest naming the four dies that stand (overdue D-9003, due D-9002, coming up D-9001, life 90 %
+ * D-9005), and the outbox holds 4 notices × 2 recipients, all sent, in one digest each.
+ */
+export async function expectToolroomToldOnce(db: DB, messages: StoredMessage[]) {
+	expect(messages).toHaveLength(TOOLROOM_RECIPIENTS.length);
+	for (const email of TOOLROOM_RECIPIENTS) {
+		const digests = mailFor(messages, email);
+		expect(digests).toHaveLength(1);
+		expect(diesIn(digests[0])).toEqual(['D-9003', 'D-9002', 'D-9001', 'D-9005']);
+	}
+	const notices = await db.selectFrom('notices').select('notice_key').execute();
+	expect(notices).toHaveLength(4);
+	expect(await deliveryStates(db)).toEqual({ sent: 8 });
+	const digests = await db.selectFrom('notice_digests').select('recipient').execute();
+	expect(digests.map((d) => d.recipient).sort()).toEqual(TOOLROOM_RECIPIENTS);
 }
