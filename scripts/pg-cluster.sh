@@ -8,7 +8,8 @@
 #
 # The cluster is made the way Castellan wants its production databases: no locale (C collation,
 # text sorted and compared bytewise, as SQLite does), UTF-8, trust auth for the user `castellan`
-# on 127.0.0.1 only, and fsync off because nothing in it is worth keeping. It uses the binaries of
+# on 127.0.0.1 only, fsync off because nothing in it is worth keeping, and room for 300 connections
+# (test files leave idle pools behind until pg's idle timeout closes them). It uses the binaries of
 # Debian's `postgresql` package (/usr/lib/postgresql/<version>/bin; PG_BINDIR overrides). initdb
 # refuses to run as root, so as root the server runs as the `postgres` system user the package
 # creates.
@@ -40,7 +41,7 @@ start)
 	if [[ $(id -u) == 0 ]]; then chown postgres: "$dir"; fi
 	as_owner "$bindir/initdb" --no-locale -E UTF8 -A trust -U castellan -D "$dir/data" >"$dir/initdb.log"
 	as_owner "$bindir/pg_ctl" -D "$dir/data" -l "$dir/server.log" -w -o \
-		"-p $port -k $dir -c listen_addresses=127.0.0.1 -c fsync=off -c synchronous_commit=off -c full_page_writes=off" \
+		"-p $port -k $dir -c listen_addresses=127.0.0.1 -c max_connections=300 -c fsync=off -c synchronous_commit=off -c full_page_writes=off" \
 		start >/dev/null
 	"$bindir/createdb" -h 127.0.0.1 -p "$port" -U castellan castellan_test
 	echo "postgres://castellan@127.0.0.1:$port/castellan_test"
