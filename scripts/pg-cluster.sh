@@ -23,6 +23,7 @@ usage() {
 command=${1:-}
 dir=${2:-}
 [[ -n $command && -n $dir ]] || usage
+dir=$(realpath -m "$dir")
 
 bindir=${PG_BINDIR:-$(ls -d /usr/lib/postgresql/*/bin 2>/dev/null | sort -V | tail -n 1)}
 if [[ ! -x $bindir/initdb ]]; then
@@ -39,6 +40,8 @@ start)
 	port=${3:-55433}
 	mkdir -p "$dir"
 	if [[ $(id -u) == 0 ]]; then chown postgres: "$dir"; fi
+	# The server's user may not be allowed into the caller's folder (root's checkout).
+	cd "$dir"
 	as_owner "$bindir/initdb" --no-locale -E UTF8 -A trust -U castellan -D "$dir/data" >"$dir/initdb.log"
 	as_owner "$bindir/pg_ctl" -D "$dir/data" -l "$dir/server.log" -w -o \
 		"-p $port -k $dir -c listen_addresses=127.0.0.1 -c max_connections=300 -c fsync=off -c synchronous_commit=off -c full_page_writes=off" \
@@ -48,6 +51,7 @@ start)
 	;;
 stop)
 	if [[ -f $dir/data/postmaster.pid ]]; then
+		cd "$dir"
 		as_owner "$bindir/pg_ctl" -D "$dir/data" -m fast -w stop >/dev/null
 	fi
 	;;
