@@ -1,5 +1,5 @@
-import { databasePath, openMigratedDatabase } from './lib/cli';
+import { openMigratedDatabase, shownTarget } from './lib/cli';
 
 const db = await openMigratedDatabase();
-console.log(`Database ${databasePath()} is at the latest migration.`);
+console.log(`Database ${shownTarget()} is at the latest migration.`);
 await db.destroy();
