@@ -25,6 +25,7 @@ import * as addPlantIdentity from './2026_12_04_0101_add_plant_identity';
 import * as widenOwnerNoticeKinds from './2026_12_04_0201_widen_owner_notice_kinds';
 import * as createOwnerDecisions from './2026_12_04_0202_create_owner_decisions';
 import * as addPhotoCaptionBatch from './2026_12_04_0203_add_photo_caption_batch';
+import * as addImportHeartbeat from './2026_12_05_03_add_import_heartbeat';
 
 // Every migration is listed here by name so the same list works in the built app, in Vitest and
 // in tsx scripts (none of which share a way to glob the folder). Add new ones at the end.
@@ -54,5 +55,6 @@ export const migrations: Record<string, Migration> = {
 	'2026_12_04_0101_add_plant_identity': addPlantIdentity,
 	'2026_12_04_0201_widen_owner_notice_kinds': widenOwnerNoticeKinds,
 	'2026_12_04_0202_create_owner_decisions': createOwnerDecisions,
-	'2026_12_04_0203_add_photo_caption_batch': addPhotoCaptionBatch
+	'2026_12_04_0203_add_photo_caption_batch': addPhotoCaptionBatch,
+	'2026_12_05_03_add_import_heartbeat': addImportHeartbeat
 };

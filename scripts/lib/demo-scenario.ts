@@ -1,7 +1,8 @@
 // The demo plant: an invented scenario. Every company, person, part and number here is made up
 // for the demo; none describes a real business.
 import { sql } from 'kysely';
-import { rawHandle, type DB } from '../../src/lib/server/db/connect';
+import type { DB } from '../../src/lib/server/db/connect';
+import { inWriteTransaction } from '../../src/lib/server/db/session';
 import { writeOpeningBalance } from '../../src/lib/server/shots/opening-balance';
 import type { AlloyFamily, DieProcess, DieStatus } from '../../src/lib/domain';
 import { recordShots, type ShotInput } from '../../src/lib/server/shots/ledger';
@@ -381,8 +382,8 @@ export async function seedDemo(
 
 		// The shots made before Castellan come in as an opening balance (not a day's production),
 		// so shots-by-month and statements show them as the balance brought forward.
-		await db.connection().execute(async () =>
-			writeOpeningBalance(rawHandle(db), {
+		await inWriteTransaction(db, { lock: 'ledger' }, (s) =>
+			writeOpeningBalance(s, {
 				dieId: die.id,
 				shots: opening,
 				at: createdAt,

@@ -6,7 +6,8 @@ import { setPlantZone } from '../../src/lib/plant-time';
 import { dieFormSchema } from '../../src/lib/schemas/die';
 import { statementPeriodSchema } from '../../src/lib/schemas/statement';
 import { formatCsv } from '../../src/lib/server/csv';
-import { openTestDatabase, rawHandle, type DB } from '../../src/lib/server/db/connect';
+import { openTestDatabase, type DB } from '../../src/lib/server/db/connect';
+import { inWriteTransaction } from '../../src/lib/server/db/session';
 import { createDie } from '../../src/lib/server/dies/die-write';
 import { markTaskDone } from '../../src/lib/server/dies/service-plan';
 import { findOwnerDie, getOwnerDieStory } from '../../src/lib/server/owner/die-page';
@@ -122,16 +123,15 @@ beforeEach(async () => {
 	await die('D-0101', acme);
 	await die('D-0102', acme);
 	await die('D-0201', bolt);
-	await db.connection().execute(async (conn) => {
-		writeOpeningBalance(rawHandle(db), {
+	await inWriteTransaction(db, { lock: 'ledger' }, (s) =>
+		writeOpeningBalance(s, {
 			dieId: ids.get('D-0102')!,
 			shots: 50_000,
 			at: '2026-04-10T08:00:00.000Z',
 			userId: ADMIN,
 			note: 'From the old register'
-		});
-		return conn;
-	});
+		})
+	);
 	await count('D-0101', [
 		['2026-01-15T10:00:00.000Z', 1000],
 		['2026-02-28T23:30:00.000Z', 200],
