@@ -5,12 +5,10 @@ import type { Kysely } from 'kysely';
 // served by a process other than the one writing, and must tell "running elsewhere" from "the
 // process that ran it stopped".
 
-// eslint-disable-next-line @typescript-eslint/no-explicit-any
 export async function up(db: Kysely<any>): Promise<void> {
 	await db.schema.alterTable('import_drafts').addColumn('heartbeat_at', 'text').execute();
 }
 
-// eslint-disable-next-line @typescript-eslint/no-explicit-any
 export async function down(db: Kysely<any>): Promise<void> {
 	await db.schema.alterTable('import_drafts').dropColumn('heartbeat_at').execute();
 }
