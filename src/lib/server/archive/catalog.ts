@@ -19,7 +19,8 @@ const SQLITE = {
 
 const POSTGRES = {
 	columns: `select a.attname as name,
-	                 coalesce(array_position(i.indkey::int2[], a.attnum), 0) as pk
+	                 coalesce((select k.n from unnest(i.indkey::int2[]) with ordinality as k(attnum, n)
+	                            where k.attnum = a.attnum), 0) as pk
 	            from pg_attribute a
 	            left join pg_index i on i.indrelid = a.attrelid and i.indisprimary
 	           where a.attrelid = to_regclass(?) and a.attnum > 0 and not a.attisdropped
