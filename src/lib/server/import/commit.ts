@@ -232,7 +232,8 @@ async function writePlan(
 			]);
 			await audit('service.import_add', dieId, { kind: t.kind, lastDoneAt: t.lastDoneAt });
 		}
-		tasks++;
+		// Service rows can be many (five per die and more): let other requests in between chunks too.
+		if (++tasks % CHUNK === 0) await pause();
 	}
 	await audit('import.commit', null, {
 		file: payload.fileName,
