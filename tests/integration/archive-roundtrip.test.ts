@@ -72,6 +72,25 @@ async function everyRow(db: DB) {
 	});
 }
 
+/** A die with only what the register requires; returns its id. */
+async function addDie(
+	db: DB,
+	die: { id?: number; number: string; customer_id: number; alloy_id: number }
+): Promise<number> {
+	const row = await db
+		.insertInto('dies')
+		.values({
+			part_name: 'Cover',
+			process: 'cold_chamber',
+			cavities: 1,
+			projected_area_cm2: 10,
+			...die
+		})
+		.returning('id')
+		.executeTakeFirstOrThrow();
+	return row.id;
+}
+
 /** A demo plant on a SQLite file of its own, whichever engine this pass tests. */
 async function sqliteDemo(uploads: string): Promise<DB> {
 	const db = openDatabase(path.join(tmp, `demo-${Date.now()}.db`));
@@ -152,19 +171,7 @@ describe('export everything, import into an empty database', () => {
 			.select('id')
 			.where('code', '=', 'A380')
 			.executeTakeFirstOrThrow();
-		await source
-			.insertInto('dies')
-			.values({
-				id: 12,
-				number: 'R-1',
-				part_name: 'Cover',
-				customer_id: 40,
-				alloy_id: alloy.id,
-				process: 'cold_chamber',
-				cavities: 1,
-				projected_area_cm2: 10
-			})
-			.execute();
+		await addDie(source, { id: 12, number: 'R-1', customer_id: 40, alloy_id: alloy.id });
 		await source
 			.insertInto('die_halves')
 			.values({
@@ -237,20 +244,7 @@ describe('export everything, import into an empty database', () => {
 			.returning('id')
 			.executeTakeFirstOrThrow();
 		expect(next.id).toBe(41);
-		const die = await target
-			.insertInto('dies')
-			.values({
-				number: 'R-2',
-				part_name: 'Lid',
-				customer_id: 7,
-				alloy_id: alloy.id,
-				process: 'cold_chamber',
-				cavities: 1,
-				projected_area_cm2: 10
-			})
-			.returning('id')
-			.executeTakeFirstOrThrow();
-		expect(die.id).toBe(13);
+		expect(await addDie(target, { number: 'R-2', customer_id: 7, alloy_id: alloy.id })).toBe(13);
 	});
 
 	it('refuses an archive whose rows name records it does not hold, and writes nothing', async () => {
@@ -263,18 +257,7 @@ describe('export everything, import into an empty database', () => {
 			])
 			.execute();
 		const alloy = await source.selectFrom('alloys').select('id').executeTakeFirstOrThrow();
-		await source
-			.insertInto('dies')
-			.values({
-				number: 'D-1',
-				part_name: 'Cover',
-				customer_id: 2,
-				alloy_id: alloy.id,
-				process: 'cold_chamber',
-				cavities: 1,
-				projected_area_cm2: 10
-			})
-			.execute();
+		await addDie(source, { number: 'D-1', customer_id: 2, alloy_id: alloy.id });
 		// The archive loses owner 2 (its line in customers.csv) while die D-1 still names it.
 		const files = unzipSync((await buildArchive(source, tmp)).zip);
 		const lines = new TextDecoder().decode(files['customers.csv']).split('\r\n');
