@@ -1,7 +1,13 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { parseArgs, type ParseArgsConfig } from 'node:util';
-import { migrateToLatest, openDatabase, type DB } from '../../src/lib/server/db/connect';
+import {
+	databaseTarget,
+	isPostgresUrl,
+	migrateToLatest,
+	openDatabase,
+	type DB
+} from '../../src/lib/server/db/connect';
 
 /** Exit code for bad command-line arguments. */
 export const BAD_ARGUMENTS = 2;
@@ -24,11 +30,15 @@ export function databasePath(): string {
 	return process.env.DATABASE_PATH || './data/castellan.db';
 }
 
-/** Opens DATABASE_PATH (making the default ./data folder if needed) and migrates it. */
+/**
+ * Opens this process's database — PostgreSQL at DATABASE_URL, else the SQLite file at
+ * DATABASE_PATH (making the default ./data folder if needed) — and migrates it.
+ */
 export async function openMigratedDatabase(): Promise<DB> {
-	const file = databasePath();
-	if (!process.env.DATABASE_PATH) fs.mkdirSync(path.dirname(file), { recursive: true });
-	const db = openDatabase(file);
+	const target = databaseTarget();
+	if (!isPostgresUrl(target) && !process.env.DATABASE_PATH)
+		fs.mkdirSync(path.dirname(target), { recursive: true });
+	const db = openDatabase(target);
 	await migrateToLatest(db);
 	return db;
 }
