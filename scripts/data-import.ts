@@ -1,5 +1,4 @@
-// npm run data:import -- FILE.zip — restores a plant archive into an empty database
-// (DATABASE_URL for PostgreSQL, else DATABASE_PATH) and UPLOAD_DIR.
+// npm run data:import -- FILE.zip — restores a plant archive into an empty DATABASE_PATH and UPLOAD_DIR.
 import fs from 'node:fs';
 import path from 'node:path';
 import { restoreArchive } from '../src/lib/server/archive/restore';

@@ -2,8 +2,7 @@
 // for the demo; none describes a real business.
 import { sql } from 'kysely';
 import type { DB } from '../../src/lib/server/db/connect';
-import { inWriteTransaction } from '../../src/lib/server/db/session';
-import { writeOpeningBalance } from '../../src/lib/server/shots/opening-balance';
+import { recordOpeningBalance } from '../../src/lib/server/shots/opening-balance';
 import type { AlloyFamily, DieProcess, DieStatus } from '../../src/lib/domain';
 import { recordShots, type ShotInput } from '../../src/lib/server/shots/ledger';
 import { setPlantZone } from '../../src/lib/plant-time';
@@ -382,15 +381,13 @@ export async function seedDemo(
 
 		// The shots made before Castellan come in as an opening balance (not a day's production),
 		// so shots-by-month and statements show them as the balance brought forward.
-		await inWriteTransaction(db, { lock: 'ledger' }, (s) =>
-			writeOpeningBalance(s, {
-				dieId: die.id,
-				shots: opening,
-				at: createdAt,
-				userId: null,
-				note: 'Opening balance carried over from the previous register'
-			})
-		);
+		await recordOpeningBalance(db, {
+			dieId: die.id,
+			shots: opening,
+			at: createdAt,
+			userId: null,
+			note: 'Opening balance carried over from the previous register'
+		});
 		// Daily counter readings on working days, at the end of the second shift.
 		const rows: ShotInput[] = [];
 		const workDays: Date[] = [];

@@ -7,7 +7,6 @@ import { dieFormSchema } from '../../src/lib/schemas/die';
 import { statementPeriodSchema } from '../../src/lib/schemas/statement';
 import { formatCsv } from '../../src/lib/server/csv';
 import { openTestDatabase, type DB } from '../../src/lib/server/db/connect';
-import { inWriteTransaction } from '../../src/lib/server/db/session';
 import { createDie } from '../../src/lib/server/dies/die-write';
 import { markTaskDone } from '../../src/lib/server/dies/service-plan';
 import { findOwnerDie, getOwnerDieStory } from '../../src/lib/server/owner/die-page';
@@ -21,7 +20,7 @@ import {
 import { statementCsvHeader, statementCsvRows } from '../../src/lib/server/owner/statement-csv';
 import { renderPeriodStatementPdf } from '../../src/lib/server/owner/statement-pdf';
 import { lastServiceText } from '../../src/lib/server/owner/service-history';
-import { writeOpeningBalance } from '../../src/lib/server/shots/opening-balance';
+import { recordOpeningBalance } from '../../src/lib/server/shots/opening-balance';
 import { recordShots, voidShotEntry } from '../../src/lib/server/shots/ledger';
 import { savePlantIdentity } from '../../src/lib/server/settings/plant-identity';
 
@@ -123,15 +122,13 @@ beforeEach(async () => {
 	await die('D-0101', acme);
 	await die('D-0102', acme);
 	await die('D-0201', bolt);
-	await inWriteTransaction(db, { lock: 'ledger' }, (s) =>
-		writeOpeningBalance(s, {
-			dieId: ids.get('D-0102')!,
-			shots: 50_000,
-			at: '2026-04-10T08:00:00.000Z',
-			userId: ADMIN,
-			note: 'From the old register'
-		})
-	);
+	await recordOpeningBalance(db, {
+		dieId: ids.get('D-0102')!,
+		shots: 50_000,
+		at: '2026-04-10T08:00:00.000Z',
+		userId: ADMIN,
+		note: 'From the old register'
+	});
 	await count('D-0101', [
 		['2026-01-15T10:00:00.000Z', 1000],
 		['2026-02-28T23:30:00.000Z', 200],
