@@ -30,14 +30,20 @@ export function databasePath(): string {
 	return process.env.DATABASE_PATH || './data/castellan.db';
 }
 
+/** The database as shown to people: the SQLite path, or the PostgreSQL URL without its password. */
+export function shownTarget(target = databaseTarget(process.env)): string {
+	return target.replace(/\/\/([^:@/]*):[^@/]*@/, '//$1@');
+}
+
 /**
- * Opens this process's database — PostgreSQL at DATABASE_URL, else the SQLite file at
- * DATABASE_PATH (making the default ./data folder if needed) — and migrates it.
+ * Opens the command's database and migrates it: PostgreSQL when DATABASE_URL is set, else the
+ * SQLite file at DATABASE_PATH (making the default ./data folder if needed).
  */
 export async function openMigratedDatabase(): Promise<DB> {
-	const target = databaseTarget();
-	if (!isPostgresUrl(target) && !process.env.DATABASE_PATH)
+	const target = databaseTarget(process.env);
+	if (!isPostgresUrl(target) && !process.env.DATABASE_PATH) {
 		fs.mkdirSync(path.dirname(target), { recursive: true });
+	}
 	const db = openDatabase(target);
 	await migrateToLatest(db);
 	return db;
