@@ -27,6 +27,7 @@ import * as createOwnerDecisions from './2026_12_04_0202_create_owner_decisions'
 import * as addPhotoCaptionBatch from './2026_12_04_0203_add_photo_caption_batch';
 import * as widenMillisecondColumns from './2026_12_05_0201_widen_millisecond_columns';
 import * as createJobRuns from './2026_12_05_0202_create_job_runs';
+import * as addImportHeartbeat from './2026_12_05_0301_add_import_heartbeat';
 
 // Every migration is listed here by name so the same list works in the built app, in Vitest and
 // in tsx scripts (none of which share a way to glob the folder). Add new ones at the end.
@@ -58,5 +59,6 @@ export const migrations: Record<string, Migration> = {
 	'2026_12_04_0202_create_owner_decisions': createOwnerDecisions,
 	'2026_12_04_0203_add_photo_caption_batch': addPhotoCaptionBatch,
 	'2026_12_05_0201_widen_millisecond_columns': widenMillisecondColumns,
-	'2026_12_05_0202_create_job_runs': createJobRuns
+	'2026_12_05_0202_create_job_runs': createJobRuns,
+	'2026_12_05_0301_add_import_heartbeat': addImportHeartbeat
 };

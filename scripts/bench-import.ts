@@ -131,9 +131,8 @@ export async function run(): Promise<BenchFigure[]> {
 			reads++;
 		}, 20);
 		let progressCalls = 0;
-		const res = await commitImport(db, payload, {
+		const res = await commitImport(own, payload, {
 			userId: 'u-bench',
-			raw: rawHandle(own),
 			onProgress: () => progressCalls++
 		});
 		clearInterval(timer);

@@ -1,8 +1,22 @@
+import { sql } from 'kysely';
 import { beforeEach, describe, expect, it } from 'vitest';
-import { openTestDatabase, type DB } from '../../src/lib/server/db/connect';
+import {
+	openDatabase,
+	openTestDatabase,
+	testEngine,
+	type DB
+} from '../../src/lib/server/db/connect';
 import { readImportFile, MAX_IMPORT_BYTES } from '../../src/lib/server/import/read-file';
-import { newPayload, previewImport, rememberMapping } from '../../src/lib/server/import/draft';
+import {
+	createDraft,
+	loadDraft,
+	newPayload,
+	previewImport,
+	rememberMapping,
+	type Draft
+} from '../../src/lib/server/import/draft';
 import { commitImport } from '../../src/lib/server/import/commit';
+import { importProgress, startImportJob } from '../../src/lib/server/import/jobs';
 import type { ImportPayload } from '../../src/lib/server/import/types';
 import { csvBytes, workbookBytes, type SheetCells } from '../fixtures/import-workbook';
 
@@ -92,6 +106,36 @@ const count = async (
 				.executeTakeFirstOrThrow()
 		).n
 	);
+
+/**
+ * The same database as a second app process sees it: on PostgreSQL a pool of its own on the same
+ * schema (so two writers really run at once); SQLite in memory has one connection, shared.
+ */
+async function asAnotherProcess(db: DB): Promise<DB> {
+	if (testEngine() === 'sqlite') return db;
+	const { rows } = await sql<{ s: string }>`select current_schema() as s`.execute(db);
+	return openDatabase(process.env.TEST_DATABASE_URL!, { schema: rows[0].s, poolSize: 2 });
+}
+
+/** The Dies sheet's columns under the field names, so the mapping guesses itself. */
+const DIE_COLUMNS = [
+	'number',
+	'part_name',
+	'owner',
+	'alloy',
+	'process',
+	'cavities',
+	'projected_area_cm2',
+	'opening_shots'
+] as const;
+
+/** 30 new dies, N-1 … N-30, die i with 100·i opening shots. */
+function thirtyDies(): SheetCells {
+	const rows: SheetCells = [[...DIE_COLUMNS]];
+	for (let i = 1; i <= 30; i++)
+		rows.push([`N-${i}`, `Lid ${i}`, 'ACME', 'A380', 'cold', 1, 20, 100 * i]);
+	return rows;
+}
 
 describe('die register import', () => {
 	let db: DB;
@@ -221,18 +265,7 @@ describe('die register import', () => {
 	});
 
 	it('a dry run reports exactly what the real run then does, and writes nothing', async () => {
-		const rows: SheetCells = [
-			[
-				'number',
-				'part_name',
-				'owner',
-				'alloy',
-				'process',
-				'cavities',
-				'projected_area_cm2',
-				'opening_shots'
-			]
-		];
+		const rows: SheetCells = [[...DIE_COLUMNS]];
 		for (let i = 1; i <= 40; i++)
 			rows.push([
 				`X-${i}`,
@@ -275,19 +308,8 @@ describe('die register import', () => {
 	});
 
 	it('update mode changes only the mapped columns and writes each change to the audit log', async () => {
-		const rows: SheetCells = [
-			[
-				'number',
-				'part_name',
-				'owner',
-				'alloy',
-				'process',
-				'cavities',
-				'projected_area_cm2',
-				'location',
-				'opening_shots'
-			]
-		];
+		// The die columns with location before the opening count.
+		const rows: SheetCells = [[...DIE_COLUMNS.slice(0, 7), 'location', 'opening_shots']];
 		rows.push(['U-1', 'Cover', 'ACME', 'A380', 'cold', 2, 80, 'Rack 1', 1000]);
 		rows.push(['U-2', 'Lid', 'BOLT', 'ZP0410', 'hot', 4, 30, 'Rack 2', 2000]);
 		const first = await payloadOf(db, csvBytes(rows), 'start.csv');
@@ -335,19 +357,7 @@ describe('die register import', () => {
 
 	it('imports halves with serials and install dates and the last service of each task', async () => {
 		const bytes = await workbookBytes({
-			Dies: [
-				[
-					'number',
-					'part_name',
-					'owner',
-					'alloy',
-					'process',
-					'cavities',
-					'projected_area_cm2',
-					'opening_shots'
-				],
-				['H-1', 'Gearbox', 'ACME', 'A380', 'cold', 1, 900, 100_000]
-			],
+			Dies: [[...DIE_COLUMNS], ['H-1', 'Gearbox', 'ACME', 'A380', 'cold', 1, 900, 100_000]],
 			Halves: [
 				['die', 'side', 'serial', 'installed', 'removed', 'half_shots', 'removal_reason'],
 				['H-1', 'cover', 'H1-C1', '2023-01-10', '2024-06-01', 40_000, 'heat checking'],
@@ -393,6 +403,48 @@ describe('die register import', () => {
 		});
 	});
 
+	it('the same file committed by two app processes at once is written once', async () => {
+		const other = await asAnotherProcess(db);
+		const payload = await payloadOf(db, csvBytes(thirtyDies()), 'twice.csv');
+		const results = await Promise.all([
+			commitImport(db, payload, { userId: ADMIN, now: NOW }),
+			commitImport(other, payload, { userId: ADMIN, now: NOW })
+		]);
+		// One writes all 30 dies; the other judges the file again after it and finds them there.
+		expect(results.map((r) => r.ok).sort()).toEqual([false, true]);
+		const refused = results.find((r) => !r.ok)!;
+		expect(refused.ok === false && refused.preview?.counts.problemRows).toBe(30);
+		expect(await count(db, 'dies')).toBe(30);
+		expect(await count(db, 'shot_entries')).toBe(30);
+		// 100·(1+…+30) = 100·465 = 46 500 opening shots, once.
+		const sum = await db
+			.selectFrom('dies')
+			.select((eb) => eb.fn.sum<number>('total_shots').as('s'))
+			.executeTakeFirstOrThrow();
+		expect(Number(sum.s)).toBe(46_500);
+		if (other !== db) await other.destroy();
+	});
+
+	it('the background job commits a draft and leaves its outcome on the draft', async () => {
+		const payload = await payloadOf(db, csvBytes(thirtyDies()), 'job.csv');
+		const id = await createDraft(db, ADMIN, payload);
+		expect(await startImportJob(db, id, payload, ADMIN)).toBe(true);
+		// A second start of the same draft is refused while (and after) the first runs.
+		expect(await startImportJob(db, id, payload, ADMIN)).toBe(false);
+		let draft = (await loadDraft(db, id, ADMIN))!;
+		while (draft.state === 'running') {
+			await new Promise((resolve) => setTimeout(resolve, 20));
+			draft = (await loadDraft(db, id, ADMIN))!;
+		}
+		expect(draft.state).toBe('done');
+		expect(draft.result).toMatchObject({ created: expect.any(Array), openingShots: 46_500 });
+		expect((draft.result as { created: string[] }).created).toHaveLength(30);
+		expect(draft.heartbeatAt).toBeNull();
+		expect([draft.progressDone, draft.progressTotal]).toEqual([30, 30]);
+		expect(importProgress(draft)).toBeNull();
+		expect(await count(db, 'dies')).toBe(30);
+	});
+
 	it('remembers the column mapping for the next file of the plant', async () => {
 		await rememberMapping(db, 'dies', { number: 'Werkzeug', part_name: 'Teil' }, ADMIN);
 		const p = await payloadOf(
@@ -409,5 +461,32 @@ describe('die register import', () => {
 	it('refuses a file over 20 MB before reading it', async () => {
 		const res = await readImportFile(new Uint8Array(MAX_IMPORT_BYTES + 1), 'big.csv');
 		expect(res).toEqual({ ok: false, message: expect.stringContaining('up to 20 MB') });
+	});
+});
+
+describe('progress of a running import seen from another app process', () => {
+	const draft = (state: Draft['state'], heartbeatAt: string | null): Draft => ({
+		id: 'f'.repeat(32),
+		state,
+		payload: {} as ImportPayload,
+		progressDone: 250,
+		progressTotal: 1000,
+		heartbeatAt,
+		result: null
+	});
+	const now = Date.parse('2026-06-10T12:00:00.000Z');
+
+	it('shows the progress the writing process last stored while its heartbeat is fresh', () => {
+		// 30 s old: within the 60 s the writer is given between heartbeats (it beats every 10 s).
+		expect(importProgress(draft('running', '2026-06-10T11:59:30.000Z'), now)).toEqual({
+			done: 250,
+			total: 1000
+		});
+	});
+
+	it('calls the import interrupted once the heartbeat is older than a minute, or missing', () => {
+		expect(importProgress(draft('running', '2026-06-10T11:58:59.000Z'), now)).toBeNull();
+		expect(importProgress(draft('running', null), now)).toBeNull();
+		expect(importProgress(draft('done', '2026-06-10T11:59:59.000Z'), now)).toBeNull();
 	});
 });

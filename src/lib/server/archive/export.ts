@@ -1,7 +1,9 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { zipSync, type Zippable } from 'fflate';
-import { rawHandle, type DB } from '../db/connect';
+import type { DB } from '../db/connect';
+import { inReadSession } from '../db/session';
+import { quoted, tableShape } from './catalog';
 import { ARCHIVE_TABLES } from './tables';
 
 /**
@@ -11,6 +13,7 @@ import { ARCHIVE_TABLES } from './tables';
 function csvCell(v: unknown): string {
 	if (v === null || v === undefined) return '';
 	if (typeof v === 'number' || typeof v === 'bigint') return String(v);
+	if (typeof v === 'boolean') return v ? '1' : '0';
 	return `"${String(v).replace(/"/g, '""')}"`;
 }
 
@@ -32,7 +35,6 @@ export async function buildArchive(
 	uploadDir: string,
 	at = new Date().toISOString()
 ): Promise<{ zip: Uint8Array; summary: ArchiveSummary }> {
-	const raw = rawHandle(db);
 	const files: Zippable = {};
 	const summary: ArchiveSummary = { tables: {}, photos: 0, bytes: 0 };
 	const readme: string[] = [
@@ -46,30 +48,29 @@ export async function buildArchive(
 		''
 	];
 	const photoFiles: string[] = [];
-	await db.connection().execute(async () => {
-		raw
-			.transaction(() => {
-				for (const t of ARCHIVE_TABLES) {
-					const cols = (
-						raw.prepare(`select name from pragma_table_info(?)`).all(t.table) as { name: string }[]
-					).map((c) => c.name);
-					if (!cols.length) continue;
-					const lines = [cols.map((c) => csvCell(c)).join(',')];
-					let n = 0;
-					for (const row of raw
-						.prepare(`select * from "${t.table}" order by rowid`)
-						.iterate() as Iterable<Record<string, unknown>>) {
-						lines.push(cols.map((c) => csvCell(t.redact?.[c] ?? row[c])).join(','));
-						if (t.table === 'photos')
-							photoFiles.push(String(row.full_file), String(row.thumb_file));
-						n++;
-					}
-					files[t.file] = enc.encode(lines.join('\r\n') + '\r\n');
-					summary.tables[t.table] = n;
-					readme.push(`${t.file} (${n} rows): ${t.about}`, `  columns: ${cols.join(', ')}`);
+	await inReadSession(db, async (s) => {
+		// One snapshot for every table: PostgreSQL's repeatable read, SQLite's read transaction.
+		await s.run(
+			s.engine === 'postgres' ? 'begin isolation level repeatable read read only' : 'begin'
+		);
+		try {
+			for (const t of ARCHIVE_TABLES) {
+				const { columns: cols, primaryKey } = await tableShape(s, t.table);
+				if (!cols.length) continue;
+				const order = primaryKey.length ? ` order by ${quoted(primaryKey)}` : '';
+				const rows = await s.all<Record<string, unknown>>(`select * from "${t.table}"${order}`);
+				const lines = [cols.map((c) => csvCell(c)).join(',')];
+				for (const row of rows) {
+					lines.push(cols.map((c) => csvCell(t.redact?.[c] ?? row[c])).join(','));
+					if (t.table === 'photos') photoFiles.push(String(row.full_file), String(row.thumb_file));
 				}
-			})
-			.deferred();
+				files[t.file] = enc.encode(lines.join('\r\n') + '\r\n');
+				summary.tables[t.table] = rows.length;
+				readme.push(`${t.file} (${rows.length} rows): ${t.about}`, `  columns: ${cols.join(', ')}`);
+			}
+		} finally {
+			await s.run('commit');
+		}
 	});
 	for (const rel of photoFiles) {
 		const full = path.resolve(uploadDir, rel);

@@ -21,6 +21,8 @@ export interface ImportDraftsTable {
 	payload: string;
 	progress_done: Generated<number>;
 	progress_total: Generated<number>;
+	/** When the running commit last said it is alive (UTC); null when none runs. */
+	heartbeat_at: string | null;
 	/** JSON outcome of the commit. */
 	result: string | null;
 }

@@ -1,8 +1,8 @@
-import type SQLite from 'better-sqlite3';
 import { DEFAULT_EXPECTED_LIFE_BY_FAMILY, type AlloyFamily } from '../../calc/life';
 import { IMPORT_FIELDS, type ImportKind } from '../../import-fields';
 import { dieFormSchema, type DieForm } from '../../schemas/die';
 import type { Die, DieProcess, HalfSide } from '../db/schema';
+import type { SqlSession } from '../db/session';
 import { MAX_SHOTS_PER_ENTRY } from '../shots/ledger';
 import { cellText, readImportDate, readImportNumber, type Cell } from './read-value';
 import type { ImportPayload, ImportPreview, RowPreview, RowProblem } from './types';
@@ -131,38 +131,27 @@ function readYesNo(text: string): boolean | null {
 }
 
 /** Reads the lookups the analysis needs, all at once, from the database as it is now. */
-function loadRegister(raw: SQLite.Database) {
-	const customers = raw.prepare('select id, code, name from customers').all() as {
-		id: number;
-		code: string;
-		name: string;
-	}[];
-	const alloys = raw.prepare('select id, code, name, family from alloys').all() as {
-		id: number;
-		code: string;
-		name: string;
-		family: AlloyFamily;
-	}[];
-	const dies = raw
-		.prepare(
-			`select id, number, part_name, part_number, customer_id, alloy_id, process, cavities,
-			        projected_area_cm2, has_slides, location, notes, expected_life_shots, total_shots
-			   from dies`
-		)
-		.all() as ExistingDie[];
-	const serials = new Set(
-		(raw.prepare('select upper(serial) as s from die_halves').all() as { s: string }[]).map(
-			(r) => r.s
-		)
+async function loadRegister(s: SqlSession) {
+	const customers = await s.all<{ id: number; code: string; name: string }>(
+		'select id, code, name from customers'
 	);
-	const templates = raw.prepare('select family, kind from service_templates').all() as {
-		family: AlloyFamily;
-		kind: string;
-	}[];
-	const tasks = raw.prepare('select die_id, kind from service_tasks where active = 1').all() as {
-		die_id: number;
-		kind: string;
-	}[];
+	const alloys = await s.all<{ id: number; code: string; name: string; family: AlloyFamily }>(
+		'select id, code, name, family from alloys'
+	);
+	const dies = await s.all<ExistingDie>(
+		`select id, number, part_name, part_number, customer_id, alloy_id, process, cavities,
+		        projected_area_cm2, has_slides, location, notes, expected_life_shots, total_shots
+		   from dies`
+	);
+	const serials = new Set(
+		(await s.all<{ s: string }>('select upper(serial) as s from die_halves')).map((r) => r.s)
+	);
+	const templates = await s.all<{ family: AlloyFamily; kind: string }>(
+		'select family, kind from service_templates'
+	);
+	const tasks = await s.all<{ die_id: number; kind: string }>(
+		'select die_id, kind from service_tasks where active = 1'
+	);
 	const ownerByText = new Map<string, number>();
 	for (const c of customers) {
 		ownerByText.set(lower(c.name), c.id);
@@ -229,12 +218,12 @@ const shown = (v: unknown) => (v === null || v === undefined || v === '' ? '' : 
  * what it would do and what stops it. The one judgement behind preview, dry run and commit: the
  * commit calls this again inside its transaction and writes exactly the plan it returns.
  */
-export function analyzeImport(
-	raw: SQLite.Database,
+export async function analyzeImport(
+	session: SqlSession,
 	payload: ImportPayload,
 	now: string
-): { preview: ImportPreview; plan: ImportPlan } {
-	const reg = loadRegister(raw);
+): Promise<{ preview: ImportPreview; plan: ImportPlan }> {
+	const reg = await loadRegister(session);
 	const today = now.slice(0, 10);
 	const skips = new Set(payload.skips);
 	const mode = payload.mode;

@@ -1,5 +1,6 @@
 import { randomBytes } from 'node:crypto';
-import { rawHandle, type DB } from '../db/connect';
+import type { DB } from '../db/connect';
+import { inReadSession } from '../db/session';
 import { guessMapping, IMPORT_FIELDS, type ImportKind } from '../../import-fields';
 import { analyzeImport } from './analyze';
 import type { ImportSheet } from './read-file';
@@ -99,6 +100,8 @@ export interface Draft {
 	payload: ImportPayload;
 	progressDone: number;
 	progressTotal: number;
+	/** When the commit running it last said it is alive (see jobs.ts), or null. */
+	heartbeatAt: string | null;
 	result: unknown;
 }
 
@@ -118,6 +121,7 @@ export async function loadDraft(db: DB, id: string, userId: string): Promise<Dra
 		payload: JSON.parse(row.payload) as ImportPayload,
 		progressDone: row.progress_done,
 		progressTotal: row.progress_total,
+		heartbeatAt: row.heartbeat_at,
 		result: row.result ? JSON.parse(row.result) : null
 	};
 }
@@ -133,8 +137,6 @@ export async function saveDraft(db: DB, id: string, payload: ImportPayload) {
 
 /** The preview of a payload against the register as it is now; reads only. */
 export async function previewImport(db: DB, payload: ImportPayload): Promise<ImportPreview> {
-	const raw = rawHandle(db);
-	return db
-		.connection()
-		.execute(async () => analyzeImport(raw, payload, new Date().toISOString()).preview);
+	const now = new Date().toISOString();
+	return inReadSession(db, async (s) => (await analyzeImport(s, payload, now)).preview);
 }

@@ -21,7 +21,7 @@ export async function loadImportPage(db: DB, draftId: string | null, userId: str
 	}));
 	let state = draft.state;
 	let result = draft.result as ImportOutcome | { message: string } | null;
-	const progress = importProgress(draft.id);
+	const progress = importProgress(draft);
 	if (state === 'running' && !progress) {
 		// The process that ran it stopped: its transaction never committed.
 		state = 'failed';
