@@ -3,6 +3,7 @@ import { spawn } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
 import { migrateToLatest, openDatabase } from '../src/lib/server/db/connect';
+import { folderPhotoStore } from '../src/lib/server/photos/folder-store';
 import { seedDemo } from './lib/demo-scenario';
 
 const port = process.env.E2E_PORT ?? '4173';
@@ -17,7 +18,7 @@ if (!fs.existsSync('build/index.js')) {
 }
 const db = openDatabase(dbPath);
 await migrateToLatest(db);
-await seedDemo(db, new Date(), path.join(dir, 'uploads'));
+await seedDemo(db, new Date(), folderPhotoStore(path.join(dir, 'uploads')));
 await db.destroy();
 
 const app = spawn(process.execPath, ['scripts/start.js'], {

@@ -8,6 +8,7 @@ import { restoreArchive } from '../../src/lib/server/archive/restore';
 import { dieLife, findDie } from '../../src/lib/server/dies/die-detail';
 import { listServicePlan } from '../../src/lib/server/dies/service-plan';
 import { seedDemo } from '../../scripts/lib/demo-scenario';
+import { folderPhotoStore } from '../../src/lib/server/photos/folder-store';
 import { unzipSync } from 'fflate';
 
 const ASOF = '2026-12-01T06:00:00.000Z';
@@ -46,11 +47,11 @@ describe('export everything, import into an empty database', () => {
 		const source = await openTestDatabase();
 		const srcUploads = path.join(tmp, 'src');
 		fs.mkdirSync(srcUploads);
-		await seedDemo(source, new Date('2026-11-30T12:00:00.000Z'), srcUploads);
+		await seedDemo(source, new Date('2026-11-30T12:00:00.000Z'), folderPhotoStore(srcUploads));
 		const before = await figures(source);
 		expect(Object.keys(before.dies).length).toBeGreaterThan(30);
 
-		const { zip, summary } = await buildArchive(source, srcUploads);
+		const { zip, summary } = await buildArchive(source, folderPhotoStore(srcUploads));
 		const names = Object.keys(unzipSync(zip));
 		for (const f of [
 			'dies.csv',
@@ -71,7 +72,7 @@ describe('export everything, import into an empty database', () => {
 
 		const target = await openTestDatabase();
 		const dstUploads = path.join(tmp, 'dst');
-		const res = await restoreArchive(target, zip, dstUploads);
+		const res = await restoreArchive(target, zip, folderPhotoStore(dstUploads));
 		expect(res, JSON.stringify(res)).toMatchObject({ ok: true });
 		const after = await figures(target);
 		expect(after).toEqual(before);
@@ -93,10 +94,10 @@ describe('export everything, import into an empty database', () => {
 	it('refuses to restore into a database that already has a plant, and writes nothing', async () => {
 		const source = await openTestDatabase();
 		await source.insertInto('customers').values({ code: 'ACME', name: 'Acme' }).execute();
-		const { zip } = await buildArchive(source, tmp);
-		const res = await restoreArchive(source, zip, tmp);
+		const { zip } = await buildArchive(source, folderPhotoStore(tmp));
+		const res = await restoreArchive(source, zip, folderPhotoStore(tmp));
 		expect(res).toEqual({ ok: false, message: expect.stringContaining('not empty') });
-		const notZip = await restoreArchive(await openTestDatabase(), new Uint8Array([1, 2, 3]), tmp);
+		const notZip = await restoreArchive(await openTestDatabase(), new Uint8Array([1, 2, 3]), folderPhotoStore(tmp));
 		expect(notZip).toEqual({ ok: false, message: 'The file is not a ZIP archive.' });
 	});
 });

@@ -48,7 +48,7 @@ afterAll(async () => {
 });
 
 function upload(files: File[], actor = plant.toolmaker) {
-	return uploadPhotos(plant.db, { target: { jobId }, files, actor, uploadDir: uploads.dir });
+	return uploadPhotos(plant.db, { target: { jobId }, files, actor, photoStore: uploads.store });
 }
 
 async function photoRows() {
@@ -205,7 +205,7 @@ describe('uploading photos to a job', () => {
 				asFile(second, 'before 2.jpg')
 			],
 			actor: plant.toolmaker,
-			uploadDir: uploads.dir,
+			photoStore: uploads.store,
 			stage: 'before'
 		});
 		expect(result).toEqual({
@@ -247,7 +247,7 @@ describe('uploading photos to a job', () => {
 			m.processImage(good)
 		);
 		await expect(
-			storePhotoFilesWith(uploads.dir, [image, image], async (files) => {
+			storePhotoFilesWith(uploads.store, [image, image], async (files) => {
 				expect(await uploads.files()).toHaveLength(4);
 				expect(files).toHaveLength(2);
 				throw new Error('disk full');
@@ -281,7 +281,7 @@ describe('uploading photos to a job', () => {
 			form,
 			files: [asFile(good, 'ok.jpg'), asFile(new Uint8Array(0), 'empty.jpg')],
 			actor: plant.toolmaker,
-			uploadDir: uploads.dir
+			photoStore: uploads.store
 		});
 		expect(result).toMatchObject({ ok: false, status: 400 });
 		expect(result.ok ? [] : result.problems).not.toHaveLength(0);

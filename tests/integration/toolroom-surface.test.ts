@@ -66,7 +66,7 @@ async function inspect(
 		form,
 		files,
 		actor: plant.toolmaker,
-		uploadDir: uploads.dir,
+		photoStore: uploads.store,
 		at: values.at
 	});
 	if (!result.ok) throw new Error(result.message);
@@ -188,7 +188,7 @@ describe('zones from the die’s list, and series since the last repair', () => 
 			form,
 			files: [],
 			actor: plant.toolmaker,
-			uploadDir: uploads.dir
+			photoStore: uploads.store
 		});
 		expect(refused).toMatchObject({ ok: false, status: 400 });
 		expect(await plant.db.selectFrom('surface_inspections').select('id').execute()).toHaveLength(0);
@@ -282,7 +282,7 @@ describe('an inspection completes the plan’s surface-inspection task', () => {
 			form,
 			files: [],
 			actor: plant.toolmaker,
-			uploadDir: uploads.dir,
+			photoStore: uploads.store,
 			at: '2026-02-03T09:30:00.000Z'
 		});
 		if (!result.ok) throw new Error(result.message);
@@ -342,7 +342,7 @@ describe('an inspection completes the plan’s surface-inspection task', () => {
 			form,
 			files: [],
 			actor: plant.toolmaker,
-			uploadDir: uploads.dir,
+			photoStore: uploads.store,
 			jobId: other.id
 		});
 		expect(refused).toMatchObject({ ok: false, status: 400 });

@@ -1,9 +1,9 @@
 import { createHash } from 'node:crypto';
-import fs from 'node:fs';
 import path from 'node:path';
 import { unzipSync } from 'fflate';
 import { parse } from 'csv-parse/sync';
 import { rawHandle, type DB } from '../db/connect';
+import type { PhotoStore } from '../photos/photo-store';
 import { ARCHIVE_TABLES } from './tables';
 
 export type RestoreResult =
@@ -31,13 +31,13 @@ function readCsv(bytes: Uint8Array): { columns: string[]; rows: unknown[][] } {
 
 /**
  * Restores a plant archive (buildArchive) into an empty, migrated database, and its photos into
- * uploadDir. Every table in one transaction with foreign keys checked at the end; photo files are
+ * the photo store. Every table in one transaction with foreign keys checked at the end; photo files are
  * checked against their sha256 before anything is written. All or nothing.
  */
 export async function restoreArchive(
 	db: DB,
 	zip: Uint8Array,
-	uploadDir: string
+	photoStore: PhotoStore
 ): Promise<RestoreResult> {
 	let files: Record<string, Uint8Array>;
 	try {
@@ -131,9 +131,7 @@ export async function restoreArchive(
 		.catch((e: Error) => ({ ok: false as const, message: e.message }));
 	if (!result.ok) return result;
 	for (const p of photos) {
-		const target = path.resolve(uploadDir, p.rel);
-		fs.mkdirSync(path.dirname(target), { recursive: true });
-		fs.writeFileSync(target, p.bytes);
+		await photoStore.put(p.rel, p.bytes);
 	}
 	return result;
 }
