@@ -15,7 +15,9 @@ try {
 	const rows = Object.entries(res.tables)
 		.map(([t, n]) => `${t} ${n}`)
 		.join(', ');
-	console.log(`Restored ${source}: ${rows}; ${res.photos} photo files into the ${photoStore.where}.`);
+	console.log(
+		`Restored ${source}: ${rows}; ${res.photos} photo files into the ${photoStore.where}.`
+	);
 	console.log(
 		'Passwords are not in the archive: give each person a new one (npm run user:add for an admin).'
 	);

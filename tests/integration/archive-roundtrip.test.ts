@@ -97,7 +97,11 @@ describe('export everything, import into an empty database', () => {
 		const { zip } = await buildArchive(source, folderPhotoStore(tmp));
 		const res = await restoreArchive(source, zip, folderPhotoStore(tmp));
 		expect(res).toEqual({ ok: false, message: expect.stringContaining('not empty') });
-		const notZip = await restoreArchive(await openTestDatabase(), new Uint8Array([1, 2, 3]), folderPhotoStore(tmp));
+		const notZip = await restoreArchive(
+			await openTestDatabase(),
+			new Uint8Array([1, 2, 3]),
+			folderPhotoStore(tmp)
+		);
 		expect(notZip).toEqual({ ok: false, message: 'The file is not a ZIP archive.' });
 	});
 });

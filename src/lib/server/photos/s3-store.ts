@@ -49,9 +49,7 @@ export function s3PhotoStore(config: S3PhotoStoreConfig): PhotoStore {
 			const { PutObjectCommand } = await sdk();
 			await (
 				await getClient()
-			).send(
-				new PutObjectCommand({ Bucket, Key: key, Body: bytes, ContentType: 'image/jpeg' })
-			);
+			).send(new PutObjectCommand({ Bucket, Key: key, Body: bytes, ContentType: 'image/jpeg' }));
 		},
 		async get(key) {
 			const { GetObjectCommand } = await sdk();
