@@ -12,8 +12,6 @@ export interface S3PhotoStoreConfig {
 	credentials: { accessKeyId: string; secretAccessKey: string } | null;
 }
 
-const sdk = () => import('@aws-sdk/client-s3');
-
 function isNotFound(error: unknown): boolean {
 	const e = error as { name?: string; $metadata?: { httpStatusCode?: number } };
 	return e?.name === 'NoSuchKey' || e?.name === 'NotFound' || e?.$metadata?.httpStatusCode === 404;
@@ -26,35 +24,35 @@ function isNotFound(error: unknown): boolean {
  * S3-compatible store supports it).
  */
 export function s3PhotoStore(config: S3PhotoStoreConfig): PhotoStore {
-	let client: Promise<S3Client> | undefined;
-	const getClient = () =>
-		(client ??= sdk().then(
-			({ S3Client }) =>
-				new S3Client({
-					region: config.region,
-					endpoint: config.endpoint ?? undefined,
-					forcePathStyle: config.forcePathStyle,
-					credentials: config.credentials ?? undefined,
-					// Checksums only where S3 demands them: several S3-compatible stores reject the
-					// newer default checksum headers.
-					requestChecksumCalculation: 'WHEN_REQUIRED',
-					responseChecksumValidation: 'WHEN_REQUIRED'
-				})
-		));
+	let loaded: Promise<{ sdk: typeof import('@aws-sdk/client-s3'); client: S3Client }> | undefined;
+	const load = () =>
+		(loaded ??= import('@aws-sdk/client-s3').then((sdk) => ({
+			sdk,
+			client: new sdk.S3Client({
+				region: config.region,
+				endpoint: config.endpoint ?? undefined,
+				forcePathStyle: config.forcePathStyle,
+				credentials: config.credentials ?? undefined,
+				// Checksums only where S3 demands them: several S3-compatible stores reject the
+				// newer default checksum headers.
+				requestChecksumCalculation: 'WHEN_REQUIRED',
+				responseChecksumValidation: 'WHEN_REQUIRED'
+			})
+		})));
 	const Bucket = config.bucket;
 	const where = `S3 bucket ${Bucket}${config.endpoint ? ` at ${config.endpoint}` : ` (${config.region})`}`;
 	return {
 		where,
 		async put(key, bytes) {
-			const { PutObjectCommand } = await sdk();
-			await (
-				await getClient()
-			).send(new PutObjectCommand({ Bucket, Key: key, Body: bytes, ContentType: 'image/jpeg' }));
+			const { sdk, client } = await load();
+			await client.send(
+				new sdk.PutObjectCommand({ Bucket, Key: key, Body: bytes, ContentType: 'image/jpeg' })
+			);
 		},
 		async get(key) {
-			const { GetObjectCommand } = await sdk();
+			const { sdk, client } = await load();
 			try {
-				const res = await (await getClient()).send(new GetObjectCommand({ Bucket, Key: key }));
+				const res = await client.send(new sdk.GetObjectCommand({ Bucket, Key: key }));
 				if (!res.Body) return null;
 				return Buffer.from(await res.Body.transformToByteArray());
 			} catch (error) {
@@ -63,13 +61,13 @@ export function s3PhotoStore(config: S3PhotoStoreConfig): PhotoStore {
 			}
 		},
 		async delete(key) {
-			const { DeleteObjectCommand } = await sdk();
-			await (await getClient()).send(new DeleteObjectCommand({ Bucket, Key: key }));
+			const { sdk, client } = await load();
+			await client.send(new sdk.DeleteObjectCommand({ Bucket, Key: key }));
 		},
 		async problem() {
-			const { HeadBucketCommand } = await sdk();
+			const { sdk, client } = await load();
 			try {
-				await (await getClient()).send(new HeadBucketCommand({ Bucket }));
+				await client.send(new sdk.HeadBucketCommand({ Bucket }));
 				return null;
 			} catch (error) {
 				const e = error as { name?: string; code?: string; message?: string };
