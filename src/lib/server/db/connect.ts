@@ -21,6 +21,8 @@ export type Engine = 'sqlite' | 'postgres';
 const rawHandles = new WeakMap<object, SQLite.Database>();
 const engines = new WeakMap<object, Engine>();
 const pools = new WeakMap<object, pg.Pool>();
+/** The schema a PostgreSQL handle was opened on (its search_path), when one was named. */
+const schemas = new WeakMap<object, string>();
 
 /**
  * The better-sqlite3 handle under a Kysely instance opened on SQLite. Code that must run on both
@@ -121,6 +123,7 @@ function openPostgres(url: string, options: OpenOptions): DB {
 	const db = new Kysely<Database>({ dialect: new PostgresDialect({ pool }) });
 	engines.set(db, 'postgres');
 	pools.set(db, pool);
+	if (options.schema) schemas.set(db, options.schema);
 	return db;
 }
 
@@ -134,7 +137,9 @@ const provider: MigrationProvider = { getMigrations: async () => migrations };
 /** Runs every pending migration; throws with the failing migration's name. */
 // eslint-disable-next-line @typescript-eslint/no-explicit-any
 export async function migrateToLatest(db: Kysely<any>): Promise<string[]> {
-	const migrator = new Migrator({ db, provider });
+	// Kysely looks for its own tables in every schema unless told which: on a cluster with several
+	// plant (or test) schemas it would find another schema's lock table and never make its own.
+	const migrator = new Migrator({ db, provider, migrationTableSchema: schemas.get(db) });
 	const { error, results } = await migrator.migrateToLatest();
 	if (error) {
 		const failed = results?.find((r) => r.status === 'Error')?.migrationName ?? 'unknown';
