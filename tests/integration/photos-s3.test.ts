@@ -18,13 +18,18 @@ import {
 } from '../../src/lib/server/photos/photo-store';
 import { storePhotoFilesWith, writePhotoFiles } from '../../src/lib/server/photos/store';
 import { closePhotoPool } from '../../src/lib/server/photos/worker-pool';
-import { openJob } from '../../src/lib/server/toolroom/jobs';
 import {
 	insertPhotoRows,
 	setPhotoShared,
 	uploadPhotos
 } from '../../src/lib/server/toolroom/photos';
-import { asFile, jobForm, makeJpeg, setUpPlant, type ToolroomPlant } from '../fixtures/toolroom';
+import {
+	asFile,
+	makeJpeg,
+	openPlantJob,
+	setUpPlant,
+	type ToolroomPlant
+} from '../fixtures/toolroom';
 
 const current = vi.hoisted(() => ({}) as { db: unknown; store: unknown });
 vi.mock('$lib/server/db', () => ({ getDb: () => current.db }));
@@ -62,13 +67,7 @@ beforeEach(async () => {
 	}
 	plant = await setUpPlant();
 	current.db = plant.db;
-	const opened = await openJob(plant.db, {
-		dieId: plant.dieId,
-		form: jobForm(),
-		actor: plant.toolmaker
-	});
-	if (!opened.ok) throw new Error(opened.message);
-	jobId = (await plant.db.selectFrom('toolroom_jobs').select('id').executeTakeFirstOrThrow()).id;
+	jobId = await openPlantJob(plant);
 });
 
 afterAll(async () => {

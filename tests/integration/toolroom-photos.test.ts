@@ -7,7 +7,7 @@ import { storePhotoFilesWith } from '../../src/lib/server/photos/store';
 import { closePhotoPool } from '../../src/lib/server/photos/worker-pool';
 import { recordInspection } from '../../src/lib/server/toolroom/inspections';
 import { addDieZone } from '../../src/lib/server/toolroom/zones';
-import { cancelJob, openJob } from '../../src/lib/server/toolroom/jobs';
+import { cancelJob } from '../../src/lib/server/toolroom/jobs';
 import {
 	findViewablePhoto,
 	listJobPhotos,
@@ -16,9 +16,9 @@ import {
 } from '../../src/lib/server/toolroom/photos';
 import {
 	asFile,
-	jobForm,
 	makeJpeg,
 	makeUploadDir,
+	openPlantJob,
 	setUpPlant,
 	type ToolroomPlant
 } from '../fixtures/toolroom';
@@ -31,13 +31,7 @@ let good: Buffer;
 beforeEach(async () => {
 	plant = await setUpPlant();
 	uploads = await makeUploadDir();
-	const opened = await openJob(plant.db, {
-		dieId: plant.dieId,
-		form: jobForm(),
-		actor: plant.toolmaker
-	});
-	if (!opened.ok) throw new Error(opened.message);
-	jobId = (await plant.db.selectFrom('toolroom_jobs').select('id').executeTakeFirstOrThrow()).id;
+	jobId = await openPlantJob(plant);
 	good ??= await makeJpeg(160, 120);
 });
 afterEach(async () => {
