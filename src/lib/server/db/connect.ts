@@ -21,7 +21,6 @@ export type Engine = 'sqlite' | 'postgres';
 const rawHandles = new WeakMap<object, SQLite.Database>();
 const engines = new WeakMap<object, Engine>();
 const pools = new WeakMap<object, pg.Pool>();
-/** The schema a PostgreSQL handle was opened on (its search_path), when one was named. */
 const schemas = new WeakMap<object, string>();
 
 /**
@@ -123,7 +122,7 @@ function openPostgres(url: string, options: OpenOptions): DB {
 	const db = new Kysely<Database>({ dialect: new PostgresDialect({ pool }) });
 	engines.set(db, 'postgres');
 	pools.set(db, pool);
-	if (options.schema) schemas.set(db, options.schema);
+	schemas.set(db, options.schema ?? 'public');
 	return db;
 }
 
@@ -137,8 +136,8 @@ const provider: MigrationProvider = { getMigrations: async () => migrations };
 /** Runs every pending migration; throws with the failing migration's name. */
 // eslint-disable-next-line @typescript-eslint/no-explicit-any
 export async function migrateToLatest(db: Kysely<any>): Promise<string[]> {
-	// Kysely looks for its own tables in every schema unless told which: on a cluster with several
-	// plant (or test) schemas it would find another schema's lock table and never make its own.
+	// On PostgreSQL name the schema: Kysely looks for its bookkeeping tables by name across every
+	// schema it can see, and would take another schema's for this one's.
 	const migrator = new Migrator({ db, provider, migrationTableSchema: schemas.get(db) });
 	const { error, results } = await migrator.migrateToLatest();
 	if (error) {
