@@ -36,6 +36,8 @@ vi.mock('$lib/server/db', () => ({ getDb: () => current.db }));
 vi.mock('$lib/server/photos', () => ({ getPhotoStore: () => current.store }));
 
 const { GET } = await import('../../src/routes/photos/[id]/[variant]/+server');
+const { savePlantLogoAction } = await import('../../src/routes/settings/plant-identity');
+const { GET: getPlantLogo } = await import('../../src/routes/plant-logo/+server');
 
 let folder: string;
 let fake: FakeS3;
@@ -225,6 +227,62 @@ describe('photos in an S3 bucket', () => {
 		expect(await missing.problem()).toMatch(
 			/^The photo store \(S3 bucket no-such-bucket at http:\/\/127\.0\.0\.1:\d+\) cannot be reached/
 		);
+	});
+});
+
+describe('the plant logo in an S3 bucket', () => {
+	/** The settings page's logo action as SvelteKit calls it, for an admin. */
+	async function postLogo(fields: Record<string, string | File>) {
+		const body = new FormData();
+		for (const [k, v] of Object.entries(fields)) body.set(k, v);
+		const url = new URL('http://plant.test/settings?/logo');
+		const event = {
+			url,
+			request: new Request(url, { method: 'POST', body }),
+			params: {},
+			locals: {
+				user: { id: plant.lead.userId, role: 'admin', name: 'A', email: 'a@plant.test' },
+				session: null
+			}
+		} as unknown as RequestEvent;
+		return savePlantLogoAction(event);
+	}
+
+	async function logoFile() {
+		const row = await plant.db
+			.selectFrom('plant_settings')
+			.select('logo_file')
+			.executeTakeFirstOrThrow();
+		return row.logo_file;
+	}
+
+	it('is stored, shown and replaced through the bucket', async () => {
+		expect(await postLogo({ logo: asFile(photo, 'logo.jpg') })).toMatchObject({
+			logo: { ok: true }
+		});
+		const first = await logoFile();
+		expect(first).toMatch(/^photos\/[0-9a-f]{2}\/[0-9a-f]{32}\.thumb\.jpg$/);
+		expect(await bucketKeys()).toEqual([first!.replace(/\.thumb\.jpg$/, '.jpg'), first].sort());
+		const shown = await getPlantLogo({} as Parameters<typeof getPlantLogo>[0]);
+		expect(shown.headers.get('content-type')).toBe('image/jpeg');
+		// The logo is the thumbnail: 800 × 600 shrunk to a long side of 400.
+		expect(inspectImage(Buffer.from(await shown.arrayBuffer()))).toMatchObject({
+			width: 400,
+			height: 300
+		});
+
+		// A new logo replaces the old one's objects; removing it leaves the bucket empty.
+		expect(await postLogo({ logo: asFile(await makeJpeg(300, 200), 'new.jpg') })).toMatchObject({
+			logo: { ok: true }
+		});
+		const second = await logoFile();
+		expect(second).not.toBe(first);
+		expect(await bucketKeys()).toEqual([second!.replace(/\.thumb\.jpg$/, '.jpg'), second].sort());
+		expect(await postLogo({ remove: '1' })).toMatchObject({ logo: { ok: true } });
+		expect(await logoFile()).toBeNull();
+		expect(await bucketKeys()).toEqual([]);
+		const mark = await getPlantLogo({} as Parameters<typeof getPlantLogo>[0]);
+		expect(mark.headers.get('content-type')).toBe('image/svg+xml');
 	});
 });
 
