@@ -131,6 +131,8 @@ export async function restoreArchive(
 		.catch((e: Error) => ({ ok: false as const, message: e.message }));
 	if (!result.ok) return result;
 	for (const p of photos) {
+		// A file left by an earlier attempt under the same name is replaced (put never overwrites).
+		await photoStore.delete(p.rel);
 		await photoStore.put(p.rel, p.bytes);
 	}
 	return result;

@@ -12,7 +12,7 @@ import { s3PhotoStore, type S3PhotoStoreConfig } from './s3-store';
 export interface PhotoStore {
 	/** Where the photos are, for log lines: "folder /srv/uploads", "S3 bucket photos at …". */
 	readonly where: string;
-	/** Stores `bytes` under `key`. Keys are fresh random names, never reused. */
+	/** Stores `bytes` under a new `key` (the folder store refuses a key already there). */
 	put(key: string, bytes: Uint8Array): Promise<void>;
 	/** The bytes stored under `key`, or null when there is nothing there. */
 	get(key: string): Promise<Buffer | null>;
