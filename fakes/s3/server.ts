@@ -1,3 +1,6 @@
+// fakes/ is outside the tsconfig include, so the types of s3rver come along with this file.
+// eslint-disable-next-line @typescript-eslint/triple-slash-reference
+/// <reference path="./s3rver.d.ts" />
 /**
  * Fake S3 for development and tests: s3rver keeps the objects as files in a folder and answers
  * the S3 calls Castellan's photo store makes (put, get, delete, head bucket, list).
