@@ -64,6 +64,8 @@ export function s3PhotoStore(config: S3PhotoStoreConfig): PhotoStore {
 			const { sdk, client } = await load();
 			await client.send(new sdk.DeleteObjectCommand({ Bucket, Key: key }));
 		},
+		// HeadBucket: the bucket exists and the keys reach it (on AWS it needs s3:ListBucket). Cheap
+		// enough to ask before every upload, as the folder store writes a probe file.
 		async problem() {
 			const { sdk, client } = await load();
 			try {
