@@ -23,6 +23,7 @@ export const init: ServerInit = async () => {
 	const applied = await migrateToLatest(getDb());
 	if (applied.length) console.log(`Castellan: applied migrations ${applied.join(', ')}`);
 	console.log(`Castellan: plant time is ${await getPlantTimeZone(getDb())}.`);
+	console.log(`Castellan: photos are kept in the ${getPhotoStore().where}.`);
 	const photoProblem = await getPhotoStore().problem();
 	if (photoProblem)
 		console.error(`Castellan: ${photoProblem} Photo uploads answer 503 until then.`);
