@@ -323,19 +323,8 @@ describe('an inspection completes the plan’s surface-inspection task', () => {
 	});
 
 	it('joins an open job of the die, and refuses a job of another die', async () => {
-		const { openJob } = await import('../../src/lib/server/toolroom/jobs');
-		const { jobForm } = await import('../fixtures/toolroom');
-		const opened = await openJob(plant.db, {
-			dieId: plant.otherDieId,
-			form: jobForm(),
-			actor: plant.lead
-		});
-		if (!opened.ok) throw new Error(opened.message);
-		const other = await plant.db
-			.selectFrom('toolroom_jobs')
-			.select('id')
-			.where('die_id', '=', plant.otherDieId)
-			.executeTakeFirstOrThrow();
+		const { openPlantJob } = await import('../fixtures/toolroom');
+		const otherJobId = await openPlantJob(plant, { dieId: plant.otherDieId, actor: plant.lead });
 		const form = inspectionSchema.parse({ half: 'cover', zone: 'Core', shotsAt: 100, grade: 1 });
 		const refused = await recordInspection(plant.db, {
 			dieId: plant.dieId,
@@ -343,7 +332,7 @@ describe('an inspection completes the plan’s surface-inspection task', () => {
 			files: [],
 			actor: plant.toolmaker,
 			photoStore: uploads.store,
-			jobId: other.id
+			jobId: otherJobId
 		});
 		expect(refused).toMatchObject({ ok: false, status: 400 });
 		expect(await plant.db.selectFrom('surface_inspections').select('id').execute()).toHaveLength(0);
