@@ -17,6 +17,7 @@ import jpeg from '@jimp/js-jpeg';
 import { methods as resizeMethods } from '@jimp/plugin-resize';
 import { migrateToLatest, openDatabase, type DB } from '../src/lib/server/db/connect';
 import { fitLongSide } from '../src/lib/photo-downscale';
+import { folderPhotoStore } from '../src/lib/server/photos/folder-store';
 import { closePhotoPool, PHOTO_POOL_SIZE } from '../src/lib/server/photos/worker-pool';
 import { listOpenJobs } from '../src/lib/server/toolroom/board';
 import { uploadPhotos } from '../src/lib/server/toolroom/photos';
@@ -142,7 +143,7 @@ export async function run(): Promise<BenchFigure[]> {
 	try {
 		await migrateToLatest(db);
 		const jobId = await seedJob(db);
-		const uploadDir = path.join(dir, 'uploads');
+		const photoStore = folderPhotoStore(path.join(dir, 'uploads'));
 		const photo = await makeTwelveMegapixelJpeg();
 		const small = await browserStyle(photo);
 		const photoFile = path.join(dir, 'twelve.jpg');
@@ -154,7 +155,7 @@ export async function run(): Promise<BenchFigure[]> {
 				target: { jobId },
 				files: Array.from({ length: n }, (_, i) => new File([new Uint8Array(bytes)], `p${i}.jpg`)),
 				actor,
-				uploadDir
+				photoStore
 			});
 		const timed = async (fn: () => unknown) => {
 			const t = performance.now();

@@ -1,7 +1,7 @@
 // npm run data:export -- FILE.zip — the whole plant as CSV files and photos in one ZIP.
 import fs from 'node:fs';
-import path from 'node:path';
 import { buildArchive } from '../src/lib/server/archive/export';
+import { photoStoreFromEnv } from '../src/lib/server/photos/photo-store';
 import { fail, openMigratedDatabase } from './lib/cli';
 
 const target = process.argv[2];
@@ -9,10 +9,7 @@ if (!target || !target.endsWith('.zip'))
 	fail('name the ZIP file to write', 'npm run data:export -- FILE.zip');
 const db = await openMigratedDatabase();
 try {
-	const { zip, summary } = await buildArchive(
-		db,
-		path.resolve(process.env.UPLOAD_DIR || './data/uploads')
-	);
+	const { zip, summary } = await buildArchive(db, photoStoreFromEnv(process.env));
 	fs.writeFileSync(target, zip);
 	const rows = Object.entries(summary.tables)
 		.map(([t, n]) => `${t} ${n}`)

@@ -5,6 +5,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { fakeMailPortsFromEnv, startFakeMail } from '../fakes/mail/server';
 import { startDemoPresses, type DemoPresses } from '../fakes/press/demo-plant';
+import { fakeS3OptionsFromEnv, startFakeS3, type FakeS3 } from '../fakes/s3/server';
 import { createApiToken, revokeApiToken } from '../src/lib/server/auth/tokens';
 import { DEMO_PASSWORD, DEMO_PLANT, DEMO_USERS, isEmpty, seedDemo } from './lib/demo-scenario';
 import { databasePath, openMigratedDatabase } from './lib/cli';
@@ -25,6 +26,15 @@ const built = fs.existsSync('build/index.js') ? fs.statSync('build/index.js').mt
 if (built < Math.max(newestMtime('src'), newestMtime('migrations'))) {
 	console.log('Building Castellan (vite build)…');
 	execSync('npx vite build --logLevel error', { stdio: ['ignore', 'ignore', 'inherit'] });
+}
+
+// PHOTO_STORE=s3 without an S3_ENDPOINT of its own: photos go to a fake S3 started here (before
+// seeding, which stores the demo's photos). Without PHOTO_STORE the photos stay in UPLOAD_DIR.
+let fakeS3: FakeS3 | null = null;
+if (process.env.PHOTO_STORE === 's3' && !process.env.S3_ENDPOINT) {
+	const options = fakeS3OptionsFromEnv();
+	fakeS3 = await startFakeS3(options);
+	Object.assign(process.env, fakeS3.env);
 }
 
 const db = await openMigratedDatabase();
@@ -109,6 +119,7 @@ if (presses) {
 		`Demo presses on MQTT ${presses.broker.url} (${presses.presses.map((p) => `${p.press}: ${p.die}`).join(', ')}); counts reach the ledger every 30 s.`
 	);
 }
+if (fakeS3) console.log(`Fake S3 for photos: ${fakeS3.endpoint}, bucket ${fakeS3.bucket}`);
 if (mail)
 	console.log(
 		`Fake mail inbox: http://127.0.0.1:${mail.httpPort} (SMTP on 127.0.0.1:${mail.smtpPort})`
@@ -117,16 +128,19 @@ console.log(`Sign in as any of these, password "${DEMO_PASSWORD}":`);
 for (const u of DEMO_USERS) console.log(`  ${u.role.padEnd(14)} ${u.email}`);
 console.log('Stop with Ctrl+C.\n');
 
-const stop = async () => {
-	app.kill('SIGTERM');
+const closeFakes = async () => {
 	await presses?.close();
 	await mail?.close();
+	await fakeS3?.close();
+};
+const stop = async () => {
+	app.kill('SIGTERM');
+	await closeFakes();
 	process.exit(0);
 };
 process.on('SIGINT', stop);
 process.on('SIGTERM', stop);
 app.on('exit', async (code) => {
-	await presses?.close();
-	await mail?.close();
+	await closeFakes();
 	process.exit(code ?? 0);
 });

@@ -13,7 +13,8 @@ import {
 	SMALL_BODY_BYTES,
 	takesPhotos
 } from '$lib/server/http/body-limit';
-import { getUploadDir, UPLOADS_UNAVAILABLE, uploadDirProblem } from '$lib/server/photos/upload-dir';
+import { getPhotoStore } from '$lib/server/photos';
+import { UPLOADS_UNAVAILABLE } from '$lib/server/photos/upload-dir';
 import { readTextCapped } from '$lib/server/http/read-capped';
 import { startPressIdleCron } from '$lib/server/schedule/press-idle-cron';
 
@@ -22,7 +23,8 @@ export const init: ServerInit = async () => {
 	const applied = await migrateToLatest(getDb());
 	if (applied.length) console.log(`Castellan: applied migrations ${applied.join(', ')}`);
 	console.log(`Castellan: plant time is ${await getPlantTimeZone(getDb())}.`);
-	const photoProblem = uploadDirProblem(getUploadDir());
+	console.log(`Castellan: photos are kept in the ${getPhotoStore().where}.`);
+	const photoProblem = await getPhotoStore().problem();
 	if (photoProblem)
 		console.error(`Castellan: ${photoProblem} Photo uploads answer 503 until then.`);
 	// The notice job lives in the server process, once per process (NOTICE_CRON=off stops it).
@@ -103,7 +105,7 @@ const limitRequestBody: Handle = async ({ event, resolve }) => {
 	return refusal ? refuse(event, refusal.status, refusal.message) : resolve(event);
 };
 
-// Photos are refused before their bytes are read when the photo folder cannot be written: a plain
+// Photos are refused before their bytes are read when the photo store cannot be written: a plain
 // 503 sentence instead of a 500 after a long upload.
 const refuseUploadsWithoutStore: Handle = async ({ event, resolve }) => {
 	const type = event.request.headers.get('content-type') ?? '';
@@ -111,7 +113,7 @@ const refuseUploadsWithoutStore: Handle = async ({ event, resolve }) => {
 		event.request.method === 'POST' &&
 		type.startsWith('multipart/form-data') &&
 		takesPhotos(event.route.id) &&
-		uploadDirProblem(getUploadDir())
+		(await getPhotoStore().problem())
 	) {
 		return refuse(event, 503, UPLOADS_UNAVAILABLE);
 	}

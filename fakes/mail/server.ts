@@ -7,12 +7,11 @@
  *
  * Self-contained on purpose (nothing imported from src/): it stands in for a hosted service.
  */
-import { realpathSync } from 'node:fs';
 import { createServer, type IncomingMessage, type ServerResponse } from 'node:http';
 import type { AddressInfo, Server } from 'node:net';
-import { fileURLToPath } from 'node:url';
 import { simpleParser, type AddressObject, type ParsedMail } from 'mailparser';
 import { SMTPServer, type SMTPServerSession } from 'smtp-server';
+import { isEntryPoint } from '../entry-point';
 
 export interface StoredMessage {
 	id: string;
@@ -320,17 +319,7 @@ export function fakeMailPortsFromEnv(env: Record<string, string | undefined> = p
 	};
 }
 
-function isEntryPoint(): boolean {
-	const script = process.argv[1];
-	if (!script) return false;
-	try {
-		return realpathSync(script) === realpathSync(fileURLToPath(import.meta.url));
-	} catch {
-		return false;
-	}
-}
-
-if (isEntryPoint()) {
+if (isEntryPoint(import.meta.url)) {
 	const host = '127.0.0.1';
 	const mail = await startFakeMail({ ...fakeMailPortsFromEnv(), host });
 	console.log(

@@ -1,5 +1,4 @@
-import { realpathSync } from 'node:fs';
-import { fileURLToPath } from 'node:url';
+import { isEntryPoint } from '../../fakes/entry-point';
 
 /** One measured figure with its target; `npm run bench` collects these into one table. */
 export interface BenchFigure {
@@ -9,16 +8,6 @@ export interface BenchFigure {
 	target: string;
 	pass: boolean;
 	ratio?: number;
-}
-
-function isEntryPoint(moduleUrl: string): boolean {
-	const script = process.argv[1];
-	if (!script) return false;
-	try {
-		return realpathSync(script) === realpathSync(fileURLToPath(moduleUrl));
-	} catch {
-		return false;
-	}
 }
 
 /** Lets a bench script run on its own (`npx tsx scripts/bench-x.ts`) and print its figures. */

@@ -11,6 +11,7 @@ import { createApiToken } from '../../src/lib/server/auth/tokens';
 import { seedScheduleDemo } from './demo-schedule';
 import { seedDemoShots } from './demo-shots';
 import { seedToolroomDemo } from './demo-toolroom';
+import { photoStoreFromEnv, type PhotoStore } from '../../src/lib/server/photos/photo-store';
 import { RETIREMENT_REASONS, type RetirementReason } from '../../src/lib/domain';
 
 const DEMO_RETIREMENT_ORDER: RetirementReason[] = [
@@ -237,7 +238,7 @@ export interface SeedSummary {
 export async function seedDemo(
 	db: DB,
 	now = new Date(),
-	uploadDir = process.env.UPLOAD_DIR || './data/uploads'
+	photoStore: PhotoStore = photoStoreFromEnv(process.env)
 ): Promise<SeedSummary> {
 	const rand = mulberry32(20261201);
 	const nowIso = now.toISOString();
@@ -502,7 +503,7 @@ export async function seedDemo(
 	// The toolroom's jobs, inspections (with drawn surface images) and cooling checks, then the
 	// planner's bookings for the coming weeks.
 	await seedDemoShots(db, now);
-	await seedToolroomDemo(db, now, uploadDir);
+	await seedToolroomDemo(db, now, photoStore);
 	await seedScheduleDemo(db, now);
 	await sql`pragma optimize`.execute(db);
 	return { dies: specs.length, entries, token };

@@ -2,10 +2,10 @@
 // procedurally drawn heat-check images (no real photos), cooling circuits with checks — one weak
 // circuit on D-0120 — and rising surface grades on D-0131. Die states set by the scenario are left
 // as they are, and no service task is marked done, so the rest of the demo tells the same story.
-import path from 'node:path';
 import { createJimp } from '@jimp/core';
 import jpeg from '@jimp/js-jpeg';
 import type { DB } from '../../src/lib/server/db/connect';
+import { photoStoreFromEnv, type PhotoStore } from '../../src/lib/server/photos/photo-store';
 import { closePhotoPool } from '../../src/lib/server/photos/worker-pool';
 import {
 	closeJobSchema,
@@ -118,7 +118,7 @@ export interface ToolroomSeedSummary {
 export async function seedToolroomDemo(
 	db: DB,
 	now: Date,
-	uploadDir: string = path.resolve(process.env.UPLOAD_DIR || './data/uploads')
+	photoStore: PhotoStore = photoStoreFromEnv(process.env)
 ): Promise<ToolroomSeedSummary> {
 	const users = await db.selectFrom('users').select(['id', 'role']).execute();
 	const lead: Actor = {
@@ -354,7 +354,7 @@ export async function seedToolroomDemo(
 			},
 			files,
 			actor: maker,
-			uploadDir,
+			photoStore,
 			at: daysAgo(ins.days, 10)
 		});
 		if (!result.ok) throw new Error(`Demo inspection on ${ins.die}: ${result.message}`);
@@ -685,7 +685,7 @@ export async function seedToolroomDemo(
 					target: { jobId: jobRow.id },
 					files: [photoFile(await drawSurfaceImage(seed++, grade), name)],
 					actor: maker,
-					uploadDir,
+					photoStore,
 					caption,
 					stage,
 					at: daysAgo(openedAgo - tookDays, 11)

@@ -11,6 +11,7 @@ import { Ajv2020, type ValidateFunction } from 'ajv/dist/2020.js';
 import addFormats from 'ajv-formats';
 import { afterAll, beforeAll, describe, expect, test, vi } from 'vitest';
 import { seedDemo } from '../../scripts/lib/demo-scenario';
+import { folderPhotoStore } from '../../src/lib/server/photos/folder-store';
 import { migrateToLatest, openDatabase, type DB } from '../../src/lib/server/db/connect';
 import { OPENAPI_DOCUMENT } from '../../src/lib/server/api/openapi';
 import { toUtcIso } from '../../src/lib/schemas/schedule';
@@ -34,7 +35,7 @@ let otherOwnerDie = '';
 beforeAll(async () => {
 	const seedDb = openDatabase(process.env.DATABASE_PATH!);
 	await migrateToLatest(seedDb);
-	await seedDemo(seedDb, new Date(), process.env.UPLOAD_DIR);
+	await seedDemo(seedDb, new Date(), folderPhotoStore(process.env.UPLOAD_DIR!));
 	await seedDb.destroy();
 	const { getDb } = await import('../../src/lib/server/db');
 	db = getDb();

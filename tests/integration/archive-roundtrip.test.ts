@@ -18,6 +18,7 @@ import { restoreArchive } from '../../src/lib/server/archive/restore';
 import { dieLife, findDie } from '../../src/lib/server/dies/die-detail';
 import { listServicePlan } from '../../src/lib/server/dies/service-plan';
 import { seedDemo } from '../../scripts/lib/demo-scenario';
+import { folderPhotoStore } from '../../src/lib/server/photos/folder-store';
 import { unzipSync, zipSync } from 'fflate';
 
 const ASOF = '2026-12-01T06:00:00.000Z';
@@ -95,7 +96,7 @@ async function addDie(
 async function sqliteDemo(uploads: string): Promise<DB> {
 	const db = openDatabase(path.join(tmp, `demo-${Date.now()}.db`));
 	await migrateToLatest(db);
-	await seedDemo(db, new Date('2026-11-30T12:00:00.000Z'), uploads);
+	await seedDemo(db, new Date('2026-11-30T12:00:00.000Z'), folderPhotoStore(uploads));
 	return db;
 }
 
@@ -104,11 +105,11 @@ describe('export everything, import into an empty database', () => {
 		const source = await openTestDatabase();
 		const srcUploads = path.join(tmp, 'src');
 		fs.mkdirSync(srcUploads);
-		await seedDemo(source, new Date('2026-11-30T12:00:00.000Z'), srcUploads);
+		await seedDemo(source, new Date('2026-11-30T12:00:00.000Z'), folderPhotoStore(srcUploads));
 		const before = await figures(source);
 		expect(Object.keys(before.dies).length).toBeGreaterThan(30);
 
-		const { zip, summary } = await buildArchive(source, srcUploads);
+		const { zip, summary } = await buildArchive(source, folderPhotoStore(srcUploads));
 		const names = Object.keys(unzipSync(zip));
 		for (const f of [
 			'dies.csv',
@@ -129,7 +130,7 @@ describe('export everything, import into an empty database', () => {
 
 		const target = await openTestDatabase();
 		const dstUploads = path.join(tmp, 'dst');
-		const res = await restoreArchive(target, zip, dstUploads);
+		const res = await restoreArchive(target, zip, folderPhotoStore(dstUploads));
 		expect(res, JSON.stringify(res)).toMatchObject({ ok: true });
 		const after = await figures(target);
 		expect(after).toEqual(before);
@@ -227,9 +228,9 @@ describe('export everything, import into an empty database', () => {
 			.where('id', '=', 3)
 			.execute();
 
-		const { zip } = await buildArchive(source, uploads);
+		const { zip } = await buildArchive(source, folderPhotoStore(uploads));
 		const target = await openTestDatabase();
-		const res = await restoreArchive(target, zip, path.join(tmp, 'refs-back'));
+		const res = await restoreArchive(target, zip, folderPhotoStore(path.join(tmp, 'refs-back')));
 		expect(res, JSON.stringify(res)).toMatchObject({ ok: true, photos: 2 });
 		expect(await everyRow(target)).toEqual(await everyRow(source));
 		const half = await target
@@ -259,12 +260,12 @@ describe('export everything, import into an empty database', () => {
 		const alloy = await source.selectFrom('alloys').select('id').executeTakeFirstOrThrow();
 		await addDie(source, { number: 'D-1', customer_id: 2, alloy_id: alloy.id });
 		// The archive loses owner 2 (its line in customers.csv) while die D-1 still names it.
-		const files = unzipSync((await buildArchive(source, tmp)).zip);
+		const files = unzipSync((await buildArchive(source, folderPhotoStore(tmp))).zip);
 		const lines = new TextDecoder().decode(files['customers.csv']).split('\r\n');
 		expect(lines[2]).toMatch(/^2,"BOLT"/);
 		files['customers.csv'] = new TextEncoder().encode(lines.filter((_, i) => i !== 2).join('\r\n'));
 		const target = await openTestDatabase();
-		const res = await restoreArchive(target, zipSync(files), tmp);
+		const res = await restoreArchive(target, zipSync(files), folderPhotoStore(tmp));
 		expect(res).toEqual({ ok: false, message: expect.stringContaining('do not fit together') });
 		expect(await target.selectFrom('customers').selectAll().execute()).toEqual([]);
 	});
@@ -272,10 +273,14 @@ describe('export everything, import into an empty database', () => {
 	it('refuses to restore into a database that already has a plant, and writes nothing', async () => {
 		const source = await openTestDatabase();
 		await source.insertInto('customers').values({ code: 'ACME', name: 'Acme' }).execute();
-		const { zip } = await buildArchive(source, tmp);
-		const res = await restoreArchive(source, zip, tmp);
+		const { zip } = await buildArchive(source, folderPhotoStore(tmp));
+		const res = await restoreArchive(source, zip, folderPhotoStore(tmp));
 		expect(res).toEqual({ ok: false, message: expect.stringContaining('not empty') });
-		const notZip = await restoreArchive(await openTestDatabase(), new Uint8Array([1, 2, 3]), tmp);
+		const notZip = await restoreArchive(
+			await openTestDatabase(),
+			new Uint8Array([1, 2, 3]),
+			folderPhotoStore(tmp)
+		);
 		expect(notZip).toEqual({ ok: false, message: 'The file is not a ZIP archive.' });
 	});
 });
@@ -291,13 +296,14 @@ describe.skipIf(testEngine() !== 'postgres')('moving a plant between engines', (
 		expect(rows.dies.length).toBeGreaterThan(30);
 
 		const pg = await openTestDatabase();
-		const there = await restoreArchive(pg, (await buildArchive(sqlite, uploads)).zip, uploads);
+		const photos = folderPhotoStore(uploads);
+		const there = await restoreArchive(pg, (await buildArchive(sqlite, photos)).zip, photos);
 		expect(there, JSON.stringify(there)).toMatchObject({ ok: true });
 		expect(await everyRow(pg)).toEqual(rows);
 
 		const back = openDatabase(path.join(tmp, 'back.db'));
 		await migrateToLatest(back);
-		const again = await restoreArchive(back, (await buildArchive(pg, uploads)).zip, uploads);
+		const again = await restoreArchive(back, (await buildArchive(pg, photos)).zip, photos);
 		expect(again, JSON.stringify(again)).toMatchObject({ ok: true });
 		expect(await everyRow(back)).toEqual(rows);
 		await Promise.all([sqlite.destroy(), pg.destroy(), back.destroy()]);

@@ -9,6 +9,7 @@ import {
 	inspectionSchema
 } from '../../src/lib/schemas/toolroom';
 import { findDie, getDieStory } from '../../src/lib/server/dies/die-detail';
+import { folderPhotoStore } from '../../src/lib/server/photos/folder-store';
 import { closePhotoPool } from '../../src/lib/server/photos/worker-pool';
 import { addCircuit, recordCheck, voidCoolingCheck } from '../../src/lib/server/toolroom/cooling';
 import { correctInspection, recordInspection } from '../../src/lib/server/toolroom/inspections';
@@ -60,7 +61,7 @@ describe('die history', () => {
 			form: inspectionSchema.parse({ half: 'ejector', zone: 'Core 1', shotsAt: '1100', grade: 2 }),
 			files: [],
 			actor: plant.toolmaker,
-			uploadDir: '/nonexistent',
+			photoStore: folderPhotoStore('/nonexistent'),
 			at: '2026-03-02T08:00:00.000Z'
 		});
 		if (!inspection.ok) throw new Error(inspection.message);

@@ -248,7 +248,7 @@ describe('closing sums what was recorded', () => {
 		const listed = (await listJobsForDie(plant.db, plant.dieId)).find((j) => j.number === number);
 		expect(listed?.hours).toBe(4.25);
 
-		const pdf = await renderJobReportPdf(await getJobReport(plant.db, job, uploads.dir), 'Plant');
+		const pdf = await renderJobReportPdf(await getJobReport(plant.db, job, uploads.store), 'Plant');
 		const { text } = await extractText(await getDocumentProxy(new Uint8Array(pdf)), {
 			mergePages: true
 		});

@@ -45,7 +45,7 @@ describe('the job report PDF', () => {
 				target: { jobId: open.id },
 				files: [asFile(photo, `${stage}.jpg`)],
 				actor: plant.toolmaker,
-				uploadDir: uploads.dir,
+				photoStore: uploads.store,
 				caption: `Gate side ${stage}`,
 				stage
 			});
@@ -57,7 +57,7 @@ describe('the job report PDF', () => {
 			form: inspectionSchema.parse({ half: 'cover', zone: 'Gate side', shotsAt: 12_000, grade: 3 }),
 			files: [],
 			actor: plant.toolmaker,
-			uploadDir: uploads.dir
+			photoStore: uploads.store
 		});
 		expect(inspected.ok).toBe(true);
 		const closed = await closeJob(plant.db, {
@@ -75,7 +75,7 @@ describe('the job report PDF', () => {
 
 		const job = (await getJob(plant.db, opened.number))!;
 		const pdf = await renderJobReportPdf(
-			await getJobReport(plant.db, job, uploads.dir),
+			await getJobReport(plant.db, job, uploads.store),
 			'Test Plant'
 		);
 		const doc = await getDocumentProxy(new Uint8Array(pdf));

@@ -47,7 +47,7 @@ beforeAll(async () => {
 		form: inspectionSchema.parse({ half: 'cover', zone: 'Gate side', shotsAt: 11_000, grade: 3 }),
 		files: [],
 		actor: plant.toolmaker,
-		uploadDir: uploads.dir
+		photoStore: uploads.store
 	});
 	if (!inspected.ok) throw new Error(inspected.message);
 	// A grade-2 zone is not named in the mail.
@@ -56,7 +56,7 @@ beforeAll(async () => {
 		form: inspectionSchema.parse({ half: 'ejector', zone: 'Core 1', shotsAt: 11_000, grade: 2 }),
 		files: [],
 		actor: plant.toolmaker,
-		uploadDir: uploads.dir
+		photoStore: uploads.store
 	});
 	const circuit = await addCircuit(plant.db, {
 		dieId: plant.dieId,

@@ -38,7 +38,7 @@ const inspect = (shotsAt: string, grade: number, files: File[] = []) =>
 		form: inspectionSchema.parse({ half: 'cover', zone: 'Gate side', shotsAt, grade }),
 		files,
 		actor: plant.toolmaker,
-		uploadDir: uploads.dir
+		photoStore: uploads.store
 	});
 
 const overview = async () => {

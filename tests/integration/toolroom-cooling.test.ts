@@ -342,23 +342,12 @@ describe('die heat balance', () => {
 
 describe('a cooling check under a job', () => {
 	it('joins the job, shows on it, and a flushed line offers the plan’s cooling-flush task', async () => {
-		const { openJob } = await import('../../src/lib/server/toolroom/jobs');
 		const { listJobRecords } = await import('../../src/lib/server/toolroom/job-page');
-		const { jobForm } = await import('../fixtures/toolroom');
-		const opened = await openJob(plant.db, {
-			dieId: plant.dieId,
-			form: jobForm(),
-			actor: plant.lead
-		});
-		if (!opened.ok) throw new Error(opened.message);
-		const job = await plant.db
-			.selectFrom('toolroom_jobs')
-			.select('id')
-			.where('number', '=', opened.number)
-			.executeTakeFirstOrThrow();
+		const { openPlantJob } = await import('../fixtures/toolroom');
+		const jobId = await openPlantJob(plant, { actor: plant.lead });
 		const result = await recordCheck(plant.db, {
 			dieId: plant.dieId,
-			jobId: job.id,
+			jobId,
 			form: coolingCheckSchema.parse({
 				leakTest: 'pass',
 				circuitId: water,
@@ -385,7 +374,7 @@ describe('a cooling check under a job', () => {
 			doneOn: '2026-02-04',
 			shots: 12_000
 		});
-		const records = await listJobRecords(plant.db, job.id);
+		const records = await listJobRecords(plant.db, jobId);
 		expect(records.coolingChecks.map((k) => [k.measuredFlowLpm, k.flushed])).toEqual([[20, 1]]);
 
 		// A check without a flush offers nothing.

@@ -7,7 +7,7 @@ import { storePhotoFilesWith } from '../../src/lib/server/photos/store';
 import { closePhotoPool } from '../../src/lib/server/photos/worker-pool';
 import { recordInspection } from '../../src/lib/server/toolroom/inspections';
 import { addDieZone } from '../../src/lib/server/toolroom/zones';
-import { cancelJob, openJob } from '../../src/lib/server/toolroom/jobs';
+import { cancelJob } from '../../src/lib/server/toolroom/jobs';
 import {
 	findViewablePhoto,
 	listJobPhotos,
@@ -16,9 +16,9 @@ import {
 } from '../../src/lib/server/toolroom/photos';
 import {
 	asFile,
-	jobForm,
 	makeJpeg,
 	makeUploadDir,
+	openPlantJob,
 	setUpPlant,
 	type ToolroomPlant
 } from '../fixtures/toolroom';
@@ -31,13 +31,7 @@ let good: Buffer;
 beforeEach(async () => {
 	plant = await setUpPlant();
 	uploads = await makeUploadDir();
-	const opened = await openJob(plant.db, {
-		dieId: plant.dieId,
-		form: jobForm(),
-		actor: plant.toolmaker
-	});
-	if (!opened.ok) throw new Error(opened.message);
-	jobId = (await plant.db.selectFrom('toolroom_jobs').select('id').executeTakeFirstOrThrow()).id;
+	jobId = await openPlantJob(plant);
 	good ??= await makeJpeg(160, 120);
 });
 afterEach(async () => {
@@ -48,7 +42,7 @@ afterAll(async () => {
 });
 
 function upload(files: File[], actor = plant.toolmaker) {
-	return uploadPhotos(plant.db, { target: { jobId }, files, actor, uploadDir: uploads.dir });
+	return uploadPhotos(plant.db, { target: { jobId }, files, actor, photoStore: uploads.store });
 }
 
 async function photoRows() {
@@ -205,7 +199,7 @@ describe('uploading photos to a job', () => {
 				asFile(second, 'before 2.jpg')
 			],
 			actor: plant.toolmaker,
-			uploadDir: uploads.dir,
+			photoStore: uploads.store,
 			stage: 'before'
 		});
 		expect(result).toEqual({
@@ -247,7 +241,7 @@ describe('uploading photos to a job', () => {
 			m.processImage(good)
 		);
 		await expect(
-			storePhotoFilesWith(uploads.dir, [image, image], async (files) => {
+			storePhotoFilesWith(uploads.store, [image, image], async (files) => {
 				expect(await uploads.files()).toHaveLength(4);
 				expect(files).toHaveLength(2);
 				throw new Error('disk full');
@@ -281,7 +275,7 @@ describe('uploading photos to a job', () => {
 			form,
 			files: [asFile(good, 'ok.jpg'), asFile(new Uint8Array(0), 'empty.jpg')],
 			actor: plant.toolmaker,
-			uploadDir: uploads.dir
+			photoStore: uploads.store
 		});
 		expect(result).toMatchObject({ ok: false, status: 400 });
 		expect(result.ok ? [] : result.problems).not.toHaveLength(0);

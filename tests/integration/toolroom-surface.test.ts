@@ -66,7 +66,7 @@ async function inspect(
 		form,
 		files,
 		actor: plant.toolmaker,
-		uploadDir: uploads.dir,
+		photoStore: uploads.store,
 		at: values.at
 	});
 	if (!result.ok) throw new Error(result.message);
@@ -188,7 +188,7 @@ describe('zones from the die’s list, and series since the last repair', () => 
 			form,
 			files: [],
 			actor: plant.toolmaker,
-			uploadDir: uploads.dir
+			photoStore: uploads.store
 		});
 		expect(refused).toMatchObject({ ok: false, status: 400 });
 		expect(await plant.db.selectFrom('surface_inspections').select('id').execute()).toHaveLength(0);
@@ -282,7 +282,7 @@ describe('an inspection completes the plan’s surface-inspection task', () => {
 			form,
 			files: [],
 			actor: plant.toolmaker,
-			uploadDir: uploads.dir,
+			photoStore: uploads.store,
 			at: '2026-02-03T09:30:00.000Z'
 		});
 		if (!result.ok) throw new Error(result.message);
@@ -323,27 +323,16 @@ describe('an inspection completes the plan’s surface-inspection task', () => {
 	});
 
 	it('joins an open job of the die, and refuses a job of another die', async () => {
-		const { openJob } = await import('../../src/lib/server/toolroom/jobs');
-		const { jobForm } = await import('../fixtures/toolroom');
-		const opened = await openJob(plant.db, {
-			dieId: plant.otherDieId,
-			form: jobForm(),
-			actor: plant.lead
-		});
-		if (!opened.ok) throw new Error(opened.message);
-		const other = await plant.db
-			.selectFrom('toolroom_jobs')
-			.select('id')
-			.where('die_id', '=', plant.otherDieId)
-			.executeTakeFirstOrThrow();
+		const { openPlantJob } = await import('../fixtures/toolroom');
+		const otherJobId = await openPlantJob(plant, { dieId: plant.otherDieId, actor: plant.lead });
 		const form = inspectionSchema.parse({ half: 'cover', zone: 'Core', shotsAt: 100, grade: 1 });
 		const refused = await recordInspection(plant.db, {
 			dieId: plant.dieId,
 			form,
 			files: [],
 			actor: plant.toolmaker,
-			uploadDir: uploads.dir,
-			jobId: other.id
+			photoStore: uploads.store,
+			jobId: otherJobId
 		});
 		expect(refused).toMatchObject({ ok: false, status: 400 });
 		expect(await plant.db.selectFrom('surface_inspections').select('id').execute()).toHaveLength(0);

@@ -8,6 +8,7 @@ import path from 'node:path';
 import { isActionFailure, isRedirect } from '@sveltejs/kit';
 import { afterAll, beforeAll, describe, expect, test, vi } from 'vitest';
 import { seedDemo } from '../../scripts/lib/demo-scenario';
+import { folderPhotoStore } from '../../src/lib/server/photos/folder-store';
 import { migrateToLatest, openDatabase, type DB } from '../../src/lib/server/db/connect';
 
 // The app reads its settings from $env/dynamic/private; here they come from this process.
@@ -24,7 +25,7 @@ let planner: App.Locals['user'];
 beforeAll(async () => {
 	const seedDb = openDatabase(process.env.DATABASE_PATH!);
 	await migrateToLatest(seedDb);
-	await seedDemo(seedDb, new Date(), process.env.UPLOAD_DIR);
+	await seedDemo(seedDb, new Date(), folderPhotoStore(process.env.UPLOAD_DIR!));
 	await seedDb.destroy();
 	// The app's own handle (getDb) opens the same file on first use.
 	const { getDb } = await import('../../src/lib/server/db');

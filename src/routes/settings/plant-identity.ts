@@ -12,13 +12,13 @@ import {
 	savePlantIdentity,
 	savePlantLogo
 } from '$lib/server/settings/plant-identity';
+import { getPhotoStore } from '$lib/server/photos';
 import {
 	preparePhotos,
 	removePhotoFiles,
 	selectedFiles,
-	writePhotoFiles
+	storePhotoFilesWith
 } from '$lib/server/photos/store';
-import { getUploadDir } from '$lib/server/photos/upload-dir';
 
 export async function loadPlantIdentityForms() {
 	const db = getDb();
@@ -77,10 +77,10 @@ export async function savePlantLogoAction(event: RequestEvent) {
 	const user = requireRole(event, 'admin');
 	const data = await event.request.formData();
 	const db = getDb();
-	const uploadDir = getUploadDir();
+	const store = getPhotoStore();
 	if (data.get('remove') === '1') {
 		const old = await savePlantLogo(db, null, user.id);
-		if (old) await removePhotoFiles(uploadDir, [logoFiles(old)]);
+		if (old) await removePhotoFiles(store, [logoFiles(old)]);
 		return { logo: { ok: true, message: 'Logo removed.' } };
 	}
 	const prepared = await preparePhotos(selectedFiles(data.getAll('logo')), 1);
@@ -88,9 +88,11 @@ export async function savePlantLogoAction(event: RequestEvent) {
 		const detail = prepared.problems.map((p) => `${p.file}: ${p.message}`).join(' ');
 		return fail(400, { logo: { ok: false, message: `${prepared.message} ${detail}`.trim() } });
 	}
-	const [stored] = await writePhotoFiles(uploadDir, prepared.images);
-	const old = await savePlantLogo(db, stored.thumbFile, user.id);
-	if (old) await removePhotoFiles(uploadDir, [logoFiles(old)]);
+	// The new files go again when the row cannot be saved; the old ones only once it is.
+	const old = await storePhotoFilesWith(store, prepared.images, ([stored]) =>
+		savePlantLogo(db, stored.thumbFile, user.id)
+	);
+	if (old) await removePhotoFiles(store, [logoFiles(old)]);
 	return { logo: { ok: true, message: 'Logo saved.' } };
 }
 

@@ -1,9 +1,8 @@
-import fs from 'node:fs';
-import path from 'node:path';
 import { zipSync, type Zippable } from 'fflate';
 import type { DB } from '../db/connect';
 import { inReadSession } from '../db/session';
 import { quoted, tableShape } from './catalog';
+import type { PhotoStore } from '../photos/photo-store';
 import { ARCHIVE_TABLES } from './tables';
 
 /**
@@ -32,7 +31,7 @@ export interface ArchiveSummary {
  */
 export async function buildArchive(
 	db: DB,
-	uploadDir: string,
+	photoStore: PhotoStore,
 	at = new Date().toISOString()
 ): Promise<{ zip: Uint8Array; summary: ArchiveSummary }> {
 	const files: Zippable = {};
@@ -73,9 +72,9 @@ export async function buildArchive(
 		}
 	});
 	for (const rel of photoFiles) {
-		const full = path.resolve(uploadDir, rel);
-		if (!full.startsWith(path.resolve(uploadDir) + path.sep) || !fs.existsSync(full)) continue;
-		files[`photos/${rel.split(path.sep).join('/')}`] = [fs.readFileSync(full), { level: 0 }];
+		const bytes = await photoStore.get(rel);
+		if (!bytes) continue;
+		files[`photos/${rel}`] = [bytes, { level: 0 }];
 		summary.photos++;
 	}
 	readme.push(

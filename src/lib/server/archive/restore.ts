@@ -1,11 +1,11 @@
 import { createHash } from 'node:crypto';
-import fs from 'node:fs';
 import path from 'node:path';
 import { unzipSync } from 'fflate';
 import { parse } from 'csv-parse/sync';
 import type { DB } from '../db/connect';
 import { inWriteTransaction, type SqlSession } from '../db/session';
 import { quoted, tableShape, type TableShape } from './catalog';
+import type { PhotoStore } from '../photos/photo-store';
 import { ARCHIVE_TABLES } from './tables';
 
 export type RestoreResult =
@@ -46,7 +46,7 @@ function isForeignKeyViolation(error: unknown): boolean {
 
 /**
  * Restores a plant archive (buildArchive) into an empty, migrated database — SQLite or
- * PostgreSQL, whichever wrote it — and its photos into uploadDir. Every table in one transaction;
+ * PostgreSQL, whichever wrote it — and its photos into the photo store. Every table in one transaction;
  * photo files are checked against their sha256 before anything is written. All or nothing.
  *
  * Foreign keys are checked as rows go in, on both engines, so tables go in the archive's order
@@ -58,7 +58,7 @@ function isForeignKeyViolation(error: unknown): boolean {
 export async function restoreArchive(
 	db: DB,
 	zip: Uint8Array,
-	uploadDir: string
+	photoStore: PhotoStore
 ): Promise<RestoreResult> {
 	let files: Record<string, Uint8Array>;
 	try {
@@ -88,9 +88,9 @@ export async function restoreArchive(
 		return { ok: false, message: (e as Error).message };
 	}
 	for (const p of photos) {
-		const target = path.resolve(uploadDir, p.rel);
-		fs.mkdirSync(path.dirname(target), { recursive: true });
-		fs.writeFileSync(target, p.bytes);
+		// A file left by an earlier attempt under the same name is replaced (put never overwrites).
+		await photoStore.delete(p.rel);
+		await photoStore.put(p.rel, p.bytes);
 	}
 	return { ok: true, tables, photos: photos.length };
 }

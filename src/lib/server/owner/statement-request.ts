@@ -7,8 +7,7 @@ import { error, redirect, type RequestEvent } from '@sveltejs/kit';
 import { plantToday } from '../../plant-time';
 import { statementPeriodSchema } from '../../schemas/statement';
 import type { DB } from '../db/connect';
-import { readPhotoFile } from '../photos/store';
-import { getUploadDir } from '../photos/upload-dir';
+import { getPhotoStore } from '../photos';
 import type { PlantIdentity } from '../settings/plant-identity';
 import { nowIso } from '../time';
 import {
@@ -55,5 +54,5 @@ function currentQuarter(now: string) {
 /** The plant's logo bytes for documents, or null (no logo, or the file is gone). */
 export async function readPlantLogo(identity: PlantIdentity): Promise<Uint8Array | null> {
 	if (!identity.logoFile) return null;
-	return readPhotoFile(getUploadDir(), identity.logoFile);
+	return getPhotoStore().get(identity.logoFile);
 }

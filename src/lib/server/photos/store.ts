@@ -1,15 +1,13 @@
 /**
- * Photo files on disk: checking a batch of uploads before anything is kept, writing the
- * processed JPEGs under random names below UPLOAD_DIR, and reading them back for the
- * authorised photo route. Database rows are the caller's (toolroom/photos.ts): it writes the
+ * Photo files: checking a batch of uploads before anything is kept, and writing the processed
+ * JPEGs under random names into the photo store (photo-store.ts: a folder or an S3 bucket). Database rows are the caller's (toolroom/photos.ts): it writes the
  * files first, then the rows in one transaction, and removes the files if that transaction fails,
  * so an upload is stored whole or not at all.
  */
 import { randomBytes } from 'node:crypto';
-import { mkdir, readFile, rm, writeFile } from 'node:fs/promises';
-import path from 'node:path';
 import { MAX_PHOTO_BYTES, PhotoError } from './process-image';
 import type { ProcessedImage } from './process-image';
+import type { PhotoStore } from './photo-store';
 import { processImageInPool } from './worker-pool';
 
 /** A file as a multipart form hands it over (File / Blob), or a test builds it. */
@@ -29,7 +27,7 @@ export type PreparedPhotos =
 	{ ok: true; images: ProcessedImage[] } | { ok: false; message: string; problems: PhotoProblem[] };
 
 export interface StoredPhotoFiles {
-	/** Relative to the upload directory. */
+	/** Keys in the photo store (relative paths below UPLOAD_DIR for the folder store). */
 	fullFile: string;
 	thumbFile: string;
 	image: ProcessedImage;
@@ -126,38 +124,28 @@ export async function preparePhotos(
 	return { ok: true, images: checked.images.map((i) => i.image) };
 }
 
-/** Absolute path of a stored file, refusing anything that would leave the upload directory. */
-export function resolvePhotoPath(uploadDir: string, relative: string): string {
-	const root = path.resolve(uploadDir);
-	const full = path.resolve(root, relative);
-	if (!full.startsWith(root + path.sep)) throw new Error('Photo path outside the upload folder.');
-	return full;
-}
-
 /** Writes full-size and thumbnail JPEGs under fresh random names; all or none. */
 export async function writePhotoFiles(
-	uploadDir: string,
+	store: PhotoStore,
 	images: ProcessedImage[]
 ): Promise<StoredPhotoFiles[]> {
 	const written: StoredPhotoFiles[] = [];
 	try {
 		for (const image of images) {
 			const key = randomBytes(16).toString('hex');
-			// Two-character folders keep any one directory small.
-			const dir = path.join('photos', key.slice(0, 2));
+			// Two-character folders keep any one directory small; keys use '/' on every system.
+			const dir = `photos/${key.slice(0, 2)}`;
 			const stored = {
-				fullFile: path.join(dir, `${key}.jpg`),
-				thumbFile: path.join(dir, `${key}.thumb.jpg`),
+				fullFile: `${dir}/${key}.jpg`,
+				thumbFile: `${dir}/${key}.thumb.jpg`,
 				image
 			};
-			await mkdir(resolvePhotoPath(uploadDir, dir), { recursive: true });
 			written.push(stored);
-			// 'wx': never overwrite, even on the (absurd) chance of a repeated random key.
-			await writeFile(resolvePhotoPath(uploadDir, stored.fullFile), image.full, { flag: 'wx' });
-			await writeFile(resolvePhotoPath(uploadDir, stored.thumbFile), image.thumb, { flag: 'wx' });
+			await store.put(stored.fullFile, image.full);
+			await store.put(stored.thumbFile, image.thumb);
 		}
 	} catch (error) {
-		await removePhotoFiles(uploadDir, written);
+		await removePhotoFiles(store, written);
 		throw error;
 	}
 	return written;
@@ -165,15 +153,10 @@ export async function writePhotoFiles(
 
 /** Removes stored files (missing ones are fine): the undo of writePhotoFiles. */
 export async function removePhotoFiles(
-	uploadDir: string,
+	store: PhotoStore,
 	files: { fullFile: string; thumbFile: string }[]
 ): Promise<void> {
-	await Promise.all(
-		files.flatMap((f) => [
-			rm(resolvePhotoPath(uploadDir, f.fullFile), { force: true }),
-			rm(resolvePhotoPath(uploadDir, f.thumbFile), { force: true })
-		])
-	);
+	await Promise.all(files.flatMap((f) => [store.delete(f.fullFile), store.delete(f.thumbFile)]));
 }
 
 /**
@@ -181,25 +164,17 @@ export async function removePhotoFiles(
  * throws, the files go again, so a failed upload leaves neither rows nor files.
  */
 export async function storePhotoFilesWith<T>(
-	uploadDir: string,
+	store: PhotoStore,
 	images: ProcessedImage[],
 	save: (files: StoredPhotoFiles[]) => Promise<T>
 ): Promise<T> {
-	const files = await writePhotoFiles(uploadDir, images);
+	const files = await writePhotoFiles(store, images);
 	try {
 		return await save(files);
 	} catch (error) {
-		await removePhotoFiles(uploadDir, files);
-		throw error;
-	}
-}
-
-/** A stored photo file, or null when it is missing on disk. */
-export async function readPhotoFile(uploadDir: string, relative: string): Promise<Buffer | null> {
-	try {
-		return await readFile(resolvePhotoPath(uploadDir, relative));
-	} catch (error) {
-		if ((error as NodeJS.ErrnoException).code === 'ENOENT') return null;
+		await removePhotoFiles(store, files).catch((cleanup) =>
+			console.error('Photo files of a failed save could not be removed', cleanup)
+		);
 		throw error;
 	}
 }

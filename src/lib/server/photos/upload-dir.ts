@@ -1,11 +1,5 @@
 import fs from 'node:fs';
 import path from 'node:path';
-import { env } from '$env/dynamic/private';
-
-/** Where photos are stored: UPLOAD_DIR, or ./data/uploads beside the default database. */
-export function getUploadDir(): string {
-	return path.resolve(env.UPLOAD_DIR || './data/uploads');
-}
 
 /**
  * Why photos cannot be stored in `dir` (a sentence for the log), or null when a file can be
@@ -25,6 +19,6 @@ export function uploadDirProblem(dir: string): string | null {
 	}
 }
 
-/** The sentence a refused upload gets while the photo folder cannot be written. */
+/** The sentence a refused upload gets while the photo store cannot be written. */
 export const UPLOADS_UNAVAILABLE =
-	'Photos cannot be stored right now: the server’s photo folder is not writable. Nothing was saved; tell the plant admin.';
+	'Photos cannot be stored right now: the server’s photo store cannot be written. Nothing was saved; tell the plant admin.';

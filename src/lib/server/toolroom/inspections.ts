@@ -20,6 +20,7 @@ import {
 	type PhotoProblem,
 	type UploadedFile
 } from '../photos/store';
+import type { PhotoStore } from '../photos/photo-store';
 import { nowIso } from '../time';
 import { canLeadToolroom, canWorkToolroom } from './access';
 import { findDieZone, listZoneRepairs } from './zones';
@@ -59,7 +60,7 @@ export async function recordInspection(
 		form: InspectionForm;
 		files: UploadedFile[];
 		actor: Actor;
-		uploadDir: string;
+		photoStore: PhotoStore;
 		jobId?: number | null;
 		at?: string;
 	}
@@ -123,7 +124,7 @@ export async function recordInspection(
 		}
 		images = prepared.images;
 	}
-	const id = await storePhotoFilesWith(input.uploadDir, images, (files) =>
+	const id = await storePhotoFilesWith(input.photoStore, images, (files) =>
 		db.transaction().execute(async (trx) => {
 			const row = await trx
 				.insertInto('surface_inspections')

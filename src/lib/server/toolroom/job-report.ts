@@ -9,7 +9,7 @@ import { formatDate, formatShots } from '../../format';
 import { HALF_LABELS, JOB_HALF_LABELS, JOB_STATUS_LABELS, jobKindLabel } from '../../labels';
 import type { DB } from '../db/connect';
 import { toWinAnsi } from '../owner/statement-pdf';
-import { readPhotoFile } from '../photos/store';
+import type { PhotoStore } from '../photos/photo-store';
 import { listJobEntries } from './job-entries';
 import { listJobRecords } from './job-page';
 import type { JobDetail } from './jobs';
@@ -36,7 +36,11 @@ export interface JobReport {
  * Gathers what the report shows. Photos tagged before / after come first; untagged job photos
  * fill in (the earliest as "before", the latest as "after") only when none were tagged.
  */
-export async function getJobReport(db: DB, job: JobDetail, uploadDir: string): Promise<JobReport> {
+export async function getJobReport(
+	db: DB,
+	job: JobDetail,
+	photoStore: PhotoStore
+): Promise<JobReport> {
 	const [records, allEntries, rows] = await Promise.all([
 		listJobRecords(db, job.id),
 		listJobEntries(db, job.id),
@@ -59,7 +63,7 @@ export async function getJobReport(db: DB, job: JobDetail, uploadDir: string): P
 		['after', after]
 	] as const) {
 		for (const row of list) {
-			const jpeg = await readPhotoFile(uploadDir, row.thumbFile);
+			const jpeg = await photoStore.get(row.thumbFile);
 			if (jpeg) photos.push({ stage, caption: row.caption, jpeg });
 		}
 	}

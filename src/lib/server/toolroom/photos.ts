@@ -15,6 +15,7 @@ import {
 	type StoredPhotoFiles,
 	type UploadedFile
 } from '../photos/store';
+import type { PhotoStore } from '../photos/photo-store';
 import { nowIso } from '../time';
 import { canWorkToolroom } from './access';
 import type { Actor } from './jobs';
@@ -107,7 +108,7 @@ export async function uploadPhotos(
 		target: PhotoTarget;
 		files: UploadedFile[];
 		actor: Actor;
-		uploadDir: string;
+		photoStore: PhotoStore;
 		caption?: string | null;
 		stage?: PhotoStage | null;
 		at?: string;
@@ -141,7 +142,7 @@ export async function uploadPhotos(
 	const stage = 'jobId' in input.target ? (input.stage ?? null) : null;
 	const caption = input.caption?.trim() ? input.caption.trim().slice(0, 200) : null;
 	const images = checked.images.map((i) => i.image);
-	await storePhotoFilesWith(input.uploadDir, images, (files) =>
+	await storePhotoFilesWith(input.photoStore, images, (files) =>
 		db.transaction().execute(async (trx) => {
 			await insertPhotoRows(
 				trx,

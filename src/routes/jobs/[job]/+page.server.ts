@@ -17,7 +17,7 @@ import {
 import { requireRole } from '$lib/server/auth/guard';
 import { getDb } from '$lib/server/db';
 import { selectedFiles } from '$lib/server/photos/store';
-import { getUploadDir } from '$lib/server/photos/upload-dir';
+import { getPhotoStore } from '$lib/server/photos';
 import { TOOLROOM_LEADS, TOOLROOM_READERS, TOOLROOM_WORKERS } from '$lib/server/toolroom/access';
 import { voidJob } from '$lib/server/toolroom/job-void';
 import { recordPartUsed, recordWorkEntry, voidJobEntry } from '$lib/server/toolroom/job-entries';
@@ -236,7 +236,7 @@ export const actions: Actions = {
 			caption: String(data.get('caption') ?? ''),
 			stage: stage.data,
 			actor: { userId: user.id, role: user.role },
-			uploadDir: getUploadDir()
+			photoStore: getPhotoStore()
 		});
 		if (!result.ok) {
 			return fail(result.status, {

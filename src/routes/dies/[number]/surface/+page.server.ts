@@ -13,7 +13,7 @@ import { getDb } from '$lib/server/db';
 import { loadPlantDie } from '$lib/server/dies/load-die';
 import { MAX_PHOTO_BYTES, MAX_PHOTO_PIXELS } from '$lib/server/photos/process-image';
 import { selectedFiles } from '$lib/server/photos/store';
-import { getUploadDir } from '$lib/server/photos/upload-dir';
+import { getPhotoStore } from '$lib/server/photos';
 import { addDieZone, listDieZones } from '$lib/server/toolroom/zones';
 import {
 	canLeadToolroom,
@@ -112,7 +112,7 @@ export const actions: Actions = {
 			form: form.data,
 			files: selectedFiles(data.getAll('photos')),
 			actor: { userId: user.id, role: user.role },
-			uploadDir: getUploadDir()
+			photoStore: getPhotoStore()
 		});
 		if (!result.ok) {
 			if (result.field) return setError(form, result.field, result.message);

@@ -1,7 +1,7 @@
 import { error } from '@sveltejs/kit';
 import { requireRole } from '$lib/server/auth/guard';
 import { getDb } from '$lib/server/db';
-import { getUploadDir } from '$lib/server/photos/upload-dir';
+import { getPhotoStore } from '$lib/server/photos';
 import { plantIdentity } from '$lib/server/settings/plant-identity';
 import { TOOLROOM_READERS } from '$lib/server/toolroom/access';
 import { getJobReport, renderJobReportPdf } from '$lib/server/toolroom/job-report';
@@ -13,7 +13,7 @@ export const GET: RequestHandler = async (event) => {
 	requireRole(event, ...TOOLROOM_READERS);
 	const job = await getJob(getDb(), event.params.job);
 	if (!job) error(404, { message: `There is no toolroom job ${event.params.job}.` });
-	const report = await getJobReport(getDb(), job, getUploadDir());
+	const report = await getJobReport(getDb(), job, getPhotoStore());
 	const pdf = await renderJobReportPdf(report, (await plantIdentity(getDb())).name);
 	return new Response(new Uint8Array(pdf), {
 		headers: {

@@ -1,8 +1,7 @@
 import { error } from '@sveltejs/kit';
 import { requireUser } from '$lib/server/auth/guard';
 import { getDb } from '$lib/server/db';
-import { readPhotoFile } from '$lib/server/photos/store';
-import { getUploadDir } from '$lib/server/photos/upload-dir';
+import { getPhotoStore } from '$lib/server/photos';
 import { findViewablePhoto } from '$lib/server/toolroom/photos';
 import type { RequestHandler } from './$types';
 
@@ -27,10 +26,8 @@ export const GET: RequestHandler = async (event) => {
 	if (event.request.headers.get('if-none-match') === etag) {
 		return new Response(null, { status: 304, headers });
 	}
-	const bytes = await readPhotoFile(
-		getUploadDir(),
-		variant === 'full' ? photo.fullFile : photo.thumbFile
-	);
+	// Read from the photo store (folder or bucket) and sent from here, after the check above.
+	const bytes = await getPhotoStore().get(variant === 'full' ? photo.fullFile : photo.thumbFile);
 	if (!bytes) error(404, { message: 'The photo file is missing.' });
 	return new Response(new Uint8Array(bytes), {
 		headers: { ...headers, 'content-length': String(bytes.length) }
