@@ -1,8 +1,8 @@
 // The demo plant: an invented scenario. Every company, person, part and number here is made up
 // for the demo; none describes a real business.
 import { sql } from 'kysely';
-import { rawHandle, type DB } from '../../src/lib/server/db/connect';
-import { writeOpeningBalance } from '../../src/lib/server/shots/opening-balance';
+import type { DB } from '../../src/lib/server/db/connect';
+import { recordOpeningBalance } from '../../src/lib/server/shots/opening-balance';
 import type { AlloyFamily, DieProcess, DieStatus } from '../../src/lib/domain';
 import { recordShots, type ShotInput } from '../../src/lib/server/shots/ledger';
 import { setPlantZone } from '../../src/lib/plant-time';
@@ -381,15 +381,13 @@ export async function seedDemo(
 
 		// The shots made before Castellan come in as an opening balance (not a day's production),
 		// so shots-by-month and statements show them as the balance brought forward.
-		await db.connection().execute(async () =>
-			writeOpeningBalance(rawHandle(db), {
-				dieId: die.id,
-				shots: opening,
-				at: createdAt,
-				userId: null,
-				note: 'Opening balance carried over from the previous register'
-			})
-		);
+		await recordOpeningBalance(db, {
+			dieId: die.id,
+			shots: opening,
+			at: createdAt,
+			userId: null,
+			note: 'Opening balance carried over from the previous register'
+		});
 		// Daily counter readings on working days, at the end of the second shift.
 		const rows: ShotInput[] = [];
 		const workDays: Date[] = [];

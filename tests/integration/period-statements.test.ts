@@ -6,7 +6,7 @@ import { setPlantZone } from '../../src/lib/plant-time';
 import { dieFormSchema } from '../../src/lib/schemas/die';
 import { statementPeriodSchema } from '../../src/lib/schemas/statement';
 import { formatCsv } from '../../src/lib/server/csv';
-import { openTestDatabase, rawHandle, type DB } from '../../src/lib/server/db/connect';
+import { openTestDatabase, type DB } from '../../src/lib/server/db/connect';
 import { createDie } from '../../src/lib/server/dies/die-write';
 import { markTaskDone } from '../../src/lib/server/dies/service-plan';
 import { findOwnerDie, getOwnerDieStory } from '../../src/lib/server/owner/die-page';
@@ -20,7 +20,7 @@ import {
 import { statementCsvHeader, statementCsvRows } from '../../src/lib/server/owner/statement-csv';
 import { renderPeriodStatementPdf } from '../../src/lib/server/owner/statement-pdf';
 import { lastServiceText } from '../../src/lib/server/owner/service-history';
-import { writeOpeningBalance } from '../../src/lib/server/shots/opening-balance';
+import { recordOpeningBalance } from '../../src/lib/server/shots/opening-balance';
 import { recordShots, voidShotEntry } from '../../src/lib/server/shots/ledger';
 import { savePlantIdentity } from '../../src/lib/server/settings/plant-identity';
 
@@ -122,15 +122,12 @@ beforeEach(async () => {
 	await die('D-0101', acme);
 	await die('D-0102', acme);
 	await die('D-0201', bolt);
-	await db.connection().execute(async (conn) => {
-		writeOpeningBalance(rawHandle(db), {
-			dieId: ids.get('D-0102')!,
-			shots: 50_000,
-			at: '2026-04-10T08:00:00.000Z',
-			userId: ADMIN,
-			note: 'From the old register'
-		});
-		return conn;
+	await recordOpeningBalance(db, {
+		dieId: ids.get('D-0102')!,
+		shots: 50_000,
+		at: '2026-04-10T08:00:00.000Z',
+		userId: ADMIN,
+		note: 'From the old register'
 	});
 	await count('D-0101', [
 		['2026-01-15T10:00:00.000Z', 1000],

@@ -1,6 +1,7 @@
 import type SQLite from 'better-sqlite3';
 import { rawHandle, type DB } from '../db/connect';
 import { writeOpeningBalance } from '../shots/opening-balance';
+import { sqliteSession } from '../db/session';
 import { analyzeImport, newAlloyLife, type ImportPlan } from './analyze';
 import type { ImportOutcome, ImportPayload, ImportPreview } from './types';
 
@@ -86,7 +87,7 @@ export async function commitImport(
 					preview
 				};
 			}
-			const outcome = await writePlan(raw, plan, payload, now, options);
+			const outcome = await writePlan(db, raw, plan, payload, now, options);
 			outcome.unchanged = preview.counts.unchanged;
 			// A dry run has done every write the real run does; it takes them back here.
 			raw.exec(options.dryRun ? 'rollback' : 'commit');
@@ -101,6 +102,7 @@ export async function commitImport(
 }
 
 async function writePlan(
+	db: DB,
 	raw: SQLite.Database,
 	plan: ImportPlan,
 	payload: ImportPayload,
@@ -187,7 +189,14 @@ async function writePlan(
 		for (const t of templates.get(die.family)!) {
 			st.task.run(id, t.kind, t.interval_shots, t.interval_days, now, 0);
 		}
-		writeOpeningBalance(raw, { dieId: id, shots: die.opening, at: now, userId, note });
+		// The statements run at once on SQLite, inside the transaction begun above.
+		await writeOpeningBalance(sqliteSession(raw, db), {
+			dieId: id,
+			shots: die.opening,
+			at: now,
+			userId,
+			note
+		});
 		audit('die.import', id, {
 			number: f.number,
 			openingShots: die.opening,

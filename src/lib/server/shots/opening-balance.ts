@@ -1,4 +1,5 @@
-import type SQLite from 'better-sqlite3';
+import type { DB } from '../db/connect';
+import { inWriteTransaction, type SqlSession } from '../db/session';
 
 export interface OpeningBalance {
 	dieId: number;
@@ -8,6 +9,18 @@ export interface OpeningBalance {
 	userId: string | null;
 	note: string;
 }
+
+const SQL = {
+	entries: 'select count(*) as n from shot_entries where die_id = ?',
+	insert: `insert into shot_entries (die_id, machine_id, counted_at, shots, counter_start, counter_end,
+	   source, idem_key, entered_by, token_id, note, created_at)
+	 values (?, null, ?, ?, null, null, 'opening', null, ?, null, ?, ?)`,
+	dieTotal: 'update dies set total_shots = total_shots + ?, updated_at = ? where id = ?',
+	// A `case`, not two-argument max(): PostgreSQL has no scalar max.
+	halves: `update die_halves set shots = shots + case when ? > die_shots_at_install
+	     then ? - die_shots_at_install else 0 end
+	  where die_id = ? and active = 1`
+};
 
 /**
  * Writes a die's opening balance — the shots it made before Castellan — as a ledger entry of
@@ -20,29 +33,21 @@ export interface OpeningBalance {
  * "Last counted at" stays empty: an opening balance is no press reading, so the first real count
  * after it is not rate-checked against the import time.
  */
-export function writeOpeningBalance(raw: SQLite.Database, entry: OpeningBalance): void {
+export async function writeOpeningBalance(s: SqlSession, entry: OpeningBalance): Promise<void> {
 	if (!Number.isSafeInteger(entry.shots) || entry.shots < 0) {
 		throw new Error(`An opening balance must be a whole number of shots, 0 or more.`);
 	}
 	if (entry.shots === 0) return;
-	const has = raw
-		.prepare('select count(*) as n from shot_entries where die_id = ?')
-		.get(entry.dieId) as { n: number };
-	if (has.n > 0) throw new Error('A die that already has ledger entries takes no opening balance.');
-	raw
-		.prepare(
-			`insert into shot_entries (die_id, machine_id, counted_at, shots, counter_start, counter_end,
-			   source, idem_key, entered_by, token_id, note, created_at)
-			 values (?, null, ?, ?, null, null, 'opening', null, ?, null, ?, ?)`
-		)
-		.run(entry.dieId, entry.at, entry.shots, entry.userId, entry.note, entry.at);
-	raw
-		.prepare('update dies set total_shots = total_shots + ?, updated_at = ? where id = ?')
-		.run(entry.shots, entry.at, entry.dieId);
-	raw
-		.prepare(
-			`update die_halves set shots = shots + max(0, ? - die_shots_at_install)
-			  where die_id = ? and active = 1`
-		)
-		.run(entry.shots, entry.dieId);
+	const has = await s.get<{ n: number }>(SQL.entries, [entry.dieId]);
+	if (Number(has?.n) > 0) {
+		throw new Error('A die that already has ledger entries takes no opening balance.');
+	}
+	await s.run(SQL.insert, [entry.dieId, entry.at, entry.shots, entry.userId, entry.note, entry.at]);
+	await s.run(SQL.dieTotal, [entry.shots, entry.at, entry.dieId]);
+	await s.run(SQL.halves, [entry.shots, entry.shots, entry.dieId]);
+}
+
+/** An opening balance on its own, in a ledger transaction of its own (the demo, tests). */
+export function recordOpeningBalance(db: DB, entry: OpeningBalance): Promise<void> {
+	return inWriteTransaction(db, { lock: 'ledger' }, (s) => writeOpeningBalance(s, entry));
 }
