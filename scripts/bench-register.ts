@@ -16,6 +16,7 @@ import { fillLedgerPostgres, fillLedgerSqlite, LEDGER_NOW } from './lib/bench-le
 import {
 	benchDatabaseUrl,
 	openBenchSchema,
+	postgresFailed,
 	settleAfterBulkLoad,
 	skipSqlite
 } from './lib/bench-postgres';
@@ -330,8 +331,13 @@ export async function run(): Promise<BenchFigure[]> {
 	const url = benchDatabaseUrl();
 	const big = skipSqlite() ? null : await buildAndTimeSqlite(BIG_ROWS);
 	const small = skipSqlite() ? null : await buildAndTimeSqlite(SMALL_ROWS);
-	const pg = url ? await buildAndTimePostgres(url, BIG_ROWS) : null;
 	const figures: BenchFigure[] = [];
+	const pg = url
+		? await buildAndTimePostgres(url, BIG_ROWS).catch((err: unknown) => {
+				figures.push(postgresFailed('page loads', err));
+				return null;
+			})
+		: null;
 	const bigLabel = `${(BIG_ROWS / 1e6).toLocaleString('en-GB')}M`;
 	for (const [key, name] of Object.entries(LOAD_NAMES) as [keyof typeof LOAD_NAMES, string][]) {
 		if (big && small) {

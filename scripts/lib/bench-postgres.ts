@@ -2,6 +2,7 @@
 // builds its plant in a schema of its own there (migrated with the app's migrations), times the
 // same server functions as on SQLite, and drops the schema afterwards.
 import { sql } from 'kysely';
+import type { BenchFigure } from './bench-report';
 import {
 	isPostgresUrl,
 	migrateToLatest,
@@ -72,4 +73,15 @@ export async function settleAfterBulkLoad(db: DB) {
 		 where table_schema = current_schema() and table_type = 'BASE TABLE'`.execute(db);
 	const list = tables.rows.map((t) => `"${t.name}"`).join(', ');
 	if (list) await sql.raw(`vacuum analyze ${list}`).execute(db);
+}
+
+/**
+ * The PostgreSQL side of a bench could not run (a writer or query not yet portable, the database
+ * unreachable): says why, and gives the failed figure that keeps the SQLite figures printed.
+ */
+export function postgresFailed(what: string, err: unknown): BenchFigure {
+	console.log(
+		`  ${what} on PostgreSQL failed: ${err instanceof Error ? err.message : String(err)}`
+	);
+	return { figure: `${what}, PostgreSQL`, value: NaN, unit: '', target: 'runs', pass: false };
 }
