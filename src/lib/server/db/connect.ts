@@ -21,6 +21,7 @@ export type Engine = 'sqlite' | 'postgres';
 const rawHandles = new WeakMap<object, SQLite.Database>();
 const engines = new WeakMap<object, Engine>();
 const pools = new WeakMap<object, pg.Pool>();
+const schemas = new WeakMap<object, string>();
 
 /**
  * The better-sqlite3 handle under a Kysely instance opened on SQLite. Code that must run on both
@@ -121,6 +122,7 @@ function openPostgres(url: string, options: OpenOptions): DB {
 	const db = new Kysely<Database>({ dialect: new PostgresDialect({ pool }) });
 	engines.set(db, 'postgres');
 	pools.set(db, pool);
+	schemas.set(db, options.schema ?? 'public');
 	return db;
 }
 
@@ -134,7 +136,9 @@ const provider: MigrationProvider = { getMigrations: async () => migrations };
 /** Runs every pending migration; throws with the failing migration's name. */
 // eslint-disable-next-line @typescript-eslint/no-explicit-any
 export async function migrateToLatest(db: Kysely<any>): Promise<string[]> {
-	const migrator = new Migrator({ db, provider });
+	// On PostgreSQL name the schema: Kysely looks for its bookkeeping tables by name across every
+	// schema it can see, and would take another schema's for this one's.
+	const migrator = new Migrator({ db, provider, migrationTableSchema: schemas.get(db) });
 	const { error, results } = await migrator.migrateToLatest();
 	if (error) {
 		const failed = results?.find((r) => r.status === 'Error')?.migrationName ?? 'unknown';
