@@ -8,6 +8,7 @@
 // With BENCH_DATABASE_URL set, the same batches also go through the same API handler path into a
 // fresh schema of that PostgreSQL database, and the same rows as multi-row INSERTs (one per batch,
 // one transaction) straight through `pg` into a second schema; both schemas are dropped after.
+// BENCH_PG_ROUNDS rounds (default 1) on PostgreSQL; BENCH_SKIP_SQLITE=1 leaves SQLite out.
 //   npx tsx scripts/bench-ingest.ts              (also part of `npm run bench`)
 //   BENCH_DATABASE_URL=postgres://… BENCH_SKIP_SQLITE=1 npx tsx scripts/bench-ingest.ts
 import { runWhenCalledDirectly, type BenchFigure } from './lib/bench-report';

@@ -5,9 +5,10 @@
 // cumulativeShotSeries), the shot ledger list (keyset pages, filters) and the press-run look-up,
 // each for many random dies and pages; prints p50/p95. The same loads at 1 000 000 entries show
 // that no load grows with the ledger.
-// With BENCH_DATABASE_URL set, the same plant and 5 000 000 entries are also built in a schema of
-// their own in that PostgreSQL database (dropped afterwards) and the same loads timed there,
-// printed beside the SQLite figures with the PostgreSQL / SQLite ratio of each p95.
+// With BENCH_DATABASE_URL set, the same plant and big ledger are also built in a schema of their
+// own in that PostgreSQL database (dropped afterwards) and the same loads timed there, printed
+// beside the SQLite figures with the PostgreSQL / SQLite ratio of each p95 (about five minutes
+// more on two shared cores, four of them building the ledger).
 //   npx tsx scripts/bench-register.ts            (also part of `npm run bench`)
 //   BENCH_ROWS=2000000 npx tsx scripts/bench-register.ts   (a smaller big database)
 //   BENCH_DATABASE_URL=postgres://… BENCH_SKIP_SQLITE=1 npx tsx scripts/bench-register.ts
