@@ -145,6 +145,10 @@ describe('replacing a half', () => {
 		const old = halves.find((h) => h.serial === 'A-0001-E1')!;
 		const fresh = halves.find((h) => h.serial === 'A-0001-E2')!;
 		expect(old.shots + fresh.shots).toBe(1000);
-		expect(fresh.shots).toBe(1000 - fresh.die_shots_at_install);
+		// The 800 from before and every post (20 × 10) are dated before the replacement (dated now),
+		// so all 1000 stay on the old ejector whichever commits first — on PostgreSQL's pool the
+		// replacement may land between posts, so the die count at install is not always 1000.
+		expect(old.shots).toBe(1000);
+		expect(fresh.shots).toBe(0);
 	});
 });

@@ -64,7 +64,11 @@ function sqliteStatement(raw: SQLite.Database, text: string): SQLite.Statement {
 	return st;
 }
 
-function sqliteSession(raw: SQLite.Database, kysely: DB): SqlSession {
+/**
+ * A session over a better-sqlite3 handle already inside a transaction the caller began (code not
+ * yet on `inWriteTransaction`, such as the SQLite-only import commit on its own connection).
+ */
+export function sqliteSession(raw: SQLite.Database, kysely: DB): SqlSession {
 	return {
 		engine: 'sqlite',
 		kysely,
