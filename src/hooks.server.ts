@@ -3,9 +3,9 @@ import { sequence } from '@sveltejs/kit/hooks';
 import { building } from '$app/environment';
 import { CONTROL_CHARACTERS, CONTROL_CHARACTERS_MESSAGE } from '$lib/server/api/respond';
 import { getLucia } from '$lib/server/auth';
-import { getDb } from '$lib/server/db';
+import { closeDb, getDb } from '$lib/server/db';
 import { migrateToLatest } from '$lib/server/db/connect';
-import { startNoticeCron } from '$lib/server/notices/cron';
+import { startNoticeCron, stopNoticeCron } from '$lib/server/notices/cron';
 import { getPlantTimeZone } from '$lib/server/settings/plant-time';
 import {
 	bodyLimitFor,
@@ -16,7 +16,7 @@ import {
 import { getPhotoStore } from '$lib/server/photos';
 import { UPLOADS_UNAVAILABLE } from '$lib/server/photos/upload-dir';
 import { readTextCapped } from '$lib/server/http/read-capped';
-import { startPressIdleCron } from '$lib/server/schedule/press-idle-cron';
+import { startPressIdleCron, stopPressIdleCron } from '$lib/server/schedule/press-idle-cron';
 
 export const init: ServerInit = async () => {
 	if (building) return;
@@ -31,6 +31,13 @@ export const init: ServerInit = async () => {
 	if (!building) startNoticeCron();
 	// Running dies whose press has gone quiet go back to ready (PRESS_IDLE_CHECK=off stops it).
 	startPressIdleCron();
+	// adapter-node stops taking requests on SIGTERM/SIGINT, lets those in flight finish, then
+	// emits this: stop the timers and close the database so the process ends by itself (a rolling
+	// restart behind a load balancer waits for exactly that).
+	process.once('sveltekit:shutdown', async () => {
+		await Promise.allSettled([stopNoticeCron(), stopPressIdleCron()]);
+		await closeDb();
+	});
 };
 
 const authenticate: Handle = async ({ event, resolve }) => {

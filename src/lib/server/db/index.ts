@@ -13,3 +13,10 @@ export function getDb(): DB {
 	instance ??= openDatabase(databaseTarget(env));
 	return instance;
 }
+
+/** Closes the database (the server shutting down): the pool's connections or the SQLite file. */
+export async function closeDb(): Promise<void> {
+	const open = instance;
+	instance = undefined;
+	await open?.destroy();
+}

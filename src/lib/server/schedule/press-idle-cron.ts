@@ -1,11 +1,11 @@
-import cron from 'node-cron';
+import cron, { type ScheduledTask } from 'node-cron';
 import { building } from '$app/environment';
 import { env } from '$env/dynamic/private';
 import { getDb } from '../db';
 import { idleMinutesFromEnv, releaseIdleDies } from './press-feed';
 
 const STATE = Symbol.for('castellan.pressIdleCron');
-type WithState = typeof globalThis & { [STATE]?: boolean };
+type WithState = typeof globalThis & { [STATE]?: ScheduledTask | true };
 
 /**
  * Every minute, running dies whose press has gone quiet for PRESS_IDLE_MINUTES (default 120) go
@@ -17,7 +17,7 @@ export function startPressIdleCron(): void {
 	if (building || holder[STATE] || env.PRESS_IDLE_CHECK === 'off') return;
 	holder[STATE] = true;
 	const minutes = idleMinutesFromEnv(env.PRESS_IDLE_MINUTES);
-	cron.schedule(
+	holder[STATE] = cron.schedule(
 		'* * * * *',
 		async () => {
 			try {
@@ -33,4 +33,12 @@ export function startPressIdleCron(): void {
 		},
 		{ name: 'castellan-press-idle', noOverlap: true }
 	);
+}
+
+/** Stops the idle check (the server shutting down). */
+export async function stopPressIdleCron(): Promise<void> {
+	const holder = globalThis as WithState;
+	const task = holder[STATE];
+	holder[STATE] = undefined;
+	if (task && task !== true) await task.destroy();
 }
