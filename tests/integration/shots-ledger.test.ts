@@ -141,6 +141,35 @@ describe('ledger totals equal the ledger', () => {
 		expect((await ledgerState(p.db, p.dies.alu)).entries).toBe(1);
 	});
 
+	test('entries come back exactly as sent, in order, whatever characters their texts hold', async () => {
+		// PostgreSQL writes a batch as arrays of column values: quotes, backslashes, braces, commas
+		// and the word NULL must survive as text, and a missing note as a real null.
+		const notes = ['say "hi", {x}', 'back\\slash', 'NULL', null, 'plain'];
+		const rows: ShotInput[] = notes.map((note, i) => ({
+			die: 'Z-0001',
+			shots: 10 + i,
+			countedAt: hoursFromNow(-10 + i),
+			key: `text-${i}`,
+			note
+		}));
+		const r = await recordShots(p.db, rows, plant, { source: 'api', now: NOW });
+		expect(r).toMatchObject({ ok: true, accepted: 5 });
+		const stored = await p.db
+			.selectFrom('shot_entries')
+			.select(['id', 'note', 'shots', 'idem_key', 'counted_at'])
+			.orderBy('id')
+			.execute();
+		expect(stored).toEqual(
+			notes.map((note, i) => ({
+				id: r.ok ? r.entryIds[i] : -1,
+				note,
+				shots: 10 + i,
+				idem_key: `text-${i}`,
+				counted_at: hoursFromNow(-10 + i)
+			}))
+		);
+	});
+
 	test('a dry run answers like the real write and writes nothing', async () => {
 		const before = await snapshot(p.db);
 		const rows = [
