@@ -134,7 +134,13 @@ const provider: MigrationProvider = { getMigrations: async () => migrations };
 /** Runs every pending migration; throws with the failing migration's name. */
 // eslint-disable-next-line @typescript-eslint/no-explicit-any
 export async function migrateToLatest(db: Kysely<any>): Promise<string[]> {
-	const migrator = new Migrator({ db, provider });
+	// On PostgreSQL Kysely looks for its bookkeeping tables in every schema unless told which one;
+	// a test schema would then find another schema's lock table and never create its own.
+	const migrationTableSchema =
+		engineOf(db) === 'postgres'
+			? (await sql<{ s: string }>`select current_schema() as s`.execute(db)).rows[0]?.s
+			: undefined;
+	const migrator = new Migrator({ db, provider, migrationTableSchema });
 	const { error, results } = await migrator.migrateToLatest();
 	if (error) {
 		const failed = results?.find((r) => r.status === 'Error')?.migrationName ?? 'unknown';
