@@ -11,7 +11,13 @@ import { Ajv2020, type ValidateFunction } from 'ajv/dist/2020.js';
 import addFormats from 'ajv-formats';
 import { afterAll, beforeAll, describe, expect, test, vi } from 'vitest';
 import { seedDemo } from '../../scripts/lib/demo-scenario';
-import { migrateToLatest, openDatabase, type DB } from '../../src/lib/server/db/connect';
+import {
+	isPostgresUrl,
+	migrateToLatest,
+	newTestDatabaseTarget,
+	openDatabase,
+	type DB
+} from '../../src/lib/server/db/connect';
 import { OPENAPI_DOCUMENT } from '../../src/lib/server/api/openapi';
 import { toUtcIso } from '../../src/lib/schemas/schedule';
 import { createApiToken } from '../../src/lib/server/auth/tokens';
@@ -32,7 +38,10 @@ let ownerDie = '';
 let otherOwnerDie = '';
 
 beforeAll(async () => {
-	const seedDb = openDatabase(process.env.DATABASE_PATH!);
+	// On the PostgreSQL pass the app's own handle (getDb) opens a fresh schema through DATABASE_URL.
+	const target = await newTestDatabaseTarget(process.env.DATABASE_PATH!);
+	if (isPostgresUrl(target)) process.env.DATABASE_URL = target;
+	const seedDb = openDatabase(target);
 	await migrateToLatest(seedDb);
 	await seedDemo(seedDb, new Date(), process.env.UPLOAD_DIR);
 	await seedDb.destroy();
@@ -69,6 +78,7 @@ beforeAll(async () => {
 
 afterAll(async () => {
 	await db?.destroy();
+	delete process.env.DATABASE_URL;
 	fs.rmSync(dir, { recursive: true, force: true });
 });
 

@@ -8,7 +8,13 @@ import path from 'node:path';
 import { isActionFailure, isRedirect } from '@sveltejs/kit';
 import { afterAll, beforeAll, describe, expect, test, vi } from 'vitest';
 import { seedDemo } from '../../scripts/lib/demo-scenario';
-import { migrateToLatest, openDatabase, type DB } from '../../src/lib/server/db/connect';
+import {
+	isPostgresUrl,
+	migrateToLatest,
+	newTestDatabaseTarget,
+	openDatabase,
+	type DB
+} from '../../src/lib/server/db/connect';
 
 // The app reads its settings from $env/dynamic/private; here they come from this process.
 vi.mock('$env/dynamic/private', () => ({ env: process.env }));
@@ -22,7 +28,10 @@ let db: DB;
 let planner: App.Locals['user'];
 
 beforeAll(async () => {
-	const seedDb = openDatabase(process.env.DATABASE_PATH!);
+	// On the PostgreSQL pass the app's own handle (getDb) opens a fresh schema through DATABASE_URL.
+	const target = await newTestDatabaseTarget(process.env.DATABASE_PATH!);
+	if (isPostgresUrl(target)) process.env.DATABASE_URL = target;
+	const seedDb = openDatabase(target);
 	await migrateToLatest(seedDb);
 	await seedDemo(seedDb, new Date(), process.env.UPLOAD_DIR);
 	await seedDb.destroy();
@@ -46,6 +55,7 @@ beforeAll(async () => {
 
 afterAll(async () => {
 	await db?.destroy();
+	delete process.env.DATABASE_URL;
 	fs.rmSync(dir, { recursive: true, force: true });
 });
 
