@@ -12,6 +12,7 @@ import { seedScheduleDemo } from './demo-schedule';
 import { seedDemoShots } from './demo-shots';
 import { seedToolroomDemo } from './demo-toolroom';
 import { RETIREMENT_REASONS, type RetirementReason } from '../../src/lib/domain';
+import { engineOf } from '../../src/lib/server/db/connect';
 
 const DEMO_RETIREMENT_ORDER: RetirementReason[] = [
 	'worn_out',
@@ -506,6 +507,7 @@ export async function seedDemo(
 	await seedDemoShots(db, now);
 	await seedToolroomDemo(db, now, uploadDir);
 	await seedScheduleDemo(db, now);
-	await sql`pragma optimize`.execute(db);
+	// SQLite's planner statistics after the bulk load; PostgreSQL's autovacuum analyses on its own.
+	if (engineOf(db) === 'sqlite') await sql`pragma optimize`.execute(db);
 	return { dies: specs.length, entries, token };
 }

@@ -11,16 +11,11 @@ import { Ajv2020, type ValidateFunction } from 'ajv/dist/2020.js';
 import addFormats from 'ajv-formats';
 import { afterAll, beforeAll, describe, expect, test, vi } from 'vitest';
 import { seedDemo } from '../../scripts/lib/demo-scenario';
-import {
-	isPostgresUrl,
-	migrateToLatest,
-	newTestDatabaseTarget,
-	openDatabase,
-	type DB
-} from '../../src/lib/server/db/connect';
+import { migrateToLatest, openDatabase, type DB } from '../../src/lib/server/db/connect';
 import { OPENAPI_DOCUMENT } from '../../src/lib/server/api/openapi';
 import { toUtcIso } from '../../src/lib/schemas/schedule';
 import { createApiToken } from '../../src/lib/server/auth/tokens';
+import { isPostgresUrl, newTestDatabaseTarget } from '../../src/lib/server/db/connect';
 
 vi.mock('$env/dynamic/private', () => ({ env: process.env }));
 

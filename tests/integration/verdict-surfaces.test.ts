@@ -1,4 +1,5 @@
 import { toPlantInput } from '../../src/lib/plant-time';
+import { isPostgresUrl, newTestDatabaseTarget } from '../../src/lib/server/db/connect';
 // The order-check page, its API and the booking form give the same verdict for every die of the
 // demo plant and three order sizes — called through the real load function, endpoint and form
 // action, on a file database seeded with the demo scenario.
@@ -8,13 +9,7 @@ import path from 'node:path';
 import { isActionFailure, isRedirect } from '@sveltejs/kit';
 import { afterAll, beforeAll, describe, expect, test, vi } from 'vitest';
 import { seedDemo } from '../../scripts/lib/demo-scenario';
-import {
-	isPostgresUrl,
-	migrateToLatest,
-	newTestDatabaseTarget,
-	openDatabase,
-	type DB
-} from '../../src/lib/server/db/connect';
+import { migrateToLatest, openDatabase, type DB } from '../../src/lib/server/db/connect';
 
 // The app reads its settings from $env/dynamic/private; here they come from this process.
 vi.mock('$env/dynamic/private', () => ({ env: process.env }));
