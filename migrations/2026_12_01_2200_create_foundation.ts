@@ -1,4 +1,5 @@
 import { sql, type Kysely } from 'kysely';
+import { autoId, float, nowText } from './portable';
 
 // Frozen in time: never edit a migration that has shipped; add a new one instead.
 // Dates are ISO-8601 text in UTC; booleans are 0/1 integers.
@@ -6,13 +7,11 @@ import { sql, type Kysely } from 'kysely';
 export async function up(db: Kysely<any>): Promise<void> {
 	await db.schema
 		.createTable('customers')
-		.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+		.addColumn('id', 'integer', autoId(db))
 		.addColumn('code', 'text', (c) => c.notNull().unique())
 		.addColumn('name', 'text', (c) => c.notNull())
 		.addColumn('contact_email', 'text')
-		.addColumn('created_at', 'text', (c) =>
-			c.notNull().defaultTo(sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`)
-		)
+		.addColumn('created_at', 'text', (c) => c.notNull().defaultTo(nowText(db)))
 		.execute();
 
 	await db.schema
@@ -26,9 +25,7 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addColumn('active', 'integer', (c) => c.notNull().defaultTo(1))
 		.addColumn('unit_system', 'text', (c) => c.notNull().defaultTo('metric'))
 		.addColumn('notices_enabled', 'integer', (c) => c.notNull().defaultTo(1))
-		.addColumn('created_at', 'text', (c) =>
-			c.notNull().defaultTo(sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`)
-		)
+		.addColumn('created_at', 'text', (c) => c.notNull().defaultTo(nowText(db)))
 		.addCheckConstraint(
 			'users_role_check',
 			sql`role in ('admin','toolroom_lead','toolmaker','scheduler','customer')`
@@ -56,33 +53,31 @@ export async function up(db: Kysely<any>): Promise<void> {
 
 	await db.schema
 		.createTable('api_tokens')
-		.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+		.addColumn('id', 'integer', autoId(db))
 		.addColumn('name', 'text', (c) => c.notNull())
 		.addColumn('token_hash', 'text', (c) => c.notNull().unique())
 		.addColumn('token_prefix', 'text', (c) => c.notNull())
 		.addColumn('scopes', 'text', (c) => c.notNull())
 		.addColumn('customer_id', 'integer', (c) => c.references('customers.id'))
 		.addColumn('created_by', 'text', (c) => c.references('users.id'))
-		.addColumn('created_at', 'text', (c) =>
-			c.notNull().defaultTo(sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`)
-		)
+		.addColumn('created_at', 'text', (c) => c.notNull().defaultTo(nowText(db)))
 		.addColumn('last_used_at', 'text')
 		.addColumn('revoked_at', 'text')
 		.execute();
 
 	await db.schema
 		.createTable('alloys')
-		.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+		.addColumn('id', 'integer', autoId(db))
 		.addColumn('code', 'text', (c) => c.notNull().unique())
 		.addColumn('name', 'text', (c) => c.notNull())
 		.addColumn('family', 'text', (c) => c.notNull())
 		.addColumn('expected_life_shots', 'integer', (c) => c.notNull())
-		.addColumn('density_kg_m3', 'real')
-		.addColumn('specific_heat_j_kgk', 'real')
-		.addColumn('latent_heat_j_kg', 'real')
-		.addColumn('solidus_c', 'real')
-		.addColumn('liquidus_c', 'real')
-		.addColumn('pour_temp_c', 'real')
+		.addColumn('density_kg_m3', float(db))
+		.addColumn('specific_heat_j_kgk', float(db))
+		.addColumn('latent_heat_j_kg', float(db))
+		.addColumn('solidus_c', float(db))
+		.addColumn('liquidus_c', float(db))
+		.addColumn('pour_temp_c', float(db))
 		.addColumn('source_note', 'text')
 		.addCheckConstraint(
 			'alloys_family_check',
@@ -92,12 +87,12 @@ export async function up(db: Kysely<any>): Promise<void> {
 
 	await db.schema
 		.createTable('machines')
-		.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+		.addColumn('id', 'integer', autoId(db))
 		.addColumn('name', 'text', (c) => c.notNull().unique())
 		.addColumn('chamber', 'text', (c) => c.notNull())
-		.addColumn('clamp_force_kn', 'real', (c) => c.notNull())
-		.addColumn('max_shot_weight_kg', 'real')
-		.addColumn('tie_bar_spacing_mm', 'real')
+		.addColumn('clamp_force_kn', float(db), (c) => c.notNull())
+		.addColumn('max_shot_weight_kg', float(db))
+		.addColumn('tie_bar_spacing_mm', float(db))
 		.addColumn('status', 'text', (c) => c.notNull().defaultTo('available'))
 		.addColumn('notes', 'text')
 		.addCheckConstraint('machines_chamber_check', sql`chamber in ('hot','cold')`)
@@ -105,7 +100,7 @@ export async function up(db: Kysely<any>): Promise<void> {
 
 	await db.schema
 		.createTable('dies')
-		.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+		.addColumn('id', 'integer', autoId(db))
 		.addColumn('number', 'text', (c) => c.notNull().unique())
 		.addColumn('part_name', 'text', (c) => c.notNull())
 		.addColumn('part_number', 'text')
@@ -113,7 +108,7 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addColumn('alloy_id', 'integer', (c) => c.notNull().references('alloys.id'))
 		.addColumn('process', 'text', (c) => c.notNull())
 		.addColumn('cavities', 'integer', (c) => c.notNull())
-		.addColumn('projected_area_cm2', 'real', (c) => c.notNull())
+		.addColumn('projected_area_cm2', float(db), (c) => c.notNull())
 		.addColumn('has_slides', 'integer', (c) => c.notNull().defaultTo(0))
 		.addColumn('status', 'text', (c) => c.notNull().defaultTo('ready'))
 		.addColumn('location', 'text')
@@ -121,12 +116,8 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addColumn('expected_life_shots', 'integer')
 		.addColumn('total_shots', 'integer', (c) => c.notNull().defaultTo(0))
 		.addColumn('last_counted_at', 'text')
-		.addColumn('created_at', 'text', (c) =>
-			c.notNull().defaultTo(sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`)
-		)
-		.addColumn('updated_at', 'text', (c) =>
-			c.notNull().defaultTo(sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`)
-		)
+		.addColumn('created_at', 'text', (c) => c.notNull().defaultTo(nowText(db)))
+		.addColumn('updated_at', 'text', (c) => c.notNull().defaultTo(nowText(db)))
 		.addColumn('retired_at', 'text')
 		.addCheckConstraint(
 			'dies_status_check',
@@ -145,12 +136,12 @@ export async function up(db: Kysely<any>): Promise<void> {
 
 	await db.schema
 		.createTable('die_halves')
-		.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+		.addColumn('id', 'integer', autoId(db))
 		.addColumn('die_id', 'integer', (c) => c.notNull().references('dies.id'))
 		.addColumn('side', 'text', (c) => c.notNull())
 		.addColumn('serial', 'text', (c) => c.notNull())
 		.addColumn('steel', 'text')
-		.addColumn('hardness_hrc', 'real')
+		.addColumn('hardness_hrc', float(db))
 		.addColumn('shots', 'integer', (c) => c.notNull().defaultTo(0))
 		.addColumn('active', 'integer', (c) => c.notNull().defaultTo(1))
 		.addColumn('installed_at', 'text', (c) => c.notNull())
@@ -166,7 +157,7 @@ export async function up(db: Kysely<any>): Promise<void> {
 
 	await db.schema
 		.createTable('shot_entries')
-		.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+		.addColumn('id', 'integer', autoId(db))
 		.addColumn('die_id', 'integer', (c) => c.notNull().references('dies.id'))
 		.addColumn('machine_id', 'integer', (c) => c.references('machines.id'))
 		.addColumn('counted_at', 'text', (c) => c.notNull())
@@ -205,7 +196,7 @@ export async function up(db: Kysely<any>): Promise<void> {
 
 	await db.schema
 		.createTable('service_templates')
-		.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+		.addColumn('id', 'integer', autoId(db))
 		.addColumn('family', 'text', (c) => c.notNull())
 		.addColumn('kind', 'text', (c) => c.notNull())
 		.addColumn('interval_shots', 'integer')
@@ -215,7 +206,7 @@ export async function up(db: Kysely<any>): Promise<void> {
 
 	await db.schema
 		.createTable('service_tasks')
-		.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+		.addColumn('id', 'integer', autoId(db))
 		.addColumn('die_id', 'integer', (c) => c.notNull().references('dies.id'))
 		.addColumn('kind', 'text', (c) => c.notNull())
 		.addColumn('interval_shots', 'integer')
@@ -232,7 +223,7 @@ export async function up(db: Kysely<any>): Promise<void> {
 
 	await db.schema
 		.createTable('audit_log')
-		.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+		.addColumn('id', 'integer', autoId(db))
 		.addColumn('at', 'text', (c) => c.notNull())
 		.addColumn('user_id', 'text', (c) => c.references('users.id'))
 		.addColumn('token_id', 'integer', (c) => c.references('api_tokens.id'))

@@ -1,15 +1,14 @@
 import { sql, type Kysely } from 'kysely';
+import { autoId, float, nowText } from './portable';
 
 // Frozen in time: never edit a migration that has shipped; add a new one instead.
 // Toolroom jobs, their photos, surface inspections (heat checking) and cooling circuits/checks.
 // Dates are ISO-8601 text in UTC; booleans are 0/1 integers.
 
-const now = sql`(strftime('%Y-%m-%dT%H:%M:%fZ','now'))`;
-
 export async function up(db: Kysely<any>): Promise<void> {
 	await db.schema
 		.createTable('toolroom_jobs')
-		.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+		.addColumn('id', 'integer', autoId(db))
 		.addColumn('number', 'text', (c) => c.notNull().unique())
 		.addColumn('die_id', 'integer', (c) => c.notNull().references('dies.id'))
 		.addColumn('kind', 'text', (c) => c.notNull())
@@ -24,13 +23,13 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.addColumn('die_shots_at_open', 'integer', (c) => c.notNull())
 		.addColumn('opened_by', 'text', (c) => c.references('users.id'))
 		.addColumn('opened_at', 'text', (c) => c.notNull())
-		.addColumn('updated_at', 'text', (c) => c.notNull().defaultTo(now))
+		.addColumn('updated_at', 'text', (c) => c.notNull().defaultTo(nowText(db)))
 		.addColumn('closed_at', 'text')
 		.addColumn('closed_by', 'text', (c) => c.references('users.id'))
 		.addColumn('die_shots_at_close', 'integer')
 		.addColumn('findings', 'text')
 		.addColumn('work_done', 'text')
-		.addColumn('hours', 'real')
+		.addColumn('hours', float(db))
 		.addColumn('parts_used', 'text')
 		.addColumn('billable_to_owner', 'integer', (c) => c.notNull().defaultTo(0))
 		.addColumn('owner_summary', 'text')
@@ -72,14 +71,14 @@ export async function up(db: Kysely<any>): Promise<void> {
 
 	await db.schema
 		.createTable('surface_inspections')
-		.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+		.addColumn('id', 'integer', autoId(db))
 		.addColumn('die_id', 'integer', (c) => c.notNull().references('dies.id'))
 		.addColumn('job_id', 'integer', (c) => c.references('toolroom_jobs.id'))
 		.addColumn('half', 'text', (c) => c.notNull())
 		.addColumn('zone', 'text', (c) => c.notNull())
 		.addColumn('shots_at', 'integer', (c) => c.notNull())
 		.addColumn('grade', 'integer', (c) => c.notNull())
-		.addColumn('longest_crack_mm', 'real')
+		.addColumn('longest_crack_mm', float(db))
 		.addColumn('soldering', 'integer', (c) => c.notNull().defaultTo(0))
 		.addColumn('erosion', 'integer', (c) => c.notNull().defaultTo(0))
 		.addColumn('notes', 'text')
@@ -101,7 +100,7 @@ export async function up(db: Kysely<any>): Promise<void> {
 
 	await db.schema
 		.createTable('photos')
-		.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+		.addColumn('id', 'integer', autoId(db))
 		.addColumn('public_id', 'text', (c) => c.notNull().unique())
 		.addColumn('job_id', 'integer', (c) => c.references('toolroom_jobs.id'))
 		.addColumn('inspection_id', 'integer', (c) => c.references('surface_inspections.id'))
@@ -127,13 +126,13 @@ export async function up(db: Kysely<any>): Promise<void> {
 
 	await db.schema
 		.createTable('cooling_circuits')
-		.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+		.addColumn('id', 'integer', autoId(db))
 		.addColumn('die_id', 'integer', (c) => c.notNull().references('dies.id'))
 		.addColumn('half', 'text', (c) => c.notNull())
 		.addColumn('label', 'text', (c) => c.notNull())
 		.addColumn('coolant', 'text', (c) => c.notNull())
-		.addColumn('channel_diameter_mm', 'real', (c) => c.notNull())
-		.addColumn('nominal_flow_lpm', 'real', (c) => c.notNull())
+		.addColumn('channel_diameter_mm', float(db), (c) => c.notNull())
+		.addColumn('nominal_flow_lpm', float(db), (c) => c.notNull())
 		.addColumn('active', 'integer', (c) => c.notNull().defaultTo(1))
 		.addColumn('created_by', 'text', (c) => c.references('users.id'))
 		.addColumn('created_at', 'text', (c) => c.notNull())
@@ -148,20 +147,20 @@ export async function up(db: Kysely<any>): Promise<void> {
 
 	await db.schema
 		.createTable('cooling_checks')
-		.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+		.addColumn('id', 'integer', autoId(db))
 		.addColumn('circuit_id', 'integer', (c) => c.notNull().references('cooling_circuits.id'))
 		.addColumn('die_id', 'integer', (c) => c.notNull().references('dies.id'))
 		.addColumn('checked_at', 'text', (c) => c.notNull())
 		.addColumn('checked_by', 'text', (c) => c.references('users.id'))
-		.addColumn('measured_flow_lpm', 'real', (c) => c.notNull())
-		.addColumn('inlet_c', 'real', (c) => c.notNull())
-		.addColumn('outlet_c', 'real', (c) => c.notNull())
-		.addColumn('supply_pressure_bar', 'real')
+		.addColumn('measured_flow_lpm', float(db), (c) => c.notNull())
+		.addColumn('inlet_c', float(db), (c) => c.notNull())
+		.addColumn('outlet_c', float(db), (c) => c.notNull())
+		.addColumn('supply_pressure_bar', float(db))
 		.addColumn('leak_test', 'text', (c) => c.notNull())
 		.addColumn('notes', 'text')
-		.addColumn('oil_density_kg_m3', 'real')
-		.addColumn('oil_viscosity_mpa_s', 'real')
-		.addColumn('oil_specific_heat_j_kgk', 'real')
+		.addColumn('oil_density_kg_m3', float(db))
+		.addColumn('oil_viscosity_mpa_s', float(db))
+		.addColumn('oil_specific_heat_j_kgk', float(db))
 		.addCheckConstraint('cooling_checks_leak_check', sql`leak_test in ('pass','fail')`)
 		.addCheckConstraint('cooling_checks_flow_check', sql`measured_flow_lpm >= 0`)
 		.execute();

@@ -1,4 +1,5 @@
 import { sql, type Kysely } from 'kysely';
+import { autoId, float } from './portable';
 
 // Frozen in time: never edit a migration that has shipped; add a new one instead.
 // Press bookings. Presses are the `machines` table of the foundation migration.
@@ -6,15 +7,15 @@ import { sql, type Kysely } from 'kysely';
 export async function up(db: Kysely<any>): Promise<void> {
 	await db.schema
 		.createTable('press_bookings')
-		.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+		.addColumn('id', 'integer', autoId(db))
 		.addColumn('die_id', 'integer', (c) => c.notNull().references('dies.id'))
 		.addColumn('machine_id', 'integer', (c) => c.notNull().references('machines.id'))
 		.addColumn('starts_at', 'text', (c) => c.notNull())
 		.addColumn('ends_at', 'text', (c) => c.notNull())
 		.addColumn('order_ref', 'text', (c) => c.notNull())
 		.addColumn('parts', 'integer', (c) => c.notNull())
-		.addColumn('scrap_pct', 'real', (c) => c.notNull().defaultTo(0))
-		.addColumn('shots_per_hour', 'real', (c) => c.notNull())
+		.addColumn('scrap_pct', float(db), (c) => c.notNull().defaultTo(0))
+		.addColumn('shots_per_hour', float(db), (c) => c.notNull())
 		.addColumn('created_by', 'text', (c) => c.references('users.id'))
 		.addColumn('created_at', 'text', (c) => c.notNull())
 		.addColumn('cancelled_at', 'text')

@@ -1,4 +1,5 @@
 import { sql, type Kysely } from 'kysely';
+import { autoId } from './portable';
 
 // Frozen in time: never edit a migration that has shipped; add a new one instead.
 // Service notice outbox: one `notices` row per item under a unique key (die, task, cycle, state),
@@ -8,7 +9,7 @@ import { sql, type Kysely } from 'kysely';
 export async function up(db: Kysely<any>): Promise<void> {
 	await db.schema
 		.createTable('notices')
-		.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+		.addColumn('id', 'integer', autoId(db))
 		.addColumn('notice_key', 'text', (c) => c.notNull().unique())
 		.addColumn('kind', 'text', (c) => c.notNull())
 		.addColumn('level', 'text', (c) => c.notNull())
@@ -25,7 +26,7 @@ export async function up(db: Kysely<any>): Promise<void> {
 
 	await db.schema
 		.createTable('notice_deliveries')
-		.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+		.addColumn('id', 'integer', autoId(db))
 		.addColumn('notice_id', 'integer', (c) =>
 			c.notNull().references('notices.id').onDelete('cascade')
 		)

@@ -1,4 +1,5 @@
 import { sql, type Kysely } from 'kysely';
+import { autoId } from './portable';
 
 // Frozen in time: never edit a migration that has shipped; add a new one instead.
 // Invitations of tooling-owner users: a one-time link (only its sha256 is kept) that lets the
@@ -7,7 +8,7 @@ import { sql, type Kysely } from 'kysely';
 export async function up(db: Kysely<any>): Promise<void> {
 	await db.schema
 		.createTable('invitations')
-		.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+		.addColumn('id', 'integer', autoId(db))
 		.addColumn('customer_id', 'integer', (c) => c.notNull().references('customers.id'))
 		.addColumn('email', 'text', (c) => c.notNull())
 		.addColumn('name', 'text', (c) => c.notNull())

@@ -1,4 +1,5 @@
 import { sql, type Kysely } from 'kysely';
+import { autoId, float } from './portable';
 
 // Frozen in time: never edit a migration that has shipped; add a new one instead.
 // Facts the order verdict, the fleet statistics and the crack trend need:
@@ -22,7 +23,7 @@ import { sql, type Kysely } from 'kysely';
 // - toolroom_jobs.expected_release_at: when the toolroom expects to give the die back (optional).
 
 export async function up(db: Kysely<any>): Promise<void> {
-	await db.schema.alterTable('dies').addColumn('metal_pressure_bar', 'real').execute();
+	await db.schema.alterTable('dies').addColumn('metal_pressure_bar', float(db)).execute();
 	await sql`update dies set metal_pressure_bar = case
 		when process = 'hot_chamber' then 150
 		else (select case alloys.family
@@ -35,7 +36,7 @@ export async function up(db: Kysely<any>): Promise<void> {
 
 	await db.schema
 		.createTable('die_zones')
-		.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+		.addColumn('id', 'integer', autoId(db))
 		.addColumn('die_id', 'integer', (c) => c.notNull().references('dies.id'))
 		.addColumn('half', 'text', (c) => c.notNull())
 		.addColumn('name', 'text', (c) => c.notNull())
@@ -73,7 +74,7 @@ export async function up(db: Kysely<any>): Promise<void> {
 
 	await db.schema
 		.createTable('job_repairs')
-		.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+		.addColumn('id', 'integer', autoId(db))
 		.addColumn('job_id', 'integer', (c) => c.notNull().references('toolroom_jobs.id'))
 		.addColumn('zone_id', 'integer', (c) => c.notNull().references('die_zones.id'))
 		.addColumn('kind', 'text', (c) => c.notNull())
@@ -95,7 +96,7 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.execute();
 	await db.schema.alterTable('toolroom_jobs').addColumn('expected_release_at', 'text').execute();
 
-	await db.schema.alterTable('alloys').addColumn('specific_heat_liquid_j_kgk', 'real').execute();
+	await db.schema.alterTable('alloys').addColumn('specific_heat_liquid_j_kgk', float(db)).execute();
 	for (const [code, cp] of [
 		['ZP0400', 480],
 		['ZP0410', 480],

@@ -1,4 +1,5 @@
 import { sql, type Kysely } from 'kysely';
+import { autoId, onPostgres, replaceCheck } from './portable';
 
 // Frozen in time: never edit a migration that has shipped; add a new one instead.
 // The outbox learns one more kind of item: a die moved by hand to another state ("die_state"),
@@ -10,12 +11,18 @@ import { sql, type Kysely } from 'kysely';
 
 async function rebuild(db: Kysely<any>, kinds: string[], levels: string[]) {
 	const list = (values: string[]) => sql.raw(values.map((v) => `'${v}'`).join(','));
+	if (onPostgres(db)) {
+		const quoted = (values: string[]) => values.map((v) => `'${v}'`).join(',');
+		await replaceCheck(db, 'notices', 'notices_kind_check', `kind in (${quoted(kinds)})`);
+		await replaceCheck(db, 'notices', 'notices_level_check', `level in (${quoted(levels)})`);
+		return;
+	}
 	await sql`pragma foreign_keys = off`.execute(db);
 	try {
 		await db.transaction().execute(async (trx) => {
 			await trx.schema
 				.createTable('notices_rebuilt')
-				.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+				.addColumn('id', 'integer', autoId(db))
 				.addColumn('notice_key', 'text', (c) => c.notNull().unique())
 				.addColumn('kind', 'text', (c) => c.notNull())
 				.addColumn('level', 'text', (c) => c.notNull())

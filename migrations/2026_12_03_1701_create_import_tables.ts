@@ -1,4 +1,5 @@
 import { sql, type Kysely } from 'kysely';
+import { onPostgres, replaceCheck } from './portable';
 
 // Frozen in time: never edit a migration that has shipped; add a new one instead.
 // Die register import: the column mapping a plant chose (remembered per sheet kind), and the
@@ -10,6 +11,12 @@ import { sql, type Kysely } from 'kysely';
  * definition (whatever columns earlier migrations added), with the source list widened.
  */
 async function rebuildSourceCheck(db: Kysely<any>, widen: boolean) {
+	if (onPostgres(db)) {
+		const sources = ['manual', 'csv', 'api', 'correction', 'seed', ...(widen ? ['opening'] : [])];
+		const list = sources.map((v) => `'${v}'`).join(',');
+		await replaceCheck(db, 'shot_entries', 'shot_entries_source_check', `source in (${list})`);
+		return;
+	}
 	const table = await sql<{ sql: string }>`
 		select sql from sqlite_master where type = 'table' and name = 'shot_entries'`.execute(db);
 	const current = table.rows[0]?.sql;

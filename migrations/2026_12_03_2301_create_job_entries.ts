@@ -1,4 +1,5 @@
 import { sql, type Kysely } from 'kysely';
+import { autoId, float } from './portable';
 
 // Frozen in time: never edit a migration that has shipped; add a new one instead.
 // Hours and parts are recorded while a job is open, not only when it closes: one row per work
@@ -9,9 +10,9 @@ import { sql, type Kysely } from 'kysely';
 export async function up(db: Kysely<any>): Promise<void> {
 	await db.schema
 		.createTable('job_work_entries')
-		.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+		.addColumn('id', 'integer', autoId(db))
 		.addColumn('job_id', 'integer', (c) => c.notNull().references('toolroom_jobs.id'))
-		.addColumn('hours', 'real', (c) => c.notNull())
+		.addColumn('hours', float(db), (c) => c.notNull())
 		.addColumn('note', 'text')
 		.addColumn('recorded_by', 'text', (c) => c.references('users.id'))
 		.addColumn('recorded_at', 'text', (c) => c.notNull())
@@ -26,10 +27,10 @@ export async function up(db: Kysely<any>): Promise<void> {
 		.execute();
 	await db.schema
 		.createTable('job_parts_used')
-		.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+		.addColumn('id', 'integer', autoId(db))
 		.addColumn('job_id', 'integer', (c) => c.notNull().references('toolroom_jobs.id'))
 		.addColumn('part', 'text', (c) => c.notNull())
-		.addColumn('quantity', 'real', (c) => c.notNull())
+		.addColumn('quantity', float(db), (c) => c.notNull())
 		.addColumn('recorded_by', 'text', (c) => c.references('users.id'))
 		.addColumn('recorded_at', 'text', (c) => c.notNull())
 		.addColumn('voided_at', 'text')

@@ -1,4 +1,5 @@
 import { sql, type Kysely } from 'kysely';
+import { autoId, float } from './portable';
 
 // What a plant puts on the documents it sends: its name, address, contact, logo and a footer
 // line for statements, plus the hourly rate billable toolroom work is charged at (toolroom jobs
@@ -22,7 +23,7 @@ export async function up(db: Kysely<any>): Promise<void> {
 	await db.schema.alterTable('plant_settings').addColumn('logo_file', 'text').execute();
 	await db.schema
 		.alterTable('plant_settings')
-		.addColumn('repair_rate_per_hour', 'real', (c) => c.check(sql`repair_rate_per_hour >= 0`))
+		.addColumn('repair_rate_per_hour', float(db), (c) => c.check(sql`repair_rate_per_hour >= 0`))
 		.execute();
 	await db.schema
 		.alterTable('plant_settings')
@@ -31,7 +32,7 @@ export async function up(db: Kysely<any>): Promise<void> {
 
 	await db.schema
 		.createTable('statements')
-		.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+		.addColumn('id', 'integer', autoId(db))
 		.addColumn('reference', 'text', (c) => c.notNull().unique())
 		.addColumn('customer_id', 'integer', (c) => c.notNull().references('customers.id'))
 		.addColumn('period_kind', 'text', (c) =>

@@ -1,4 +1,5 @@
 import { sql, type Kysely } from 'kysely';
+import { autoId, float } from './portable';
 
 // Frozen in time: never edit a migration that has shipped; add a new one instead.
 // A question the toolroom lead puts to a die's owner when holding the die "waiting for the
@@ -9,11 +10,11 @@ import { sql, type Kysely } from 'kysely';
 export async function up(db: Kysely<any>): Promise<void> {
 	await db.schema
 		.createTable('owner_decisions')
-		.addColumn('id', 'integer', (c) => c.primaryKey().autoIncrement())
+		.addColumn('id', 'integer', autoId(db))
 		.addColumn('die_id', 'integer', (c) => c.notNull().references('dies.id'))
 		.addColumn('question', 'text', (c) => c.notNull())
-		.addColumn('quoted_hours', 'real')
-		.addColumn('quoted_cost', 'real')
+		.addColumn('quoted_hours', float(db))
+		.addColumn('quoted_cost', float(db))
 		.addColumn('asked_by', 'text', (c) => c.references('users.id'))
 		.addColumn('asked_at', 'text', (c) => c.notNull())
 		.addColumn('answer', 'text')
