@@ -115,7 +115,7 @@ describe('die register', () => {
 				.insertInto('die_halves')
 				.values({ die_id: d.id, side: 'cover', serial: 'X', installed_at: '2026-01-01' })
 				.execute()
-		).rejects.toThrow(/UNIQUE/);
+		).rejects.toThrow(/UNIQUE|duplicate key/); // SQLite | PostgreSQL wording
 	});
 
 	test('a duplicate number, unknown owner or alloy is refused and changes nothing', async () => {
