@@ -7,6 +7,7 @@ import { randomBytes } from 'node:crypto';
 import { MAX_PHOTOS_PER_UPLOAD } from '../../schemas/toolroom';
 import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
+import { writeTransaction } from '../db/write-transaction';
 import type { PhotoStage } from '../db/schema-toolroom';
 import {
 	checkPhotos,
@@ -142,7 +143,7 @@ export async function uploadPhotos(
 	const caption = input.caption?.trim() ? input.caption.trim().slice(0, 200) : null;
 	const images = checked.images.map((i) => i.image);
 	await storePhotoFilesWith(input.uploadDir, images, (files) =>
-		db.transaction().execute(async (trx) => {
+		writeTransaction(db, async (trx) => {
 			await insertPhotoRows(
 				trx,
 				files,
@@ -227,7 +228,7 @@ export async function setPhotoShared(
 		return { ok: false, status: 403, message: 'Your role may not share photos.' };
 	}
 	const at = input.at ?? nowIso();
-	return db.transaction().execute(async (trx) => {
+	return writeTransaction(db, async (trx) => {
 		const photo = await trx
 			.selectFrom('photos')
 			.select(['id', 'die_id'])
@@ -334,7 +335,7 @@ export async function setPhotoCaption(
 ): Promise<boolean> {
 	const at = input.at ?? nowIso();
 	const caption = input.caption.trim() ? input.caption.trim().slice(0, 200) : null;
-	return db.transaction().execute(async (trx) => {
+	return writeTransaction(db, async (trx) => {
 		const photo = await trx
 			.selectFrom('photos')
 			.select(['id', 'die_id', 'caption'])
