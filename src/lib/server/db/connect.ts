@@ -135,10 +135,11 @@ const provider: MigrationProvider = { getMigrations: async () => migrations };
 // eslint-disable-next-line @typescript-eslint/no-explicit-any
 export async function migrateToLatest(db: Kysely<any>): Promise<string[]> {
 	// On PostgreSQL Kysely looks for its bookkeeping tables in every schema unless told which one;
-	// a test schema would then find another schema's lock table and never create its own.
+	// another plant's (or another test's) schema in the same database must not count as migrated.
 	const migrationTableSchema =
 		engineOf(db) === 'postgres'
-			? (await sql<{ s: string }>`select current_schema() as s`.execute(db)).rows[0]?.s
+			? (await sql<{ schema: string }>`select current_schema() as schema`.execute(db)).rows[0]
+					.schema
 			: undefined;
 	const migrator = new Migrator({ db, provider, migrationTableSchema });
 	const { error, results } = await migrator.migrateToLatest();
@@ -195,6 +196,7 @@ export async function openTestDatabase(options: { migrate?: boolean } = {}): Pro
 		testEngine() === 'sqlite'
 			? openDatabase(':memory:')
 			: openDatabase(testDatabaseUrl(), { schema: await createTestSchema(), poolSize: 4 });
-	if (options.migrate !== false) await migrateToLatest(db);
+	if (options.migrate === false) return db;
+	await migrateToLatest(db);
 	return db;
 }
