@@ -136,6 +136,7 @@ const provider: MigrationProvider = { getMigrations: async () => migrations };
 export async function migrateToLatest(db: Kysely<any>): Promise<string[]> {
 	// On PostgreSQL Kysely looks for its bookkeeping tables in every schema unless told which one;
 	// another plant's (or another test's) schema in the same database must not count as migrated.
+	// Asked of the connection, so a schema named in the URL (`options=-c search_path=…`) counts too.
 	const migrationTableSchema =
 		engineOf(db) === 'postgres'
 			? (await sql<{ schema: string }>`select current_schema() as schema`.execute(db)).rows[0]
