@@ -125,7 +125,7 @@ export async function recordInspection(
 		images = prepared.images;
 	}
 	const id = await storePhotoFilesWith(input.uploadDir, images, (files) =>
-		writeTransaction(db, async (trx) => {
+		db.transaction().execute(async (trx) => {
 			const row = await trx
 				.insertInto('surface_inspections')
 				.values({

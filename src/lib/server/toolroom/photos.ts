@@ -143,7 +143,7 @@ export async function uploadPhotos(
 	const caption = input.caption?.trim() ? input.caption.trim().slice(0, 200) : null;
 	const images = checked.images.map((i) => i.image);
 	await storePhotoFilesWith(input.uploadDir, images, (files) =>
-		writeTransaction(db, async (trx) => {
+		db.transaction().execute(async (trx) => {
 			await insertPhotoRows(
 				trx,
 				files,
