@@ -21,6 +21,7 @@ export type Engine = 'sqlite' | 'postgres';
 const rawHandles = new WeakMap<object, SQLite.Database>();
 const engines = new WeakMap<object, Engine>();
 const pools = new WeakMap<object, pg.Pool>();
+const schemas = new WeakMap<object, string>();
 
 /**
  * The better-sqlite3 handle under a Kysely instance opened on SQLite. Code that must run on both
@@ -121,6 +122,7 @@ function openPostgres(url: string, options: OpenOptions): DB {
 	const db = new Kysely<Database>({ dialect: new PostgresDialect({ pool }) });
 	engines.set(db, 'postgres');
 	pools.set(db, pool);
+	if (options.schema) schemas.set(db, options.schema);
 	return db;
 }
 
@@ -134,13 +136,14 @@ const provider: MigrationProvider = { getMigrations: async () => migrations };
 /** Runs every pending migration; throws with the failing migration's name. */
 // eslint-disable-next-line @typescript-eslint/no-explicit-any
 export async function migrateToLatest(db: Kysely<any>): Promise<string[]> {
-	// On PostgreSQL Kysely looks for its bookkeeping tables in every schema unless told which one;
-	// another plant's (or another test's) schema in the same database must not count as migrated.
-	// Asked of the connection, so a schema named in the URL (`options=-c search_path=…`) counts too.
+	// On PostgreSQL name the schema: Kysely looks for its bookkeeping tables by name across every
+	// schema it can see, and would take another schema's for this one's. A URL may choose the
+	// schema itself (`options=-c search_path=…`, see databaseEnvFor), so ask when it is not known.
 	const migrationTableSchema =
 		engineOf(db) === 'postgres'
-			? (await sql<{ schema: string }>`select current_schema() as schema`.execute(db)).rows[0]
-					.schema
+			? (schemas.get(db) ??
+				(await sql<{ schema: string }>`select current_schema() as schema`.execute(db)).rows[0]
+					.schema)
 			: undefined;
 	const migrator = new Migrator({ db, provider, migrationTableSchema });
 	const { error, results } = await migrator.migrateToLatest();
