@@ -69,7 +69,8 @@ beforeAll(async () => {
 		.execute();
 	ownerDie = dies.find((d) => d.customer_id === brk.id)!.number;
 	otherOwnerDie = dies.find((d) => d.customer_id !== brk.id)!.number;
-}, 120_000);
+	// Seeding the demo plant takes about two minutes on PostgreSQL (one round trip per statement).
+}, 300_000);
 
 afterAll(async () => {
 	await db?.destroy();

@@ -46,7 +46,8 @@ beforeAll(async () => {
 		customerId: u.customer_id,
 		unitSystem: u.unit_system
 	} as unknown as App.Locals['user'];
-}, 120_000);
+	// Seeding the demo plant takes about two minutes on PostgreSQL (one round trip per statement).
+}, 300_000);
 
 afterAll(async () => {
 	await db?.destroy();
