@@ -439,8 +439,6 @@ export async function seedDemo(
 			.selectFrom('service_templates')
 			.selectAll()
 			.where('family', '=', spec.family)
-			// A fixed order: the random draws below must fall the same way on both engines.
-			.orderBy('id')
 			.execute();
 		for (const t of templates) {
 			const fraction = n % 5 === 1 ? 0.92 + rand() * 0.25 : rand() * 0.85;
