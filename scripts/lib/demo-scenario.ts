@@ -439,6 +439,9 @@ export async function seedDemo(
 			.selectFrom('service_templates')
 			.selectAll()
 			.where('family', '=', spec.family)
+			// The order SQLite's (family, kind) index gives: the random draws below must fall the
+			// same way on PostgreSQL, which has no order without ORDER BY.
+			.orderBy('kind')
 			.execute();
 		for (const t of templates) {
 			const fraction = n % 5 === 1 ? 0.92 + rand() * 0.25 : rand() * 0.85;
