@@ -13,6 +13,7 @@ import { seedDemoShots } from './demo-shots';
 import { seedToolroomDemo } from './demo-toolroom';
 import { photoStoreFromEnv, type PhotoStore } from '../../src/lib/server/photos/photo-store';
 import { RETIREMENT_REASONS, type RetirementReason } from '../../src/lib/domain';
+import { engineOf } from '../../src/lib/server/db/connect';
 
 const DEMO_RETIREMENT_ORDER: RetirementReason[] = [
 	'worn_out',
@@ -437,6 +438,9 @@ export async function seedDemo(
 			.selectFrom('service_templates')
 			.selectAll()
 			.where('family', '=', spec.family)
+			// The order SQLite's (family, kind) index gives: the random draws below must fall the
+			// same way on PostgreSQL, which has no order without ORDER BY.
+			.orderBy('kind')
 			.execute();
 		for (const t of templates) {
 			const fraction = n % 5 === 1 ? 0.92 + rand() * 0.25 : rand() * 0.85;
@@ -505,6 +509,7 @@ export async function seedDemo(
 	await seedDemoShots(db, now);
 	await seedToolroomDemo(db, now, photoStore);
 	await seedScheduleDemo(db, now);
-	await sql`pragma optimize`.execute(db);
+	// SQLite's planner statistics after the bulk load; PostgreSQL's autovacuum analyses on its own.
+	if (engineOf(db) === 'sqlite') await sql`pragma optimize`.execute(db);
 	return { dies: specs.length, entries, token };
 }

@@ -16,6 +16,7 @@ import { migrateToLatest, openDatabase, type DB } from '../../src/lib/server/db/
 import { OPENAPI_DOCUMENT } from '../../src/lib/server/api/openapi';
 import { toUtcIso } from '../../src/lib/schemas/schedule';
 import { createApiToken } from '../../src/lib/server/auth/tokens';
+import { isPostgresUrl, newTestDatabaseTarget } from '../../src/lib/server/db/connect';
 
 vi.mock('$env/dynamic/private', () => ({ env: process.env }));
 
@@ -33,7 +34,10 @@ let ownerDie = '';
 let otherOwnerDie = '';
 
 beforeAll(async () => {
-	const seedDb = openDatabase(process.env.DATABASE_PATH!);
+	// On the PostgreSQL pass the app's own handle (getDb) opens a fresh schema through DATABASE_URL.
+	const target = await newTestDatabaseTarget(process.env.DATABASE_PATH!);
+	if (isPostgresUrl(target)) process.env.DATABASE_URL = target;
+	const seedDb = openDatabase(target);
 	await migrateToLatest(seedDb);
 	await seedDemo(seedDb, new Date(), folderPhotoStore(process.env.UPLOAD_DIR!));
 	await seedDb.destroy();
@@ -66,10 +70,12 @@ beforeAll(async () => {
 		.execute();
 	ownerDie = dies.find((d) => d.customer_id === brk.id)!.number;
 	otherOwnerDie = dies.find((d) => d.customer_id !== brk.id)!.number;
-}, 120_000);
+	// Seeding the demo plant takes about two minutes on PostgreSQL (one round trip per statement).
+}, 300_000);
 
 afterAll(async () => {
 	await db?.destroy();
+	delete process.env.DATABASE_URL;
 	fs.rmSync(dir, { recursive: true, force: true });
 });
 

@@ -1,6 +1,7 @@
 import { beforeEach, describe, expect, test } from 'vitest';
 import {
 	migrateToLatest,
+	newTestDatabaseTarget,
 	openDatabase,
 	openTestDatabase,
 	type DB
@@ -63,7 +64,8 @@ beforeEach(async () => {
 describe('migrations', () => {
 	test('migrate up from empty twice, down, and up again on a file database', async () => {
 		const dir = await import('node:fs').then((fs) => fs.mkdtempSync('/tmp/castellan-mig-'));
-		const file = openDatabase(`${dir}/m.db`);
+		// A SQLite file, or on the PostgreSQL pass an empty schema of its own.
+		const file = openDatabase(await newTestDatabaseTarget(`${dir}/m.db`));
 		const first = await migrateToLatest(file);
 		expect(first.length).toBeGreaterThanOrEqual(2);
 		expect(await migrateToLatest(file)).toEqual([]);
@@ -113,7 +115,7 @@ describe('die register', () => {
 				.insertInto('die_halves')
 				.values({ die_id: d.id, side: 'cover', serial: 'X', installed_at: '2026-01-01' })
 				.execute()
-		).rejects.toThrow(/UNIQUE/);
+		).rejects.toThrow(/UNIQUE|duplicate key/); // SQLite | PostgreSQL wording
 	});
 
 	test('a duplicate number, unknown owner or alloy is refused and changes nothing', async () => {

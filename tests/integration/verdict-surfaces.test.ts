@@ -1,4 +1,5 @@
 import { toPlantInput } from '../../src/lib/plant-time';
+import { isPostgresUrl, newTestDatabaseTarget } from '../../src/lib/server/db/connect';
 // The order-check page, its API and the booking form give the same verdict for every die of the
 // demo plant and three order sizes — called through the real load function, endpoint and form
 // action, on a file database seeded with the demo scenario.
@@ -23,7 +24,10 @@ let db: DB;
 let planner: App.Locals['user'];
 
 beforeAll(async () => {
-	const seedDb = openDatabase(process.env.DATABASE_PATH!);
+	// On the PostgreSQL pass the app's own handle (getDb) opens a fresh schema through DATABASE_URL.
+	const target = await newTestDatabaseTarget(process.env.DATABASE_PATH!);
+	if (isPostgresUrl(target)) process.env.DATABASE_URL = target;
+	const seedDb = openDatabase(target);
 	await migrateToLatest(seedDb);
 	await seedDemo(seedDb, new Date(), folderPhotoStore(process.env.UPLOAD_DIR!));
 	await seedDb.destroy();
@@ -43,10 +47,12 @@ beforeAll(async () => {
 		customerId: u.customer_id,
 		unitSystem: u.unit_system
 	} as unknown as App.Locals['user'];
-}, 120_000);
+	// Seeding the demo plant takes about two minutes on PostgreSQL (one round trip per statement).
+}, 300_000);
 
 afterAll(async () => {
 	await db?.destroy();
+	delete process.env.DATABASE_URL;
 	fs.rmSync(dir, { recursive: true, force: true });
 });
 

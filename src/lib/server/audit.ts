@@ -1,4 +1,5 @@
-import type { Kysely } from 'kysely';
+import { sql, type Kysely } from 'kysely';
+import { startsWithText } from './db/portable';
 import type { Database } from './db/schema';
 import { nowIso } from './time';
 
@@ -67,7 +68,7 @@ export async function listAudit(
 ): Promise<{ rows: AuditRow[]; total: number }> {
 	const base = db
 		.selectFrom('audit_log')
-		.$if(!!query.action, (q) => q.where('audit_log.action', 'like', `${query.action}%`));
+		.$if(!!query.action, (q) => q.where(startsWithText(db, sql`audit_log.action`, query.action!)));
 	const [rows, count] = await Promise.all([
 		base
 			.leftJoin('users', 'users.id', 'audit_log.user_id')

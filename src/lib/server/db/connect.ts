@@ -171,24 +171,43 @@ export function testEngine(): Engine {
 
 let testSchemas = 0;
 
-/**
- * A migrated, empty database for one test: SQLite in memory, or on the PostgreSQL pass a schema of
- * its own in `TEST_DATABASE_URL` (dropped again by `db.destroy()`'s caller never mattering: the
- * cluster is thrown away after the run).
- */
-export async function openTestDatabase(): Promise<DB> {
-	if (testEngine() === 'sqlite') {
-		const db = openDatabase(':memory:');
-		await migrateToLatest(db);
-		return db;
-	}
+function testDatabaseUrl(): string {
 	const url = process.env.TEST_DATABASE_URL;
 	if (!url) throw new Error('CASTELLAN_TEST_ENGINE=postgres needs TEST_DATABASE_URL.');
+	return url;
+}
+
+/** A new, empty schema in `TEST_DATABASE_URL` (never dropped: the test cluster is thrown away). */
+async function createTestSchema(): Promise<string> {
 	const schema = `t_${process.pid}_${Date.now().toString(36)}_${++testSchemas}`;
-	const admin = openDatabase(url, { poolSize: 1 });
+	const admin = openDatabase(testDatabaseUrl(), { poolSize: 1 });
 	await sql.raw(`create schema ${schema}`).execute(admin);
 	await admin.destroy();
-	const db = openDatabase(url, { schema, poolSize: 4 });
+	return schema;
+}
+
+/**
+ * A fresh, empty database for a test that opens it the way the app does (`DATABASE_URL` /
+ * `DATABASE_PATH`, a child process): the given SQLite file, or on the PostgreSQL pass
+ * `TEST_DATABASE_URL` naming a new schema of its own (`options=-c search_path=…`).
+ */
+export async function newTestDatabaseTarget(sqliteFile: string): Promise<string> {
+	if (testEngine() === 'sqlite') return sqliteFile;
+	const url = new URL(testDatabaseUrl());
+	url.searchParams.set('options', `-c search_path=${await createTestSchema()}`);
+	return url.toString();
+}
+
+/**
+ * A migrated, empty database for one test: SQLite in memory, or on the PostgreSQL pass a schema of
+ * its own in `TEST_DATABASE_URL`. `migrate: false` leaves it empty (tests of the migrations).
+ */
+export async function openTestDatabase(options: { migrate?: boolean } = {}): Promise<DB> {
+	const db =
+		testEngine() === 'sqlite'
+			? openDatabase(':memory:')
+			: openDatabase(testDatabaseUrl(), { schema: await createTestSchema(), poolSize: 4 });
+	if (options.migrate === false) return db;
 	await migrateToLatest(db);
 	return db;
 }

@@ -1,4 +1,5 @@
 import type { DB } from '../db/connect';
+import { writeTransaction } from '../db/write-transaction';
 import type { DieStatus, RetirementReason } from '../db/schema';
 import { metalPressureBarOf, type DieForm } from '../../schemas/die';
 import { writeAudit } from '../audit';
@@ -67,7 +68,7 @@ export async function createDie(
 		.select('family')
 		.where('id', '=', form.alloyId)
 		.executeTakeFirstOrThrow();
-	await db.transaction().execute(async (trx) => {
+	await writeTransaction(db, async (trx) => {
 		const die = await trx
 			.insertInto('dies')
 			.values({
@@ -124,7 +125,7 @@ export async function updateDie(
 	const problem = await checkReferences(db, form, dieId);
 	if (problem) return problem;
 	const at = nowIso();
-	await db.transaction().execute(async (trx) => {
+	await writeTransaction(db, async (trx) => {
 		const before = await trx
 			.selectFrom('dies')
 			.select('replacement_lead_days')
@@ -176,7 +177,7 @@ export async function changeDieStatus(
 	}
 	if (die.status === to) return { ok: false, message: 'The die is already in that state.' };
 	const at = nowIso();
-	await db.transaction().execute(async (trx) => {
+	await writeTransaction(db, async (trx) => {
 		await trx
 			.updateTable('dies')
 			.set({

@@ -12,9 +12,11 @@ import { trailingShotsPerDay } from '../schedule/die-facts';
 
 /** A half's expected life in SQL: its own, else the die's, else the alloy's (needs `dies`, `alloys`). */
 const halfExpected = sql`coalesce(h.expected_life_shots, dies.expected_life_shots, alloys.expected_life_shots)`;
+// Nulls last as SQLite sorts them descending; PostgreSQL would put them first.
 const mostWorn = (column: RawBuilder<unknown>) =>
 	sql`(select ${column} from die_halves h where h.die_id = dies.id and h.active = 1
-	      order by h.shots * 1.0 / ${halfExpected} desc, h.shots desc, h.id limit 1)`;
+	      order by h.shots * 1.0 / nullif(${halfExpected}, 0) desc nulls last, h.shots desc, h.id
+	      limit 1)`;
 
 /** Shots on the most-worn active half (the die total when it has no half); needs `dies` + `alloys`. */
 export const lifeShotsSql = sql<number>`coalesce(${mostWorn(sql`h.shots`)}, dies.total_shots)`;
@@ -23,7 +25,8 @@ export const lifeExpectedSql = sql<number>`coalesce(${mostWorn(halfExpected)}, d
 /** Side of the most-worn active half, or null; needs `dies` and `alloys` in the query. */
 export const lifeSideSql = sql<HalfSide | null>`${mostWorn(sql`h.side`)}`;
 /** Life used as a fraction, for sorting and thresholds in SQL (same pick as above). */
-export const lifeUsedRatioSql = sql<number>`(${lifeShotsSql} * 1.0 / ${lifeExpectedSql})`;
+// A zero expected life gives null on both engines (PostgreSQL would otherwise stop on x / 0).
+export const lifeUsedRatioSql = sql<number>`(${lifeShotsSql} * 1.0 / nullif(${lifeExpectedSql}, 0))`;
 
 /** What the life of a die is measured on: the most-worn active half's shots and expected life. */
 export interface LifeBasis {

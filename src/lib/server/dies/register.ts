@@ -5,6 +5,7 @@ import { sortWorstFirst, viewServiceTask, type ServiceTaskView } from './service
 import { nowIso } from '../time';
 import { lifeExpectedSql, lifeShotsSql, lifeUsedPctOf, lifeUsedRatioSql } from './life';
 import { compactCode, normaliseDieNumber } from '../../calc/die-number';
+import { containsText, ignoringCase } from '../db/portable';
 
 /** Limits what a caller may see: a customer-bound caller sees only its own dies. */
 export interface DieScope {
@@ -40,19 +41,19 @@ function baseQuery(db: DB, query: Partial<DieListQuery>, scope: DieScope) {
 		.innerJoin('alloys', 'alloys.id', 'dies.alloy_id');
 	if (scope.customerId !== null) q = q.where('dies.customer_id', '=', scope.customerId);
 	if (query.q) {
-		const like = `%${query.q.replace(/[\\%_]/g, (c) => '\\' + c)}%`;
+		const typed = query.q;
 		// What people type for a die number (`d 138`, `D0138`) and part numbers without their
 		// dashes and spaces find the die too.
-		const number = normaliseDieNumber(query.q);
-		const compact = compactCode(query.q);
+		const number = normaliseDieNumber(typed);
+		const compact = compactCode(typed);
 		q = q.where((eb) =>
 			eb.or([
 				...(number ? [eb('dies.number', '=', number)] : []),
-				...(compact ? [eb(COMPACT_PART_NUMBER, 'like', `%${compact}%`)] : []),
-				eb(sql`dies.number`, 'like', sql`${like} escape '\\'`),
-				eb(sql`dies.part_name`, 'like', sql`${like} escape '\\'`),
-				eb(sql`dies.part_number`, 'like', sql`${like} escape '\\'`),
-				eb(sql`customers.name`, 'like', sql`${like} escape '\\'`)
+				...(compact ? [containsText(db, COMPACT_PART_NUMBER, compact)] : []),
+				containsText(db, sql`dies.number`, typed),
+				containsText(db, sql`dies.part_name`, typed),
+				containsText(db, sql`dies.part_number`, typed),
+				containsText(db, sql`customers.name`, typed)
 			])
 		);
 	}
@@ -67,7 +68,7 @@ const SORT_COLUMNS = {
 	number: sql`dies.number`,
 	part: sql`dies.part_name`,
 	// Dies without a part number sort after those with one, whichever the direction.
-	partNumber: sql`dies.part_number is null, dies.part_number collate nocase`,
+	partNumber: sql`dies.part_number is null, ${ignoringCase(sql`dies.part_number`)}`,
 	owner: sql`customers.name`,
 	alloy: sql`alloys.code`,
 	status: sql`dies.status`,

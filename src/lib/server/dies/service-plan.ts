@@ -4,6 +4,7 @@ import { serviceKindLabel } from '../../labels';
 import type { AddTaskForm, MarkDoneForm } from '../../schemas/service-plan';
 import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
+import { writeTransaction } from '../db/write-transaction';
 import type { DieStatus } from '../db/schema';
 import { plantDate, plantZone, readPlantDateTime } from '../../plant-time';
 import { nowIso } from '../time';
@@ -128,7 +129,7 @@ export async function updateTaskIntervals(
 			message: 'Give an interval in shots, in days, or both.'
 		};
 	}
-	return db.transaction().execute(async (trx): Promise<PlanResult> => {
+	return writeTransaction(db, async (trx): Promise<PlanResult> => {
 		const [task, now] = await Promise.all([
 			findActiveTask(trx, die.id, input.taskId),
 			currentDie(trx, die.id)
@@ -180,7 +181,7 @@ export async function addServiceTask(
 			message: 'Give an interval in shots, in days, or both.'
 		};
 	}
-	return db.transaction().execute(async (trx): Promise<PlanResult> => {
+	return writeTransaction(db, async (trx): Promise<PlanResult> => {
 		const now = await currentDie(trx, die.id);
 		if (!now) return notOnPlan;
 		if (now.status === 'retired') return retiredDie;
@@ -240,7 +241,7 @@ export async function deactivateServiceTask(
 	actorId: string,
 	at = nowIso()
 ): Promise<PlanResult> {
-	return db.transaction().execute(async (trx): Promise<PlanResult> => {
+	return writeTransaction(db, async (trx): Promise<PlanResult> => {
 		const task = await findActiveTask(trx, die.id, taskId);
 		if (!task) return notOnPlan;
 		await trx.updateTable('service_tasks').set({ active: 0 }).where('id', '=', task.id).execute();
@@ -271,7 +272,7 @@ export async function markTaskDone(
 	actorId: string,
 	now = nowIso()
 ): Promise<PlanResult> {
-	return db.transaction().execute(async (trx): Promise<PlanResult> => {
+	return writeTransaction(db, async (trx): Promise<PlanResult> => {
 		const [task, current] = await Promise.all([
 			findActiveTask(trx, die.id, input.taskId),
 			currentDie(trx, die.id)

@@ -13,6 +13,7 @@
  * delivery tick sends it otherwise. Holding the die is in hold.ts (it moves the die's state).
  */
 import type { DB } from '../db/connect';
+import { writeTransaction } from '../db/write-transaction';
 import type { OwnerAnswer } from '../db/schema-owner';
 import { writeAudit } from '../audit';
 import { listOwnerRecipients } from '../notices/owner-life';
@@ -136,7 +137,7 @@ export async function askOwnerDecision(
 ): Promise<{ decisionId: number; queued: number }> {
 	const asked = toStoredInstant(at);
 	const question = ask.question.trim();
-	const decisionId = await db.transaction().execute(async (trx) => {
+	const decisionId = await writeTransaction(db, async (trx) => {
 		const row = await trx
 			.insertInto('owner_decisions')
 			.values({
@@ -226,7 +227,7 @@ export async function answerOwnerDecision(
 	if (input.answer === 'write_back' && !text) {
 		return { ok: false, status: 400, message: 'Write your reply.' };
 	}
-	const done = await db.transaction().execute(async (trx) => {
+	const done = await writeTransaction(db, async (trx) => {
 		// The `answer is null` guard makes a second answer (two tabs, two people) change nothing.
 		const updated = await trx
 			.updateTable('owner_decisions')

@@ -83,18 +83,11 @@ export async function listSharedPhotos(db: DB, dieId: number) {
 		.execute();
 }
 
-async function tableExists(db: DB, name: string) {
-	const row = await sql<{ n: number }>`select count(*) as n from sqlite_master
-		where type = 'table' and name = ${name}`.execute(db);
-	return Number(row.rows[0]?.n ?? 0) > 0;
-}
-
 /**
  * How many bookings of the die are still to come or running (not cancelled, not yet ended): a
  * count only, because the bookings are other customers' orders on shared presses.
  */
 export async function countOpenBookings(db: DB, dieId: number, asOf = nowIso()) {
-	if (!(await tableExists(db, 'press_bookings'))) return null;
 	const row = await db
 		.selectFrom('press_bookings')
 		.select((eb) => eb.fn.countAll<number>().as('n'))

@@ -6,6 +6,7 @@
 import { createHash, randomBytes } from 'node:crypto';
 import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
+import { writeTransaction } from '../db/write-transaction';
 import type { InvitationMailState } from '../db/schema-invitations';
 import { nowIso } from '../time';
 import { createUser, normaliseEmail, UserInputError } from '../users/users';
@@ -55,7 +56,7 @@ export async function createInvitation(
 	now = nowIso()
 ): Promise<CreateInvitationResult> {
 	const email = normaliseEmail(input.email);
-	return db.transaction().execute(async (trx) => {
+	return writeTransaction(db, async (trx) => {
 		const customer = await trx
 			.selectFrom('customers')
 			.select(['id', 'name'])
@@ -121,7 +122,7 @@ export async function createInvitation(
 
 /** A fresh link for an invitation that was not used: the old link stops working. */
 export async function renewInvitation(db: DB, id: number, actorId: string, now = nowIso()) {
-	return db.transaction().execute(async (trx) => {
+	return writeTransaction(db, async (trx) => {
 		const row = await trx
 			.selectFrom('invitations')
 			.innerJoin('customers', 'customers.id', 'invitations.customer_id')
@@ -168,7 +169,7 @@ export async function renewInvitation(db: DB, id: number, actorId: string, now =
 }
 
 export async function withdrawInvitation(db: DB, id: number, actorId: string, now = nowIso()) {
-	return db.transaction().execute(async (trx) => {
+	return writeTransaction(db, async (trx) => {
 		const res = await trx
 			.updateTable('invitations')
 			.set({ withdrawn_at: now })
@@ -281,7 +282,7 @@ export async function acceptInvitation(
 	if (!token || token.length > 100)
 		return { ok: false, reason: 'unknown', message: REFUSALS.unknown };
 	try {
-		return await db.transaction().execute(async (trx) => {
+		return await writeTransaction(db, async (trx) => {
 			const row = await trx
 				.selectFrom('invitations')
 				.selectAll()

@@ -23,6 +23,7 @@ import {
 import type { DieStatus } from '../../domain';
 import { plantDate, plantDayStart } from '../../plant-time';
 import type { DB } from '../db/connect';
+import { writeTransaction } from '../db/write-transaction';
 import type { StatementPeriodKind } from '../db/schema-settings';
 import { loadReplacementOutlooks } from '../dies/replacement';
 import { plantIdentity, type PlantIdentity } from '../settings/plant-identity';
@@ -274,7 +275,7 @@ export async function issueStatement(
 	now = nowIso()
 ): Promise<IssuedStatement> {
 	const day = plantDate(now);
-	return db.transaction().execute(async (trx) => {
+	return writeTransaction(db, async (trx) => {
 		const same = await trx
 			.selectFrom('statements')
 			.select(['reference', 'issued_at'])

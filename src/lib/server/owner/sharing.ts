@@ -5,6 +5,7 @@
  */
 import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
+import { writeTransaction } from '../db/write-transaction';
 import { nowIso } from '../time';
 
 /** The die's jobs (cancelled ones too, greyed) and photos with their sharing state. */
@@ -70,7 +71,7 @@ export async function setJobSharing(
 			message: 'Write the summary for the owner before sharing it.'
 		};
 	}
-	return db.transaction().execute(async (trx) => {
+	return writeTransaction(db, async (trx) => {
 		const job = await trx
 			.selectFrom('toolroom_jobs')
 			.select(['id', 'number', 'owner_summary', 'summary_shared'])
@@ -115,7 +116,7 @@ export async function setPhotoSharing(
 	input: { dieId: number; publicId: string; shared: boolean; actorId: string },
 	at = nowIso()
 ): Promise<SharingResult> {
-	return db.transaction().execute(async (trx) => {
+	return writeTransaction(db, async (trx) => {
 		const photo = await trx
 			.selectFrom('photos')
 			.select(['id'])

@@ -3,6 +3,7 @@ import { formatDateTime } from '../../format';
 import { MAX_BOOKING_DAYS } from '../../schemas/schedule';
 import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
+import { writeTransaction } from '../db/write-transaction';
 import { nowIso } from '../time';
 import type { RateSource } from './die-facts';
 import {
@@ -244,7 +245,7 @@ export async function createBooking(
 	options: SaveOptions
 ): Promise<SaveBookingResult> {
 	const now = options.now ?? nowIso();
-	return db.transaction().execute(async (trx) => {
+	return writeTransaction(db, async (trx) => {
 		const judged = await judgeBooking(trx, input, actor, options, now);
 		if (!judged.ok) return judged;
 		const { ev, plan } = judged;
@@ -374,7 +375,7 @@ export async function updateBooking(
 	options: SaveOptions
 ): Promise<SaveBookingResult> {
 	const now = options.now ?? nowIso();
-	return db.transaction().execute(async (trx) => {
+	return writeTransaction(db, async (trx) => {
 		const current = await trx
 			.selectFrom('press_bookings as b')
 			.innerJoin('dies', 'dies.id', 'b.die_id')

@@ -2,6 +2,7 @@ import { plantDayStart } from '../../plant-time';
 import { MAX_BOOKING_DAYS } from '../../schemas/schedule';
 import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
+import { writeTransaction } from '../db/write-transaction';
 import type { DieScope } from '../dies/register';
 import { nowIso } from '../time';
 import { shotsNeededFor } from './die-facts';
@@ -28,7 +29,7 @@ export async function cancelBooking(
 	reason: string,
 	now = nowIso()
 ): Promise<{ ok: true } | { ok: false; status: 404 | 409; message: string }> {
-	return db.transaction().execute(async (trx) => {
+	return writeTransaction(db, async (trx) => {
 		const booking = await trx
 			.selectFrom('press_bookings')
 			.innerJoin('dies', 'dies.id', 'press_bookings.die_id')

@@ -5,6 +5,7 @@
 import type { DieStatus } from '../../domain';
 import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
+import { writeTransaction } from '../db/write-transaction';
 import { nowIso } from '../time';
 
 /** Minutes without counts before a running die is taken back to ready (PRESS_IDLE_MINUTES). */
@@ -85,7 +86,7 @@ export async function notePressFeed(
 			if (e.countedAt >= seen.countedAt) Object.assign(seen, { ...e, count: seen.count });
 		}
 	}
-	await db.transaction().execute(async (trx) => {
+	await writeTransaction(db, async (trx) => {
 		for (const e of latest.values()) {
 			const before = await trx
 				.selectFrom('press_feed')
@@ -195,7 +196,7 @@ export async function releaseIdleDies(
 		.where('f.last_received_at', '<', cutoff)
 		.execute();
 	if (!idle.length) return [];
-	await db.transaction().execute(async (trx) => {
+	await writeTransaction(db, async (trx) => {
 		for (const d of idle) {
 			await moveDie(
 				trx,

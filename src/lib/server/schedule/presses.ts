@@ -3,6 +3,7 @@ import { inToMm, kgToLb, lbToKg, mmToIn, type UnitSystem } from '../../calc/unit
 import type { ForceUnit, PressForm } from '../../schemas/schedule';
 import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
+import { writeTransaction } from '../db/write-transaction';
 import type { Machine } from '../db/schema';
 import { nowIso } from '../time';
 
@@ -125,7 +126,7 @@ export async function savePress(
 	if (clash)
 		return { ok: false, field: 'name', message: `A press named ${form.name} already exists.` };
 	const values = formToRow(form, system);
-	return db.transaction().execute(async (trx) => {
+	return writeTransaction(db, async (trx) => {
 		let pressId = id;
 		if (pressId === undefined) {
 			pressId = (
@@ -174,7 +175,7 @@ export async function deletePress(
 			message: `${press.name} has bookings or counted shots, so it stays on record. Set its status to down instead.`
 		};
 	}
-	await db.transaction().execute(async (trx) => {
+	await writeTransaction(db, async (trx) => {
 		await trx.deleteFrom('machines').where('id', '=', id).execute();
 		await writeAudit(trx, {
 			userId: actorId,

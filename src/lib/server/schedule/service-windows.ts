@@ -10,6 +10,7 @@ import { DIE_STATUS_LABELS, jobKindLabel } from '../../labels';
 import { formatDateTime } from '../../format';
 import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
+import { writeTransaction } from '../db/write-transaction';
 import { listNoticeRecipients, writeOutbox } from '../notices/outbox';
 import type { NoticeItem } from '../notices/types';
 import { canWorkToolroom } from '../toolroom/access';
@@ -67,7 +68,7 @@ export async function reserveServiceWindow(
 			field: 'endsAt',
 			message: 'This window has already ended; reserve time from now on.'
 		};
-	return db.transaction().execute(async (trx) => {
+	return writeTransaction(db, async (trx) => {
 		const die = await trx
 			.selectFrom('dies')
 			.select(['id', 'number', 'status'])
@@ -150,7 +151,7 @@ export async function cancelServiceWindow(
 ): Promise<{ ok: true } | WindowRefusal> {
 	if (!WINDOW_EDITORS.includes(actor.role))
 		return { ok: false, status: 403, message: 'Your role may not cancel service windows.' };
-	return db.transaction().execute(async (trx) => {
+	return writeTransaction(db, async (trx) => {
 		const w = await trx
 			.selectFrom('service_windows')
 			.selectAll()

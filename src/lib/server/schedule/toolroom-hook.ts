@@ -1,8 +1,6 @@
-import { sql } from 'kysely';
 import type { DB } from '../db/connect';
 
-// The toolroom area owns `toolroom_jobs`. The schedule only reads open jobs, and only when the
-// table is there, so the board keeps working on a database migrated before the toolroom area.
+// The toolroom area owns `toolroom_jobs`; the schedule only reads open jobs.
 
 const OPEN_STATUSES = ['open', 'in_progress', 'waiting_parts'] as const;
 
@@ -21,22 +19,8 @@ export interface OpenJob {
 	shared: boolean;
 }
 
-const known = new WeakMap<object, boolean>();
-
-/** Whether the toolroom jobs table exists (asked once per database handle). */
-export async function hasToolroomJobs(db: DB): Promise<boolean> {
-	const cached = known.get(db);
-	if (cached !== undefined) return cached;
-	const row = await sql<{ n: number }>`select count(*) as n from sqlite_master
-		where type = 'table' and name = 'toolroom_jobs'`.execute(db);
-	const exists = Number(row.rows[0]?.n ?? 0) > 0;
-	known.set(db, exists);
-	return exists;
-}
-
-/** Open toolroom jobs, optionally of some dies only; empty when the table is not there. */
+/** Open toolroom jobs, optionally of some dies only. */
 export async function listOpenToolroomJobs(db: DB, dieIds?: readonly number[]): Promise<OpenJob[]> {
-	if (!(await hasToolroomJobs(db))) return [];
 	if (dieIds && dieIds.length === 0) return [];
 	const rows = await db
 		.selectFrom('toolroom_jobs')

@@ -4,6 +4,7 @@
 import { writeAudit } from '../audit';
 import { withDisplayName } from '../mail/transport';
 import type { DB } from '../db/connect';
+import { writeTransaction } from '../db/write-transaction';
 import { nowIso } from '../time';
 
 /** Shown until the admin sets a name (or PLANT_NAME is set for the process). */
@@ -108,7 +109,7 @@ export async function savePlantIdentity(
 	actorId: string,
 	now = nowIso()
 ): Promise<void> {
-	await db.transaction().execute(async (trx) => {
+	await writeTransaction(db, async (trx) => {
 		const before = await plantIdentity(trx);
 		await trx
 			.updateTable('plant_settings')
@@ -145,7 +146,7 @@ export async function savePlantLogo(
 	actorId: string,
 	now = nowIso()
 ): Promise<string | null> {
-	return db.transaction().execute(async (trx) => {
+	return writeTransaction(db, async (trx) => {
 		const before = await plantIdentity(trx);
 		await trx
 			.updateTable('plant_settings')
@@ -185,7 +186,7 @@ export async function saveLeadDefaults(
 	actorId: string,
 	now = nowIso()
 ): Promise<void> {
-	await db.transaction().execute(async (trx) => {
+	await writeTransaction(db, async (trx) => {
 		const before = await listLeadDefaults(trx);
 		for (const family of Object.keys(input) as LeadFamily[]) {
 			await trx

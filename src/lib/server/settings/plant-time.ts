@@ -4,6 +4,7 @@ import { dateInZone, isTimeZone } from '../../calc/zone';
 import { DEFAULT_PLANT_ZONE, setPlantZone } from '../../plant-time';
 import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
+import { writeTransaction } from '../db/write-transaction';
 import { nowIso } from '../time';
 
 /**
@@ -66,33 +67,38 @@ export async function savePlantTimeZone(
 	if (!isTimeZone(name)) {
 		return { ok: false, message: `"${zone}" is not a time zone; pick one from the list.` };
 	}
-	const changed = await db.transaction().execute(async (trx) => {
-		const before = await trx
-			.selectFrom('plant_settings')
-			.select('time_zone')
-			.where('id', '=', 1)
-			.executeTakeFirst();
-		const previous = before?.time_zone ?? DEFAULT_PLANT_ZONE;
-		if (previous === name) return false;
-		await trx
-			.insertInto('plant_settings')
-			.values({ id: 1, time_zone: name, updated_at: now, updated_by: actorId })
-			.onConflict((oc) =>
-				oc.column('id').doUpdateSet({ time_zone: name, updated_at: now, updated_by: actorId })
-			)
-			.execute();
-		const days = await rebuildDailyRollup(trx, name);
-		await writeAudit(
-			trx,
-			{
-				userId: actorId,
-				action: 'settings.time_zone',
-				detail: { from: previous, to: name, rollupRows: days }
-			},
-			now
-		);
-		return true;
-	});
+	const changed = await writeTransaction(
+		db,
+		async (trx) => {
+			const before = await trx
+				.selectFrom('plant_settings')
+				.select('time_zone')
+				.where('id', '=', 1)
+				.executeTakeFirst();
+			const previous = before?.time_zone ?? DEFAULT_PLANT_ZONE;
+			if (previous === name) return false;
+			await trx
+				.insertInto('plant_settings')
+				.values({ id: 1, time_zone: name, updated_at: now, updated_by: actorId })
+				.onConflict((oc) =>
+					oc.column('id').doUpdateSet({ time_zone: name, updated_at: now, updated_by: actorId })
+				)
+				.execute();
+			const days = await rebuildDailyRollup(trx, name);
+			await writeAudit(
+				trx,
+				{
+					userId: actorId,
+					action: 'settings.time_zone',
+					detail: { from: previous, to: name, rollupRows: days }
+				},
+				now
+			);
+			return true;
+		},
+		// The roll-up is the ledger's: rebuilt under the ledger's lock, never beside a shot batch.
+		'ledger'
+	);
 	setPlantZone(name);
 	return {
 		ok: true,

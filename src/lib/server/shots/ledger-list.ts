@@ -2,6 +2,7 @@ import { sql } from 'kysely';
 import { plantDayStart } from '../../plant-time';
 import type { ShotListQuery } from '../../schemas/shots';
 import type { DB } from '../db/connect';
+import { equalsIgnoringCase, startsWithText } from '../db/portable';
 import type { ReviewState, ShotSource } from '../db/schema';
 
 export interface ShotListRow {
@@ -57,11 +58,10 @@ async function resolveDies(db: DB, q: string): Promise<number[] | null> {
 	if (!q) return null;
 	const exact = await db.selectFrom('dies').select('id').where('number', '=', q).executeTakeFirst();
 	if (exact) return [exact.id];
-	const like = `${q.replace(/[\\%_]/g, (c) => '\\' + c)}%`;
 	const rows = await db
 		.selectFrom('dies')
 		.select('id')
-		.where(sql<boolean>`number like ${like} escape '\\'`)
+		.where(startsWithText(db, sql`number`, q))
 		.orderBy('number')
 		.limit(MAX_DIES_PER_SEARCH)
 		.execute();
@@ -85,7 +85,7 @@ export async function listShotEntries(
 			? db
 					.selectFrom('machines')
 					.select('id')
-					.where(sql<boolean>`name = ${query.press} collate nocase`)
+					.where(equalsIgnoringCase(sql`name`, query.press))
 					.executeTakeFirst()
 			: Promise.resolve(null)
 	]);

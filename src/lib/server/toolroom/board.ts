@@ -129,7 +129,8 @@ export async function listDiesInToolroom(db: DB) {
 				.as('since')
 		])
 		.where('dies.status', '=', 'in_toolroom')
-		.orderBy('since', 'asc')
+		// A die with no recorded status change first, as SQLite sorts nulls; PostgreSQL would put it last.
+		.orderBy('since', (ob) => ob.asc().nullsFirst())
 		.orderBy('dies.number', 'asc')
 		.orderBy('j.opened_at', 'asc')
 		.execute();

@@ -18,6 +18,7 @@ import { dieHeatBalance, heatPerShotKj, type HeatBalance } from '../../calc/heat
 import type { CircuitForm, CoolingCheckForm, HeatBalanceQuery } from '../../schemas/toolroom';
 import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
+import { writeTransaction } from '../db/write-transaction';
 import { findTaskToComplete, type TaskOffer } from '../dies/service-plan';
 import type { Coolant } from '../db/schema-toolroom';
 import { nowIso } from '../time';
@@ -86,7 +87,7 @@ async function saveCircuit(
 	const at = input.at ?? nowIso();
 	const refusal = await circuitListRefusal(db, input.dieId, actor);
 	if (refusal) return refusal;
-	return db.transaction().execute(async (trx) => {
+	return writeTransaction(db, async (trx) => {
 		const before = circuitId
 			? await trx
 					.selectFrom('cooling_circuits')
@@ -173,7 +174,7 @@ export async function setCoolingLock(
 		return { ok: false, status: 403, message: 'Only the toolroom lead may lock the circuit list.' };
 	}
 	const at = input.at ?? nowIso();
-	await db.transaction().execute(async (trx) => {
+	await writeTransaction(db, async (trx) => {
 		await trx
 			.updateTable('dies')
 			.set({ cooling_locked: input.locked ? 1 : 0 })
@@ -389,7 +390,7 @@ export async function recordCheck(
 		};
 	}
 	const figures = evaluateCheck(circuit, values);
-	const id = await db.transaction().execute(async (trx) => {
+	const id = await writeTransaction(db, async (trx) => {
 		const row = await trx
 			.insertInto('cooling_checks')
 			.values({
@@ -489,7 +490,7 @@ export async function voidCoolingCheck(
 	if (check.voided_at) {
 		return { ok: false, status: 409, message: 'This check is already void.' };
 	}
-	await db.transaction().execute(async (trx) => {
+	await writeTransaction(db, async (trx) => {
 		await trx
 			.updateTable('cooling_checks')
 			.set({ voided_at: at, voided_by: input.actor.userId, void_reason: input.reason.trim() })
@@ -545,7 +546,7 @@ export async function correctCoolingCheck(
 	if (!read.ok) return read;
 	const figures = evaluateCheck(circuit, read.values);
 	const reason = input.reason.trim();
-	const id = await db.transaction().execute(async (trx) => {
+	const id = await writeTransaction(db, async (trx) => {
 		const row = await trx
 			.insertInto('cooling_checks')
 			.values({

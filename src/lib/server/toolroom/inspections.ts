@@ -13,6 +13,7 @@ import {
 import { MAX_PHOTOS_PER_UPLOAD, type InspectionForm } from '../../schemas/toolroom';
 import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
+import { writeTransaction } from '../db/write-transaction';
 import { findTaskToComplete, type TaskOffer } from '../dies/service-plan';
 import {
 	preparePhotos,
@@ -437,7 +438,7 @@ export async function voidInspection(
 	if (!row) return { ok: false, status: 404, message: 'There is no such inspection on this die.' };
 	if (row.voided_at) return { ok: false, status: 409, message: 'This inspection is already void.' };
 	const reason = input.reason.trim();
-	await db.transaction().execute(async (trx) => {
+	await writeTransaction(db, async (trx) => {
 		await trx
 			.updateTable('surface_inspections')
 			.set({ voided_at: at, voided_by: input.actor.userId, void_reason: reason })
@@ -494,7 +495,7 @@ export async function correctInspection(
 	const tooMany = inspectionShotsProblem(input.values.shotsAt, die.total_shots);
 	if (tooMany) return { ok: false, status: 400, field: 'shotsAt', message: tooMany };
 	const reason = input.reason.trim();
-	const id = await db.transaction().execute(async (trx) => {
+	const id = await writeTransaction(db, async (trx) => {
 		const row = await trx
 			.insertInto('surface_inspections')
 			.values({

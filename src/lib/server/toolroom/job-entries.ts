@@ -9,6 +9,7 @@
 import type { PartUsedForm, WorkEntryForm } from '../../schemas/toolroom';
 import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
+import { writeTransaction } from '../db/write-transaction';
 import { nowIso } from '../time';
 import { canLeadToolroom, canWorkToolroom } from './access';
 import { isRefusal, loadActiveJob, type Actor, type Refusal } from './jobs';
@@ -74,7 +75,7 @@ export async function recordWorkEntry(
 	if (!canWorkToolroom(input.actor.role)) {
 		return { ok: false, status: 403, message: 'Your role may not record work on toolroom jobs.' };
 	}
-	return db.transaction().execute(async (trx) => {
+	return writeTransaction(db, async (trx) => {
 		const job = await loadActiveJob(trx, input.number);
 		if (isRefusal(job)) return job;
 		const id = await insertWorkEntry(trx, {
@@ -114,7 +115,7 @@ export async function recordPartUsed(
 	if (!canWorkToolroom(input.actor.role)) {
 		return { ok: false, status: 403, message: 'Your role may not record parts on toolroom jobs.' };
 	}
-	return db.transaction().execute(async (trx) => {
+	return writeTransaction(db, async (trx) => {
 		const job = await loadActiveJob(trx, input.number);
 		if (isRefusal(job)) return job;
 		const row = await trx
@@ -181,7 +182,7 @@ export async function voidJobEntry(
 		};
 	}
 	const table = input.entry === 'work' ? 'job_work_entries' : 'job_parts_used';
-	return db.transaction().execute(async (trx) => {
+	return writeTransaction(db, async (trx) => {
 		const job = await trx
 			.selectFrom('toolroom_jobs')
 			.select(['id', 'number', 'die_id', 'hours'])

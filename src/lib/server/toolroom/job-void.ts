@@ -10,6 +10,7 @@
 import { serviceKindLabel } from '../../labels';
 import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
+import { writeTransaction } from '../db/write-transaction';
 import { nowIso } from '../time';
 import { canLeadToolroom } from './access';
 import { isActiveJob, type Actor, type Refusal } from './jobs';
@@ -33,7 +34,7 @@ export async function voidJob(
 		};
 	}
 	const at = input.at ?? nowIso();
-	return db.transaction().execute(async (trx) => {
+	return writeTransaction(db, async (trx) => {
 		const job = await trx
 			.selectFrom('toolroom_jobs')
 			.select(['id', 'number', 'die_id', 'status', 'closed_at', 'voided_at'])

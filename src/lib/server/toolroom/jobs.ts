@@ -9,6 +9,7 @@ import type { RoleName } from '../../roles';
 import type { CloseJobForm, JobActiveStatus, OpenJobForm } from '../../schemas/toolroom';
 import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
+import { writeTransaction } from '../db/write-transaction';
 import type { DieStatus } from '../db/schema';
 import type { JobStatus } from '../db/schema-toolroom';
 import { sortWorstFirst, viewServiceTask } from '../dies/service-summary';
@@ -167,7 +168,7 @@ export async function openJob(
 	if (assigneeProblem) return assigneeProblem;
 	const taskIds = [...new Set(form.serviceTaskIds)];
 
-	return db.transaction().execute(async (trx) => {
+	return writeTransaction(db, async (trx) => {
 		const die = await trx
 			.selectFrom('dies')
 			.select(['id', 'number', 'status', 'total_shots'])
@@ -353,7 +354,7 @@ export async function moveJob(
 	if (!canWorkToolroom(input.actor.role)) {
 		return { ok: false, status: 403, message: 'Your role may not change toolroom jobs.' };
 	}
-	return db.transaction().execute(async (trx) => {
+	return writeTransaction(db, async (trx) => {
 		const job = await loadActiveJob(trx, input.number);
 		if (isRefusal(job)) return job;
 		const from = job.status as JobActiveStatus;
@@ -394,7 +395,7 @@ export async function assignJob(
 	}
 	const problem = await checkAssignee(db, input.assignedTo);
 	if (problem) return problem;
-	return db.transaction().execute(async (trx) => {
+	return writeTransaction(db, async (trx) => {
 		const job = await loadActiveJob(trx, input.number);
 		if (isRefusal(job)) return job;
 		await trx
@@ -431,7 +432,7 @@ export async function closeJob(
 	if (!canWorkToolroom(actor.role)) {
 		return { ok: false, status: 403, message: 'Your role may not close toolroom jobs.' };
 	}
-	return db.transaction().execute(async (trx) => {
+	return writeTransaction(db, async (trx) => {
 		const job = await loadActiveJob(trx, input.number);
 		if (isRefusal(job)) return job;
 		// Hours typed at close join those recorded while the job was open; the job's hours are
@@ -546,7 +547,7 @@ export async function cancelJob(
 	if (!canLeadToolroom(input.actor.role)) {
 		return { ok: false, status: 403, message: 'Only the toolroom lead may cancel a job.' };
 	}
-	return db.transaction().execute(async (trx) => {
+	return writeTransaction(db, async (trx) => {
 		const job = await loadActiveJob(trx, input.number);
 		if (isRefusal(job)) return job;
 		await trx

@@ -7,6 +7,7 @@ import { randomBytes } from 'node:crypto';
 import { MAX_PHOTOS_PER_UPLOAD } from '../../schemas/toolroom';
 import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
+import { writeTransaction } from '../db/write-transaction';
 import type { PhotoStage } from '../db/schema-toolroom';
 import {
 	checkPhotos,
@@ -228,7 +229,7 @@ export async function setPhotoShared(
 		return { ok: false, status: 403, message: 'Your role may not share photos.' };
 	}
 	const at = input.at ?? nowIso();
-	return db.transaction().execute(async (trx) => {
+	return writeTransaction(db, async (trx) => {
 		const photo = await trx
 			.selectFrom('photos')
 			.select(['id', 'die_id'])
@@ -335,7 +336,7 @@ export async function setPhotoCaption(
 ): Promise<boolean> {
 	const at = input.at ?? nowIso();
 	const caption = input.caption.trim() ? input.caption.trim().slice(0, 200) : null;
-	return db.transaction().execute(async (trx) => {
+	return writeTransaction(db, async (trx) => {
 		const photo = await trx
 			.selectFrom('photos')
 			.select(['id', 'die_id', 'caption'])

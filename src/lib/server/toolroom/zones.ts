@@ -6,6 +6,7 @@
 import type { RepairKind } from '../../domain';
 import { writeAudit } from '../audit';
 import type { DB } from '../db/connect';
+import { writeTransaction } from '../db/write-transaction';
 import { nowIso } from '../time';
 import { TOOLROOM_LEADS } from './access';
 import type { Actor } from './jobs';
@@ -54,7 +55,7 @@ export async function addDieZone(
 			message: `The ${zone.half} half already has a zone “${name}”.`
 		};
 	}
-	const row = await db.transaction().execute(async (trx) => {
+	const row = await writeTransaction(db, async (trx) => {
 		const inserted = await trx
 			.insertInto('die_zones')
 			.values({ die_id: dieId, half: zone.half, name, active: 1, created_at: at })
@@ -93,7 +94,7 @@ export async function recordJobRepairs(
 			return { ok: false, status: 400, message: 'Pick zones from the die’s own zone list.' };
 		}
 	}
-	await db.transaction().execute(async (trx) => {
+	await writeTransaction(db, async (trx) => {
 		for (const r of repairs) {
 			await trx
 				.insertInto('job_repairs')

@@ -1,5 +1,6 @@
 import { generateIdFromEntropySize } from 'lucia';
 import type { DB } from '../db/connect';
+import { writeTransaction } from '../db/write-transaction';
 import type { Role } from '../db/schema';
 import { hashPassword } from '../auth/password';
 import { writeAudit } from '../audit';
@@ -114,7 +115,7 @@ export async function updateUserRole(
 		throw new UserInputError('customerId', 'A tooling owner account must belong to a customer.');
 	}
 	if (role === 'customer') await requireCustomer(db, customerId!);
-	await db.transaction().execute(async (trx) => {
+	await writeTransaction(db, async (trx) => {
 		await trx
 			.updateTable('users')
 			.set({ role, customer_id: role === 'customer' ? customerId : null })
@@ -127,7 +128,7 @@ export async function updateUserRole(
 }
 
 export async function setUserActive(db: DB, id: string, active: boolean, actorId: string) {
-	await db.transaction().execute(async (trx) => {
+	await writeTransaction(db, async (trx) => {
 		await trx
 			.updateTable('users')
 			.set({ active: active ? 1 : 0 })
@@ -145,7 +146,7 @@ export async function setUserActive(db: DB, id: string, active: boolean, actorId
 /** Sets a password. Set by anyone but the user (an admin), it must be changed at next sign-in. */
 export async function setUserPassword(db: DB, id: string, password: string, actorId: string) {
 	const passwordHash = await hashPassword(password);
-	await db.transaction().execute(async (trx) => {
+	await writeTransaction(db, async (trx) => {
 		await trx
 			.updateTable('users')
 			.set({ password_hash: passwordHash, must_change_password: actorId === id ? 0 : 1 })
