@@ -3,9 +3,11 @@
 // TEST_DATABASE_URL's, and `npm run test:pg` clears what an interrupted run left behind.
 import pg from 'pg';
 
-// openTestDatabase (src/lib/server/db/connect.ts) names its schemas t_<pid>_<time>_<n>.
+// Schemas an earlier version of the suite made (t_<pid>_<time>_<n>); the databases the suite makes
+// now: openTestDatabase's tdb_test_<pid>_<time>_<n> copied from tdb_template_<n>_<hash>
+// (src/lib/server/db/connect.ts), and this file's tdb_<label>_<pid>_<n>.
 const TEST_SCHEMAS = String.raw`^t_\d+_[a-z0-9]+_\d+$`;
-const SCRATCH_DATABASES = String.raw`^tdb_[a-z]+_\d+_\d+$`;
+const SCRATCH_DATABASES = String.raw`^tdb_[a-z]+_[a-z0-9_]+$`;
 
 let made = 0;
 

@@ -1,8 +1,7 @@
-import { sql } from 'kysely';
 import { beforeEach, describe, expect, it } from 'vitest';
 import {
-	openDatabase,
 	openTestDatabase,
+	reopenDatabase,
 	testEngine,
 	type DB
 } from '../../src/lib/server/db/connect';
@@ -109,12 +108,11 @@ const count = async (
 
 /**
  * The same database as a second app process sees it: on PostgreSQL a pool of its own on the same
- * schema (so two writers really run at once); SQLite in memory has one connection, shared.
+ * database (so two writers really run at once); SQLite in memory has one connection, shared.
  */
 async function asAnotherProcess(db: DB): Promise<DB> {
 	if (testEngine() === 'sqlite') return db;
-	const { rows } = await sql<{ s: string }>`select current_schema() as s`.execute(db);
-	return openDatabase(process.env.TEST_DATABASE_URL!, { schema: rows[0].s, poolSize: 2 });
+	return reopenDatabase(db);
 }
 
 /** The Dies sheet's columns under the field names, so the mapping guesses itself. */

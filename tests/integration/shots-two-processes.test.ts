@@ -4,9 +4,8 @@
 // busy timeout for a second process), and the one-process races in shots-ledger.test.ts and
 // shots-halves.test.ts cover it; two SQLite handles in one Node process would only wait on each
 // other's busy timeout on the one thread.
-import { sql } from 'kysely';
 import { afterEach, beforeEach, describe, expect, test } from 'vitest';
-import { openDatabase, testEngine, type DB } from '../../src/lib/server/db/connect';
+import { reopenDatabase, testEngine, type DB } from '../../src/lib/server/db/connect';
 import { listHalves, replaceHalf } from '../../src/lib/server/dies/halves';
 import { recordShots, type RecordResult, type ShotInput } from '../../src/lib/server/shots/ledger';
 import {
@@ -20,14 +19,13 @@ import {
 } from './shots-fixture';
 
 let p: ShotPlant;
-/** The second process: its own pool on the same schema. */
+/** The second process: its own pool on the same database. */
 let other: DB;
 
 describe.skipIf(testEngine() !== 'postgres')('the shot ledger from two app processes', () => {
 	beforeEach(async () => {
 		p = await makeShotPlant();
-		const { rows } = await sql<{ schema: string }>`select current_schema() as schema`.execute(p.db);
-		other = openDatabase(process.env.TEST_DATABASE_URL!, { schema: rows[0].schema, poolSize: 4 });
+		other = reopenDatabase(p.db);
 	});
 	afterEach(async () => {
 		await other.destroy();
