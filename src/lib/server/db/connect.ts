@@ -232,13 +232,13 @@ async function createTestDatabase(migrated: boolean): Promise<string> {
 }
 
 /**
- * A fresh, migrated database for a test that opens it the way the app does (`DATABASE_URL` /
- * `DATABASE_PATH`, a child process): the given SQLite file, or on the PostgreSQL pass the URL of a
- * new database of its own.
+ * A fresh, empty database for a test that opens it the way the app does (`DATABASE_URL` /
+ * `DATABASE_PATH`, a child process) and migrates it itself: the given SQLite file, or on the
+ * PostgreSQL pass the URL of a new database of its own.
  */
 export async function newTestDatabaseTarget(sqliteFile: string): Promise<string> {
 	if (testEngine() === 'sqlite') return sqliteFile;
-	return createTestDatabase(true);
+	return createTestDatabase(false);
 }
 
 /**
